@@ -1,0 +1,12 @@
+export * from './errors.js';
+export * from './design.js';
+export * from './units.js';
+export * from './thermal.js';
+export * from './ekv.js';
+export * from './pelgrom.js';
+export * from './variables.js';
+export type * from './stage.js';
+export * from './validateDesign.js';
+export * from './compileStage.js';
+export * from './linearised.js';
+export { MIRROR_TOLERANCE, MIRROR_MAX_ITERATIONS } from './mirrorPair.js';

@@ -1,0 +1,70 @@
+import type { Design } from './design.js';
+import { normalisedGmOverId } from './ekv.js';
+import { deviceConstants, deviceOperatingPoint, deviceVariables, geometryWarnings } from './deviceConstants.js';
+import type { Stage } from './stage.js';
+import { thermalVoltage } from './thermal.js';
+
+/**
+ * Simple stage: ideal equal loads, balance at I1 = I2 = I_B/2. Closed form (DOMAIN.md):
+ * Vos = (V_T1 - V_T2) + n U_T [v(I_B/(2 I_S1)) - v(I_B/(2 I_S2))], v the EKV inverse.
+ * A p-pair is described by magnitudes, so its Vos = V_G1 - V_G2 has the opposite sign.
+ * Sample layout: [u_vt1, u_beta1, u_vt2, u_beta2].
+ */
+export function compileSimplePair(design: Design, temperatureWarnings: readonly string[]): Stage {
+  const ut = thermalVoltage(design.temperature);
+  const c = deviceConstants(design, design.input, ut);
+  const half = design.tail / 2;
+  const op1 = deviceOperatingPoint('M1', 'input', c, half, ut);
+  const op2 = deviceOperatingPoint('M2', 'input', c, half, ut);
+
+  // Hoisted constants of the hot loop.
+  const sign = design.input.polarity === 'n' ? 1 : -1;
+  const nut = c.process.slope * ut;
+  const sVt = c.sigmaVt;
+  const bR = c.betaFromVt;
+  const bS = c.betaOwn;
+  // sqrt(IC_i) = sqrt(IC0) * exp(-z_beta,i / 2): one exp per device, no sqrt per sample.
+  const s0 = Math.sqrt(op1.ic);
+
+  const offset = (u: Float64Array, base: number): number => {
+    const a = u[base]!;
+    const b = u[base + 1]!;
+    const c2 = u[base + 2]!;
+    const d = u[base + 3]!;
+    const s1 = s0 * Math.exp(-0.5 * (bR * a + bS * b));
+    const s2 = s0 * Math.exp(-0.5 * (bR * c2 + bS * d));
+    let dv: number;
+    if (s1 <= 1 && s2 <= 1) {
+      dv = 2 * Math.log(Math.expm1(s1) / Math.expm1(s2));
+    } else {
+      const v1 = s1 > 1 ? 2 * (s1 + Math.log1p(-Math.exp(-s1))) : 2 * Math.log(Math.expm1(s1));
+      const v2 = s2 > 1 ? 2 * (s2 + Math.log1p(-Math.exp(-s2))) : 2 * Math.log(Math.expm1(s2));
+      dv = v1 - v2;
+    }
+    return sign * (sVt * (a - c2) + nut * dv);
+  };
+
+  const offsets = (u: Float64Array, count: number, out: Float64Array, outBase: number): number => {
+    for (let i = 0, j = 0; i < count; i++, j += 4) out[outBase + i] = offset(u, j);
+    return 0;
+  };
+
+  // Linearised: dv_i/dz_beta,i = -1/g (g = n U_T gm/I_D), so dVos/dz_beta = -(I_D/gm) per device.
+  const idOverGm = nut / normalisedGmOverId(op1.ic);
+  const vtCoef = sign * (sVt - idOverGm * bR);
+  const betaCoef = sign * (-idOverGm * bS);
+  const sensitivities = Float64Array.of(vtCoef, betaCoef, -vtCoef, -betaCoef);
+
+  return {
+    design,
+    topology: 'simple',
+    thermalVoltage: ut,
+    dimension: 4,
+    variables: [...deviceVariables('M1', 'input', c), ...deviceVariables('M2', 'input', c)],
+    sensitivities,
+    operatingPoint: [op1, op2],
+    warnings: [...temperatureWarnings, ...geometryWarnings('input', c)],
+    offset,
+    offsets,
+  };
+}

@@ -1,0 +1,33 @@
+import type { Design } from '../src/design.js';
+
+/** Invented demo process and designs for tests (not foundry data). */
+export const demoProcess = {
+  n: { vt0: 0.45, slope: 1.3, kp: 300e-6, avt: 5e-9, abeta: 1e-8, rho: 0 },
+  p: { vt0: 0.5, slope: 1.35, kp: 90e-6, avt: 6.5e-9, abeta: 1.2e-8, rho: 0 },
+} as const;
+
+export const simpleDesign: Design = {
+  name: 'test simple (invented)',
+  temperature: 300,
+  topology: 'simple',
+  tail: 10e-6,
+  input: { polarity: 'n', w: 2e-6, l: 1e-6 },
+  process: demoProcess,
+  spec: { offset: 10e-3, instances: 1 },
+};
+
+export const mirrorDesign: Design = {
+  name: 'test mirror (invented)',
+  temperature: 300,
+  topology: 'mirror',
+  tail: 10e-6,
+  input: { polarity: 'n', w: 2e-6, l: 1e-6 },
+  load: { polarity: 'p', w: 4e-6, l: 2e-6 },
+  process: demoProcess,
+  spec: { offset: 10e-3, instances: 1 },
+};
+
+/** A copy with a few fields replaced (shallow per section). */
+export function withChanges(d: Design, changes: Partial<Design>): Design {
+  return { ...d, ...changes };
+}
