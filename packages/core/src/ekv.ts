@@ -89,3 +89,43 @@ export function specificCurrent(
 export function inversionRegion(ic: number): InversionRegion {
   return ic < 0.1 ? 'weak' : ic > 10 ? 'strong' : 'moderate';
 }
+
+/**
+ * Coefficients of ln(expm1(s)/s) = s/2 + sum_n B_2n s^2n / (2n (2n)!), the Bernoulli-number
+ * series of ln((e^s - 1)/s) (radius 2 pi). Through n = 9 the truncation at s <= 1 is
+ * |B_20| / (20 * 20!) = 1.1e-17, under double rounding.
+ */
+const BERNOULLI_2N = [1 / 6, -1 / 30, 1 / 42, -1 / 30, 5 / 66, -691 / 2730, 7 / 6, -3617 / 510, 43867 / 798];
+const G_COEF = BERNOULLI_2N.map((b, i) => {
+  const m = 2 * (i + 1);
+  let fact = 1;
+  for (let k = 2; k <= m; k++) fact *= k;
+  return b / (m * fact);
+});
+const [G1, G2, G3, G4, G5, G6, G7, G8, G9] = G_COEF as [number, number, number, number, number, number, number, number, number];
+
+/**
+ * ln(expm1(s) / s) for 0 < s <= 1 by its series (no transcendental call), so that
+ * v = 2 ln(s) + 2 lnExpm1OverS(s) and a difference v1 - v2 needs only ln(s1/s2).
+ * Exact to rounding on (0, 1]; callers use the direct form above 1.
+ */
+export function lnExpm1OverS(s: number): number {
+  const q = s * s;
+  // Up to s = 0.3 five terms suffice: the sixth, |B_12| s^12 / (12 * 12!), is below 2.3e-17.
+  if (s <= 0.3) return 0.5 * s + q * (G1 + q * (G2 + q * (G3 + q * (G4 + q * G5))));
+  return 0.5 * s + q * (G1 + q * (G2 + q * (G3 + q * (G4 + q * (G5 + q * (G6 + q * (G7 + q * (G8 + q * G9))))))));
+}
+
+/**
+ * v(s1^2) - v(s2^2), the difference of two EKV inverses written in s = sqrt(IC). `lnRatio` is
+ * ln(s1/s2), which callers usually know without a log call; it is read only when both s are
+ * <= 1 (pass NaN otherwise).
+ */
+export function ekvInverseDifference(s1: number, s2: number, lnRatio: number): number {
+  if (s1 <= 1 && s2 <= 1) return 2 * lnRatio + 2 * (lnExpm1OverS(s1) - lnExpm1OverS(s2));
+  if (s1 > 1 && s2 > 1) {
+    // v = 2 (s + ln(1 - e^-s)): the two logs combine into one.
+    return 2 * (s1 - s2) + 2 * Math.log(Math.expm1(-s1) / Math.expm1(-s2));
+  }
+  return ekvInverseOfRoot(s1) - ekvInverseOfRoot(s2);
+}

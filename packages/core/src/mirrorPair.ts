@@ -1,5 +1,5 @@
 import type { Design } from './design.js';
-import { ekvInverse, normalisedGmOverId } from './ekv.js';
+import { ekvInverseDifference, normalisedGmOverId } from './ekv.js';
 import { deviceConstants, deviceOperatingPoint, deviceVariables, geometryWarnings } from './deviceConstants.js';
 import type { Stage } from './stage.js';
 import { thermalVoltage } from './thermal.js';
@@ -13,10 +13,11 @@ export const MIRROR_MAX_ITERATIONS = 200;
  * Five-transistor stage with a current-mirror load (DOMAIN.md): M1 drives the diode M3, M4 copies
  * it against M2, I1 + I2 = I_B and I4 = I2 at balance (no channel-length modulation).
  *
- * The balance is solved in t = v3 (M3's normalised pinch-off minus source voltage), where
- * h(t) = a3 F(t) + a4 F(t - d) - 1, a_k = I_Sk / I_B, d = (V_T4 - V_T3)/(n_p U_T),
- * is increasing in t: guarded Newton (Newton inside a bracket kept from the signs of h, bisection
- * when a step leaves it). Then Vos follows from the pair as in the simple stage.
+ * The balance is solved in s = sqrt(I3/I_S3), where h(s) = a3 s^2 + a4 F(v3 - d) - 1,
+ * a_k = I_Sk / I_B, d = (V_T4 - V_T3)/(n_p U_T), is increasing on the closed bracket
+ * [0, 1/sqrt(a3)]: guarded Newton (Newton inside the bracket, narrowed from the signs of h, and
+ * bisection when a step leaves it). Working in s needs one expm1 and one log1p per step.
+ * Then Vos follows from the pair as in the simple stage.
  * Sample layout: [M1 vt, M1 beta, M2 vt, M2 beta, M3 vt, M3 beta, M4 vt, M4 beta].
  */
 export function compileMirrorPair(design: Design, temperatureWarnings: readonly string[]): Stage {
@@ -43,69 +44,135 @@ export function compileMirrorPair(design: Design, temperatureWarnings: readonly 
   const bRL = cl.betaFromVt;
   const bSL = cl.betaOwn;
   const a0 = cl.specificCurrent / design.tail; // I_S3 / I_B without mismatch
-  const r0 = design.tail / ci.specificCurrent; // I_B / I_S1 without mismatch
-  const t0 = ekvInverse(ops[2].ic); // balance without mismatch
+  const c0 = Math.sqrt(a0 * (design.tail / ci.specificCurrent)); // sqrt(I_S3 / I_S1) without mismatch
+  const sStart = Math.sqrt(ops[2].ic); // balance without mismatch
+  // dL4/d(d/2) at the balance without mismatch is -(1 - e^{-s0}): see the first guess below.
+  const gamma = -Math.expm1(-sStart);
   const tol = MIRROR_TOLERANCE;
   const maxIter = MIRROR_MAX_ITERATIONS;
 
-  const offset = (u: Float64Array, base: number): number => {
-    const a3 = a0 * Math.exp(bRL * u[base + 4]! + bSL * u[base + 5]!);
-    const a4 = a0 * Math.exp(bRL * u[base + 6]! + bSL * u[base + 7]!);
-    const d = dScale * (u[base + 6]! - u[base + 4]!);
-    const hd = 0.5 * d;
-    let t = t0;
-    let lo = -Infinity;
-    let hi = Infinity;
-    let f3 = 0;
-    let f4 = 0;
-    let converged = false;
-    for (let k = 0; k < maxIter; k++) {
-      // softplus and logistic of x = t/2 and y = (t - d)/2 from one exp each (no overflow).
-      const x = 0.5 * t;
-      let l3: number, g3: number;
-      if (x > 0) { const e = Math.exp(-x); l3 = x + Math.log1p(e); g3 = 1 / (1 + e); }
-      else { const e = Math.exp(x); l3 = Math.log1p(e); g3 = e / (1 + e); }
-      const y = x - hd;
-      let l4: number, g4: number;
-      if (y > 0) { const e = Math.exp(-y); l4 = y + Math.log1p(e); g4 = 1 / (1 + e); }
-      else { const e = Math.exp(y); l4 = Math.log1p(e); g4 = e / (1 + e); }
-      f3 = a3 * l3 * l3;
-      f4 = a4 * l4 * l4;
-      const h = f3 + f4 - 1;
-      if (Math.abs(h) <= tol) { converged = true; break; }
-      if (h < 0) lo = t; else hi = t;
-      const dh = a3 * l3 * g3 + a4 * l4 * g4;
-      let next = t - h / dh;
-      if (!(next > lo && next < hi)) {
-        if (lo === -Infinity || hi === Infinity) {
-          // Open a bracket: at tLo both currents are <= I_B/2, at tHi one of them is >= I_B.
-          const tLo = Math.min(ekvInverse(0.5 / a3), ekvInverse(0.5 / a4) + d);
-          const tHi = Math.max(ekvInverse(1 / a3), ekvInverse(1 / a4) + d);
-          if (lo === -Infinity) lo = Math.min(tLo, t);
-          if (hi === Infinity) hi = Math.max(tHi, t);
-        }
-        next = 0.5 * (lo + hi);
-      }
-      t = next;
-    }
-    if (!converged) return NaN;
-    // I1 = f3 I_B and I2 = I4 = f4 I_B, each accurate to its own size (I_B - I1 would lose a
-    // small I2 to cancellation when one side takes nearly all the tail current).
-    const e1 = Math.exp(-(bRIn * u[base]! + bSIn * u[base + 1]!));
-    const e2 = Math.exp(-(bRIn * u[base + 2]! + bSIn * u[base + 3]!));
-    const v1 = ekvInverse(f3 * r0 * e1);
-    const v2 = ekvInverse(f4 * r0 * e2);
-    return sign * (sVtIn * (u[base]! - u[base + 2]!) + nutIn * (v1 - v2));
+  // The batch is solved in phases, each a loop over independent samples (first guesses, then
+  // Newton rounds over the samples still active, then the offsets), so the CPU overlaps the
+  // transcendental calls of neighbouring samples instead of waiting on one sample's chain.
+  // Scratch arrays only grow; they never carry results from one call to the next.
+  let cap = 0;
+  let A3 = new Float64Array(0);
+  let A4 = A3;
+  let DX = A3;
+  let HD = A3;
+  let S = A3;
+  let LO = A3;
+  let HI = A3;
+  let L4 = A3;
+  let ACTIVE = new Int32Array(0);
+  const ensure = (n: number): void => {
+    if (n <= cap) return;
+    cap = Math.max(n, 2 * cap);
+    A3 = new Float64Array(cap);
+    A4 = new Float64Array(cap);
+    DX = new Float64Array(cap);
+    HD = new Float64Array(cap);
+    S = new Float64Array(cap);
+    LO = new Float64Array(cap);
+    HI = new Float64Array(cap);
+    L4 = new Float64Array(cap);
+    ACTIVE = new Int32Array(cap);
   };
 
   const offsets = (u: Float64Array, count: number, out: Float64Array, outBase: number): number => {
+    ensure(count);
+    for (let i = 0, b = 0; i < count; i++, b += 8) {
+      const a3 = a0 * Math.exp(bRL * u[b + 4]! + bSL * u[b + 5]!);
+      const a4 = a0 * Math.exp(bRL * u[b + 6]! + bSL * u[b + 7]!);
+      const hd = 0.5 * dScale * (u[b + 6]! - u[b + 4]!);
+      // First guess: with L4 ~ s - gamma d/2, h(s) = 0 is a quadratic with a closed-form root;
+      // its error is second order in the mismatch, so Newton needs about one step from it.
+      const hi = 1 / Math.sqrt(a3);
+      const ghd = gamma * hd;
+      const disc = a3 + a4 - a3 * a4 * ghd * ghd;
+      let s = disc > 0 ? (a4 * ghd + Math.sqrt(disc)) / (a3 + a4) : sStart;
+      if (!(s > 0 && s < hi)) s = 0.5 * hi;
+      A3[i] = a3;
+      A4[i] = a4;
+      HD[i] = hd;
+      DX[i] = Math.exp(-hd);
+      S[i] = s;
+      LO[i] = 0;
+      HI[i] = hi;
+      ACTIVE[i] = i;
+    }
+    // Unknown s = sqrt(IC3) = ln(1 + e^{v3/2}) on the closed bracket [0, 1/sqrt(a3)]:
+    // h(s) = a3 s^2 + a4 L4^2 - 1 with L4 = ln(1 + e^{v4/2}) = log1p(expm1(s) e^{-d/2}).
+    let active = count;
+    for (let k = 0; k < maxIter && active > 0; k++) {
+      let still = 0;
+      for (let j = 0; j < active; j++) {
+        const i = ACTIVE[j]!;
+        const s = S[i]!;
+        const dexp = DX[i]!;
+        let l4: number;
+        let dl4: number;
+        if (s <= 30) {
+          const em = Math.expm1(s);
+          const ey = em * dexp;
+          l4 = Math.log1p(ey);
+          dl4 = (dexp * (em + 1)) / (1 + ey);
+        } else {
+          // Log domain where expm1(s) would overflow: v4/2 = ln(expm1 s) - d/2.
+          const y = s + Math.log1p(-Math.exp(-s)) - HD[i]!;
+          let g: number;
+          if (y > 0) { const e = Math.exp(-y); l4 = y + Math.log1p(e); g = 1 / (1 + e); }
+          else { const e = Math.exp(y); l4 = Math.log1p(e); g = e / (1 + e); }
+          dl4 = g / -Math.expm1(-s); // dy/ds = 1/(1 - e^{-s})
+        }
+        L4[i] = l4;
+        const a3 = A3[i]!;
+        const a4 = A4[i]!;
+        const h = a3 * s * s + a4 * l4 * l4 - 1;
+        if (Math.abs(h) <= tol) continue;
+        let lo = LO[i]!;
+        let hi = HI[i]!;
+        if (h < 0) lo = s; else hi = s;
+        let next = s - h / (2 * a3 * s + 2 * a4 * l4 * dl4);
+        if (!(next > lo && next < hi)) next = 0.5 * (lo + hi); // bisection guard
+        S[i] = next;
+        LO[i] = lo;
+        HI[i] = hi;
+        ACTIVE[still++] = i;
+      }
+      active = still;
+    }
+    for (let j = 0; j < active; j++) L4[ACTIVE[j]!] = Number.NaN; // not converged: reported as NaN
     let failed = 0;
-    for (let i = 0, j = 0; i < count; i++, j += 8) {
-      const x = offset(u, j);
-      if (x !== x) failed++;
-      out[outBase + i] = x;
+    for (let i = 0, b = 0; i < count; i++, b += 8) {
+      // sqrt(IC1) = s sqrt(a3 I_B/I_S1) and sqrt(IC2) = L4 sqrt(a4 I_B/I_S2) (I2 = I4): the log of
+      // their ratio is ln(s/L4) plus the mismatch exponents, so at most one log call is needed.
+      const s = S[i]!;
+      const l4 = L4[i]!;
+      const z3 = bRL * u[b + 4]! + bSL * u[b + 5]!;
+      const z4 = bRL * u[b + 6]! + bSL * u[b + 7]!;
+      const q1 = 0.5 * (z3 - (bRIn * u[b]! + bSIn * u[b + 1]!));
+      const q2 = 0.5 * (z4 - (bRIn * u[b + 2]! + bSIn * u[b + 3]!));
+      const s1 = s * c0 * Math.exp(q1);
+      const s2 = l4 * c0 * Math.exp(q2);
+      const dv = ekvInverseDifference(s1, s2, s1 <= 1 && s2 <= 1 ? Math.log(s / l4) + q1 - q2 : Number.NaN);
+      const vos = sign * (sVtIn * (u[b]! - u[b + 2]!) + nutIn * dv);
+      // NaN from a failed solve, or a side whose current underflowed to zero (no finite
+      // balance): reported as non-converged, never as a number or +-Infinity.
+      if (vos - vos === 0) out[outBase + i] = vos;
+      else { out[outBase + i] = Number.NaN; failed++; }
     }
     return failed;
+  };
+
+  // Single evaluations (design-point search, tests) go through the same code, so a sample gives
+  // the same bits alone or in a batch.
+  const one = new Float64Array(8);
+  const oneOut = new Float64Array(1);
+  const offset = (u: Float64Array, base: number): number => {
+    for (let j = 0; j < 8; j++) one[j] = u[base + j]!;
+    offsets(one, 1, oneOut, 0);
+    return oneOut[0]!;
   };
 
   // Linearised (DOMAIN.md, Kinget 2005): the load's current ratio m = I4/I3 at equal gates,

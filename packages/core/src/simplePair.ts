@@ -1,5 +1,5 @@
 import type { Design } from './design.js';
-import { normalisedGmOverId } from './ekv.js';
+import { ekvInverseDifference, normalisedGmOverId } from './ekv.js';
 import { deviceConstants, deviceOperatingPoint, deviceVariables, geometryWarnings } from './deviceConstants.js';
 import type { Stage } from './stage.js';
 import { thermalVoltage } from './thermal.js';
@@ -28,19 +28,11 @@ export function compileSimplePair(design: Design, temperatureWarnings: readonly 
 
   const offset = (u: Float64Array, base: number): number => {
     const a = u[base]!;
-    const b = u[base + 1]!;
     const c2 = u[base + 2]!;
-    const d = u[base + 3]!;
-    const s1 = s0 * Math.exp(-0.5 * (bR * a + bS * b));
-    const s2 = s0 * Math.exp(-0.5 * (bR * c2 + bS * d));
-    let dv: number;
-    if (s1 <= 1 && s2 <= 1) {
-      dv = 2 * Math.log(Math.expm1(s1) / Math.expm1(s2));
-    } else {
-      const v1 = s1 > 1 ? 2 * (s1 + Math.log1p(-Math.exp(-s1))) : 2 * Math.log(Math.expm1(s1));
-      const v2 = s2 > 1 ? 2 * (s2 + Math.log1p(-Math.exp(-s2))) : 2 * Math.log(Math.expm1(s2));
-      dv = v1 - v2;
-    }
+    const z1 = bR * a + bS * u[base + 1]!;
+    const z2 = bR * c2 + bS * u[base + 3]!;
+    // ln(s1/s2) = -(z1 - z2)/2 exactly, so weak and moderate inversion need no log call.
+    const dv = ekvInverseDifference(s0 * Math.exp(-0.5 * z1), s0 * Math.exp(-0.5 * z2), -0.5 * (z1 - z2));
     return sign * (sVt * (a - c2) + nut * dv);
   };
 

@@ -158,3 +158,22 @@ describe('EKV identities and properties', () => {
     expect([0.05, 0.1, 10, 10.5].map(inversionRegion)).toEqual(['weak', 'moderate', 'moderate', 'strong']);
   });
 });
+
+describe('series form of ln(expm1(s)/s) used in the hot path', () => {
+  it('equals the direct form on (0, 1] to 2e-16 absolute (Bernoulli series, truncation < 5e-17)', async () => {
+    const { lnExpm1OverS, ekvInverseDifference, ekvInverseOfRoot } = await import('../src/ekv.js');
+    let worst = 0;
+    for (let k = 1; k <= 2000; k++) {
+      const s = k / 2000;
+      // Direct: log(expm1(s)/s) has its own rounding of about 1.1e-16 (two roundings).
+      worst = Math.max(worst, Math.abs(lnExpm1OverS(s) - Math.log(Math.expm1(s) / s)));
+    }
+    expect(worst).toBeLessThan(2e-16 * 2);
+    // The difference form against two direct inverses, in all three branches (1e-13: the
+    // direct forms' own rounding on v up to ~10).
+    for (const [a, b] of [[0.1, 0.3], [0.9, 1.2], [2, 3.5], [1e-6, 0.5]] as const) {
+      const want = ekvInverseOfRoot(a) - ekvInverseOfRoot(b);
+      expect(Math.abs(ekvInverseDifference(a, b, Math.log(a / b)) - want)).toBeLessThan(1e-13);
+    }
+  });
+});

@@ -1,0 +1,89 @@
+import { compileStage, formatQuantity, type Design, type Stage } from '@twinfet/core';
+import { analyticSummary, type AnalyticSummary } from '@twinfet/montecarlo';
+import { renderPairs, renderTable } from '../table.js';
+import { designSummary, pct, sci, shareLabel } from '../describe.js';
+
+/** The inspect report: operating point and the linearised offset picture. */
+export interface InspectReport {
+  readonly design: ReturnType<typeof designSummary>;
+  readonly operatingPoint: Stage['operatingPoint'];
+  readonly analytic: AnalyticSummary;
+  readonly warnings: readonly string[];
+}
+
+/** Builds the inspect report of a design. */
+export function inspectDesign(design: Design): InspectReport {
+  const stage = compileStage(design);
+  return {
+    design: designSummary(design),
+    operatingPoint: stage.operatingPoint,
+    analytic: analyticSummary(stage),
+    warnings: stage.warnings,
+  };
+}
+
+/** The operating-point table (shared by the commands that print it). */
+export function renderOperatingPoint(ops: Stage['operatingPoint']): string {
+  const hasCap = ops.some((o) => o.gateCapacitance !== undefined);
+  const header = ['device', 'role', 'W', 'L', 'I_D', 'IC', 'region', 'gm/I_D', 'V_GS-V_T0', 'W*L', 'sigma dV_T', 'sigma dB/B'];
+  if (hasCap) header.push('C_gate');
+  const rows = ops.map((o) => {
+    const r = [
+      `${o.device} (${o.polarity})`,
+      o.role,
+      formatQuantity(o.w, 'm', 3),
+      formatQuantity(o.l, 'm', 3),
+      formatQuantity(o.current, 'A', 4),
+      sci(o.ic, 3),
+      o.region,
+      `${o.gmOverId.toPrecision(4)} /V`,
+      formatQuantity(o.overdrive, 'V', 3),
+      `${(o.gateArea * 1e12).toPrecision(4)} um^2`,
+      formatQuantity(o.sigmaVt, 'V', 4),
+      pct(o.sigmaBeta, 3),
+    ];
+    if (hasCap) r.push(o.gateCapacitance === undefined ? '-' : formatQuantity(o.gateCapacitance, 'F', 3));
+    return r;
+  });
+  return renderTable(header, rows, header.map((_, c) => (c <= 1 || c === 6 ? 'left' : 'right')));
+}
+
+/** The variance-budget table. */
+export function renderBudget(a: AnalyticSummary): string {
+  const rows = a.grouped.map((g) => [shareLabel(g.role, g.parameter), pct(g.share, 3), formatQuantity(Math.sqrt(g.variance), 'V', 4)]);
+  return renderTable(['contribution', 'share of sigma^2', 'sigma part'], rows);
+}
+
+/** Text form of the inspect report. */
+export function renderInspect(r: InspectReport): string {
+  const a = r.analytic;
+  const g = a.gaussian;
+  const parts = [
+    `${r.design.name}  (${r.design.topology}, ${formatQuantity(r.design.tail, 'A')} tail, ${r.design.temperatureC.toFixed(1)} C)`,
+    '',
+    renderOperatingPoint(r.operatingPoint),
+    '',
+    renderPairs([
+      ['offset sigma (linearised)', formatQuantity(a.sigma, 'V', 4)],
+      ['spec |Vos| <=', `${formatQuantity(g.spec, 'V', 4)}  (${g.sigmaLevel.toFixed(3)} sigma)`],
+      ['Gaussian instance yield', `${yieldText(g.yield)}  (failure ${sci(g.failure, 4)})`],
+      [`Gaussian chip yield (${g.chipInstances} instance${g.chipInstances === 1 ? '' : 's'})`, yieldText(g.chipYield)],
+    ]),
+    '',
+    renderBudget(a),
+  ];
+  for (const w of r.warnings) parts.push(`warning: ${w}`);
+  return parts.join('\n');
+}
+
+/** Decimal places that show a yield's failure part to 3 significant figures (4 to 15). */
+export function yieldDigits(y: number): number {
+  const f = 1 - y;
+  return f <= 0 ? 15 : Math.min(15, Math.max(4, Math.ceil(-Math.log10(f)) + 2));
+}
+
+/** A yield printed with enough nines to see the tail (`digits` to align several). */
+export function yieldText(y: number, digits = yieldDigits(y)): string {
+  if (1 - y <= 0) return '1 (failure below double precision)';
+  return y.toFixed(digits);
+}

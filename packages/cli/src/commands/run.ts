@@ -1,0 +1,196 @@
+import { createWriteStream } from 'node:fs';
+import { formatQuantity, InputError, type Design } from '@twinfet/core';
+import { runMonteCarlo, type RunOutcome, type RunReport } from '@twinfet/montecarlo';
+import type { Command } from 'commander';
+import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
+import { designSummary, pct, sci } from '../describe.js';
+import { loadDesign } from '../designFile.js';
+import { parseCount } from '../options.js';
+import { assertFinite, printJson, type Io } from '../output.js';
+import { histogramSvg } from '../plot.js';
+import { progressBar } from '../progress.js';
+import { renderPairs } from '../table.js';
+import { textHistogram } from '../textHistogram.js';
+import { renderBudget, yieldDigits, yieldText } from './inspect.js';
+import { renderTail } from './tail.js';
+import { writeOutputFile } from '../files.js';
+
+interface RunFlags extends CommonFlags {
+  samples?: string;
+  samplesOut?: string;
+  plot?: string;
+  interval?: string;
+  method?: string;
+}
+
+/** Largest run whose every draw may be written to --samples-out. */
+const SAMPLES_OUT_LIMIT = 2e7;
+
+function parseRunFlags(flags: RunFlags) {
+  const common = readCommon(flags);
+  const samples = flags.samples === undefined ? 100_000 : parseCount(flags.samples, '--samples', 2, 1e12);
+  const interval = flags.interval ?? 'clopper-pearson';
+  if (interval !== 'clopper-pearson' && interval !== 'wilson') {
+    throw new InputError('--interval', `expected clopper-pearson or wilson, got "${interval}"`);
+  }
+  const method = flags.method ?? 'plain';
+  if (method !== 'plain' && method !== 'importance') throw new InputError('--method', `expected plain or importance, got "${method}"`);
+  if (flags.samplesOut !== undefined) {
+    if (!flags.samplesOut.toLowerCase().endsWith('.csv')) throw new InputError('--samples-out', `expected a file name ending in .csv, got "${flags.samplesOut}"`);
+    if (samples > SAMPLES_OUT_LIMIT) throw new InputError('--samples-out', `writing every sample is limited to ${SAMPLES_OUT_LIMIT.toExponential(0)} samples; got ${samples}`);
+  }
+  if (flags.plot !== undefined && !flags.plot.toLowerCase().endsWith('.svg')) {
+    throw new InputError('--plot', `expected a file name ending in .svg, got "${flags.plot}"`);
+  }
+  return { ...common, samples, interval: interval as 'clopper-pearson' | 'wilson', method };
+}
+
+/** Writes every sample's offset and physical mismatch draws as CSV. */
+async function writeSamplesCsv(path: string, design: Design, outcome: RunOutcome): Promise<void> {
+  const { offsets, draws, dimension, variables } = outcome;
+  if (offsets === undefined || draws === undefined) throw new Error('internal: samples were not kept');
+  const header = ['sample', 'offset_V', ...variables.map((v) => (v.parameter === 'vt' ? `${v.device}_dVT_V` : `${v.device}_dbeta_rel`))];
+  const rhos = variables.map((v) => design.process[v.role === 'input' ? design.input.polarity : design.load!.polarity]!.rho);
+  const stream = createWriteStream(path);
+  const done = new Promise<void>((resolve, reject) => {
+    stream.on('error', (e) => reject(new InputError('--samples-out', `cannot write "${path}": ${e.message}`)));
+    stream.on('finish', resolve);
+  });
+  stream.write(`${header.join(',')}\n`);
+  let chunk = '';
+  for (let i = 0; i < offsets.length; i++) {
+    const row: string[] = [String(i), Number.isNaN(offsets[i]!) ? 'NaN' : offsets[i]!.toPrecision(9)];
+    for (let j = 0; j < dimension; j++) {
+      const v = variables[j]!;
+      const u = draws[i * dimension + j]!;
+      if (v.parameter === 'vt') row.push((v.sigma * u).toPrecision(9));
+      else {
+        const rho = rhos[j]!;
+        const z = rho * draws[i * dimension + j - 1]! + Math.sqrt(1 - rho * rho) * u;
+        row.push(Math.expm1(v.sigma * z).toPrecision(9));
+      }
+    }
+    chunk += `${row.join(',')}\n`;
+    if (chunk.length > 1 << 20) {
+      if (!stream.write(chunk)) await new Promise<void>((r) => stream.once('drain', () => r()));
+      chunk = '';
+    }
+  }
+  stream.end(chunk);
+  await done;
+}
+
+/** The histogram plot of a run. */
+export async function runPlot(report: RunReport, title: string): Promise<string> {
+  const h = report.histogram;
+  const half = Math.max(5 * report.offset.sigma, 1.15 * report.yield.spec);
+  const first = Math.max(0, Math.floor((-half - h.lo) / h.binWidth));
+  const last = Math.min(h.counts.length, Math.ceil((half - h.lo) / h.binWidth));
+  const counts = h.counts.slice(first, last);
+  const edges = Array.from({ length: counts.length + 1 }, (_, i) => h.lo + (first + i) * h.binWidth);
+  return histogramSvg({ title, binEdges: edges, counts, samples: report.evaluated, mean: report.offset.mean, sigma: report.offset.sigma, spec: report.yield.spec, subtitle: `seed ${report.seed}` });
+}
+
+const mv = (v: number): string => formatQuantity(v, 'V', 4);
+const range = (iv: readonly [number, number], f: (v: number) => string): string => `[${f(iv[0])}, ${f(iv[1])}]`;
+/** A yield, its interval and the method, printed with one number of decimals. */
+const yieldWithInterval = (y: number, iv: readonly [number, number], c: string): string => {
+  const digits = yieldDigits(Math.min(y, iv[0]) === 1 ? y : Math.max(y, iv[1]));
+  return `${yieldText(y, digits)}   ${c} ${range(iv, (v) => yieldText(v, digits))}`;
+};
+
+/** Text form of the run report. */
+export function renderRun(r: RunReport, design: Design): string {
+  const d = designSummary(design);
+  const c = `${Math.round(r.yield.confidence * 1000) / 10}%`;
+  const q = r.offset.quantiles;
+  const qHead = q.signed.map((x) => `${x.p * 100}%`.padStart(11)).join('');
+  const qRow = (xs: typeof q.signed): string => xs.map((x) => (x.value === null ? 'beyond' : mv(x.value)).padStart(11)).join('');
+  const agree = r.analytic.agreement;
+  const lines = [
+    `${d.name}  (${d.topology} stage, ${formatQuantity(d.tail, 'A')} tail, ${d.temperatureC.toFixed(1)} C)`,
+    `Monte Carlo on the exact model: ${r.evaluated} samples${r.partial ? ' (PARTIAL: interrupted, finished chunks only)' : ''}, seed ${r.seed}, ${r.workers} worker(s), ${r.seconds.toFixed(2)} s, ${sci(r.samplesPerSecond, 3)} samples/s`,
+    '',
+    renderPairs([
+      ['offset mean', `${mv(r.offset.mean)}   ${c} ${range(r.offset.meanInterval, mv)}`],
+      ['offset sigma', `${mv(r.offset.sigma)}   ${c} ${range(r.offset.sigmaInterval, mv)} (chi-square)`],
+      ['linearised sigma', `${mv(r.analytic.sigma)}   Monte Carlo differs by ${pct(agree.relativeDifference, 2)} (${agree.standardErrors.toFixed(1)} standard errors)${agree.consistent ? '' : '  <- more than sampling error allows: the offset is not linear in the mismatch here'}`],
+      ['min / max', `${mv(r.offset.min)} / ${mv(r.offset.max)}`],
+    ]),
+    '',
+    `quantiles (${r.offset.quantileMethod === 'exact' ? 'exact, from every sample' : 'from the histogram, within one bin width'})`,
+    `${'p'.padEnd(8)}${qHead}`,
+    `${'Vos'.padEnd(8)}${qRow(q.signed)}`,
+    `${'|Vos|'.padEnd(8)}${qRow(q.absolute)}`,
+    '',
+    textHistogram(r.histogram, Math.max(4 * r.offset.sigma, 1.1 * r.yield.spec), r.yield.spec),
+    '',
+    renderBudget(r.analytic),
+    '',
+    renderPairs([
+      ['spec |Vos| <=', mv(r.yield.spec)],
+      ['failures', `${r.yield.failures} of ${r.evaluated} (${r.yield.failuresHigh} above +spec, ${r.yield.failuresLow} below -spec)`],
+      ['instance yield', `${yieldWithInterval(r.yield.estimate, r.yield.interval, c)} (${r.yield.method})`],
+      ['Gaussian estimate', `${yieldText(r.analytic.gaussian.yield)}   from the linearised sigma`],
+      [`chip yield (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, yieldWithInterval(r.chip.estimate, r.chip.interval, c)],
+    ]),
+  ];
+  if (r.yield.limitedBySamples) {
+    lines.push(
+      '',
+      `note: only ${r.yield.failures} failure(s) seen: the yield estimate is limited by the sample count. For high-sigma yields use \`twinfet tail\` or \`twinfet run --method importance\`.`,
+    );
+  }
+  if (r.importance !== undefined) lines.push('', 'importance sampling (high-sigma failure probability)', renderTail(r.importance));
+  for (const w of r.warnings) lines.push(`warning: ${w}`);
+  return lines.join('\n');
+}
+
+/** Registers `twinfet run`. */
+export function registerRun(program: Command, io: Io, setExit: (code: number) => void): void {
+  withCommonOptions(
+    program
+      .command('run')
+      .description('Monte Carlo of the offset: distribution, sigma, quantiles, budget, yield with intervals')
+      .argument('<design>', 'design file (YAML or JSON)')
+      .option('--samples <N>', 'samples to draw, e.g. 100000, 1e6, 1_000_000 (default 100000)')
+      .option('--spec <V>', "offset limit overriding the design's spec, e.g. 20mV")
+      .option('--interval <M>', 'yield interval: clopper-pearson (default) or wilson')
+      .option('--method <M>', 'plain (default), or importance to add the high-sigma estimate')
+      .option('--samples-out <FILE.csv>', "write each sample's offset and mismatch draws")
+      .option('--plot <FILE.svg>', 'histogram with the fitted Gaussian and the +-spec lines'),
+  ).action(async (file: string, flags: RunFlags) => {
+    const o = parseRunFlags(flags);
+    const design = await loadDesign(file);
+    const ac = new AbortController();
+    const onSigint = (): void => ac.abort();
+    process.once('SIGINT', onSigint);
+    const bar = progressBar(io, 'run');
+    let outcome: RunOutcome;
+    try {
+      outcome = await runMonteCarlo(design, {
+        samples: o.samples,
+        workers: o.workers,
+        confidence: o.confidence,
+        interval: o.interval,
+        signal: ac.signal,
+        partialOnAbort: true,
+        onProgress: bar.update,
+        keepDraws: flags.samplesOut !== undefined,
+        ...(o.seed === undefined ? {} : { seed: o.seed }),
+        ...(o.spec === undefined ? {} : { spec: o.spec }),
+        ...(o.method === 'importance' ? { importance: true } : {}),
+      });
+    } finally {
+      bar.stop();
+      process.removeListener('SIGINT', onSigint);
+    }
+    const report = outcome.report;
+    assertFinite(report);
+    if (flags.samplesOut !== undefined) await writeSamplesCsv(flags.samplesOut, design, outcome);
+    if (flags.plot !== undefined) await writeOutputFile(flags.plot, '--plot', await runPlot(report, `${design.name}: offset distribution`));
+    if (flags.json === true) printJson(io, report);
+    else io.out(renderRun(report, design));
+    setExit(report.partial ? 130 : 0);
+  });
+}

@@ -1,0 +1,97 @@
+import { formatQuantity, InputError } from '@twinfet/core';
+import { estimateTail, type TailReport } from '@twinfet/montecarlo';
+import type { Command } from 'commander';
+import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
+import { designSummary, sci } from '../describe.js';
+import { loadDesign } from '../designFile.js';
+import { parseCount, parseFraction } from '../options.js';
+import { assertFinite, printJson, type Io } from '../output.js';
+import { progressBar } from '../progress.js';
+import { renderPairs, renderTable } from '../table.js';
+
+interface TailFlags extends CommonFlags {
+  relError?: string;
+  samples?: string;
+}
+
+const sig = (x: number | null): string => (x === null ? 'unbounded' : x.toFixed(3));
+
+/** Text form of a high-sigma estimate (also used inside `run --method importance`). */
+export function renderTail(r: TailReport): string {
+  const c = `${Math.round(r.confidence * 1000) / 10}%`;
+  const pts = r.designPoints.map((p) => {
+    const top = [...p.coordinates].sort((a, b) => Math.abs(b.u) - Math.abs(a.u)).slice(0, 4);
+    return [
+      p.side,
+      p.distance.toFixed(4),
+      sci(p.form, 4),
+      p.method,
+      top.map((t) => `${t.device} ${t.parameter === 'vt' ? `dV_T ${formatQuantity(t.deviation, 'V', 3)}` : `dbeta/beta ${(t.deviation * 100).toPrecision(3)}%`} (${t.u.toFixed(2)} sigma)`).join(', '),
+    ];
+  });
+  return [
+    renderPairs([
+      ['spec |Vos| <=', formatQuantity(r.spec, 'V', 4)],
+      ['failure probability', `${sci(r.failureProbability, 4)}   ${c} [${sci(r.interval[0], 4)}, ${sci(r.interval[1], 4)}]`],
+      ['equivalent sigma level', `${sig(r.sigmaLevel)}   ${c} [${sig(r.sigmaLevelInterval[0])}, ${sig(r.sigmaLevelInterval[1])}] (two-sided)`],
+      ['by side', `+spec ${sci(r.high, 4)}, -spec ${sci(r.low, 4)}`],
+      ['FORM estimate', `${sci(r.form.failureProbability, 4)} (${r.form.sigmaLevel.toFixed(3)} sigma)`],
+      [`chip failure (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, `${sci(r.chip.failure, 4)}   ${c} [${sci(r.chip.interval[0], 4)}, ${sci(r.chip.interval[1], 4)}]`],
+      ['samples', `${r.samples} (${r.hits} failing; stop rule ${r.stopRule}; relative half-width ${r.relativeHalfWidth === null ? 'n/a' : (r.relativeHalfWidth * 100).toFixed(2) + '%'})`],
+      ['figure of merit', `relative variance per sample ${r.relativeVariancePerSample === null ? 'n/a' : r.relativeVariancePerSample.toFixed(2)}; plain Monte Carlo would need ${r.equivalentPlainSamples === null ? 'n/a' : sci(r.equivalentPlainSamples, 3)} samples for the same interval`],
+      ['time', `${r.seconds.toFixed(3)} s, seed ${r.seed}`],
+    ]),
+    '',
+    'most probable failure points (standard-normal space; the largest coordinates)',
+    renderTable(['side', 'distance', 'FORM p', 'found by', 'dominant mismatch'], pts, ['left', 'right', 'right', 'left', 'left']),
+    ...(r.nonConverged > 0 ? [`warning: ${r.nonConverged} sample(s) whose balance solve did not converge were left out`] : []),
+  ].join('\n');
+}
+
+/** Registers `twinfet tail`. */
+export function registerTail(program: Command, io: Io, setExit: (code: number) => void): void {
+  withCommonOptions(
+    program
+      .command('tail')
+      .description('high-sigma failure probability P(|Vos| > spec) by importance sampling about the most probable failure points')
+      .argument('<design>', 'design file (YAML or JSON)')
+      .option('--spec <V>', "offset limit overriding the design's spec, e.g. 20mV")
+      .option('--rel-error <E>', 'stop when the interval half-width is this fraction of the estimate (default 0.05)')
+      .option('--samples <N>', 'a fixed sample count instead of the relative-error rule'),
+  ).action(async (file: string, flags: TailFlags) => {
+    const common = readCommon(flags);
+    if (flags.relError !== undefined && flags.samples !== undefined) {
+      throw new InputError('--rel-error', 'give either --rel-error or --samples, not both');
+    }
+    const relError = flags.relError === undefined ? undefined : parseFraction(flags.relError, '--rel-error', '0.05');
+    const samples = flags.samples === undefined ? undefined : parseCount(flags.samples, '--samples', 100, 1e10);
+    const design = await loadDesign(file);
+    const ac = new AbortController();
+    const onSigint = (): void => ac.abort();
+    process.once('SIGINT', onSigint);
+    const bar = progressBar(io, 'tail');
+    let report: TailReport;
+    try {
+      report = await estimateTail(design, {
+        workers: common.workers,
+        confidence: common.confidence,
+        signal: ac.signal,
+        onProgress: bar.update,
+        ...(common.seed === undefined ? {} : { seed: common.seed }),
+        ...(common.spec === undefined ? {} : { spec: common.spec }),
+        ...(relError === undefined ? {} : { relError }),
+        ...(samples === undefined ? {} : { samples }),
+      });
+    } finally {
+      bar.stop();
+      process.removeListener('SIGINT', onSigint);
+    }
+    assertFinite(report);
+    if (flags.json === true) printJson(io, { design: designSummary(design), ...report });
+    else {
+      const d = designSummary(design);
+      io.out(`${d.name}  (${d.topology} stage, ${formatQuantity(d.tail, 'A')} tail)\nimportance sampling on the exact model\n\n${renderTail(report)}`);
+    }
+    setExit(0);
+  });
+}

@@ -1,0 +1,40 @@
+import { InputError, parseQuantity } from '@twinfet/core';
+import { defaultWorkers } from '@twinfet/montecarlo';
+import type { Command } from 'commander';
+import { parseCount, parseFraction, parseSeed } from './options.js';
+
+/** Options several commands share, as given on the command line. */
+export interface CommonFlags {
+  seed?: string;
+  workers?: string;
+  confidence?: string;
+  json?: boolean;
+  spec?: string;
+}
+
+/** Adds --seed, --workers, --confidence, --json to a command. */
+export function withCommonOptions(c: Command): Command {
+  return c
+    .option('--seed <S>', 'seed of the random streams (default 1; printed so a run can be repeated)')
+    .option('--workers <K>', `worker threads (default ${defaultWorkers()}, this machine's parallelism)`)
+    .option('--confidence <C>', 'confidence level of every interval, e.g. 0.95 or 99% (default 0.95)')
+    .option('--json', 'print one JSON object on stdout instead of the text report');
+}
+
+/** The parsed common options. */
+export function readCommon(flags: CommonFlags): { seed?: string; workers: number; confidence: number; spec?: number } {
+  const out: { seed?: string; workers: number; confidence: number; spec?: number } = {
+    workers: flags.workers === undefined ? defaultWorkers() : parseCount(flags.workers, '--workers', 1, 256),
+    confidence: flags.confidence === undefined ? 0.95 : parseFraction(flags.confidence, '--confidence', '0.95'),
+  };
+  if (flags.seed !== undefined) out.seed = parseSeed(flags.seed);
+  if (flags.spec !== undefined) out.spec = parseSpec(flags.spec);
+  return out;
+}
+
+/** --spec as a voltage ("20mV", "20 mV", or volts). */
+export function parseSpec(text: string): number {
+  const v = parseQuantity(text, 'voltage', '--spec');
+  if (!(v > 0)) throw new InputError('--spec', `expected a positive offset limit such as 20mV, got "${text}"`);
+  return v;
+}

@@ -1,0 +1,74 @@
+import { readFileSync } from 'node:fs';
+import { Command, CommanderError } from 'commander';
+import { isInputError } from '@twinfet/core';
+import { loadDesign } from './designFile.js';
+import { inspectDesign, renderInspect } from './commands/inspect.js';
+import { processIo, printJson, type Io, NonFiniteResultError } from './output.js';
+import { registerRun } from './commands/run.js';
+import { registerTail } from './commands/tail.js';
+
+const version = (JSON.parse(readFileSync(new URL('../package.json', import.meta.url), 'utf8')) as { version: string }).version;
+
+/** Exit codes: 0 done, 1 internal error, 2 bad input, 130 interrupted. */
+export const EXIT = { ok: 0, internal: 1, input: 2, interrupted: 130 } as const;
+
+/** Builds the command tree; `io` receives everything printed. */
+export function buildProgram(io: Io, setExit: (code: number) => void): Command {
+  const program = new Command('twinfet')
+    .description('Mismatch-limited offset and yield of MOS differential pairs (design aid; not a substitute for foundry matching data or sign-off)')
+    .version(version, '-V, --version', 'print the version')
+    .showHelpAfterError(false)
+    .configureOutput({ writeOut: (s) => io.out(s.trimEnd()), writeErr: (s) => io.err(s.trimEnd()) })
+    .exitOverride();
+
+  program
+    .command('inspect')
+    .description('operating point, linearised offset sigma, variance budget and Gaussian yield of a design')
+    .argument('<design>', 'design file (YAML or JSON)')
+    .option('--json', 'print one JSON object instead of tables')
+    .action(async (file: string, opts: { json?: boolean }) => {
+      const report = inspectDesign(await loadDesign(file));
+      if (opts.json === true) printJson(io, report);
+      else io.out(renderInspect(report));
+      setExit(EXIT.ok);
+    });
+
+  registerRun(program, io, setExit);
+  registerTail(program, io, setExit);
+  for (const c of program.commands) c.exitOverride().configureOutput({ writeOut: (s) => io.out(s.trimEnd()), writeErr: (s) => io.err(s.trimEnd()) });
+  return program;
+}
+
+/** One line for any error: input errors name the field; others are internal. */
+export function reportError(io: Io, e: unknown): number {
+  if (isInputError(e)) {
+    io.err(`twinfet: ${e.message}`);
+    return EXIT.input;
+  }
+  if (e instanceof CommanderError) {
+    if (e.exitCode === 0) return EXIT.ok; // --help, --version
+    // commander already printed its own one-line message (e.g. unknown option).
+    return EXIT.input;
+  }
+  if (e instanceof NonFiniteResultError) {
+    io.err(`twinfet: ${e.message}`);
+    return EXIT.internal;
+  }
+  const err = e instanceof Error ? e : new Error(String(e));
+  io.err(`twinfet: internal error: ${err.message}`);
+  if (process.env['TWINFET_DEBUG'] === '1' && err.stack !== undefined) io.err(err.stack);
+  return EXIT.internal;
+}
+
+/** Runs the command line; resolves to the exit code. */
+export async function main(argv: readonly string[], io: Io = processIo): Promise<number> {
+  let code: number = EXIT.ok;
+  const program = buildProgram(io, (c) => (code = c));
+  try {
+    await program.parseAsync([...argv], { from: 'user' });
+  } catch (e) {
+    return reportError(io, e);
+  }
+  return code;
+}
+

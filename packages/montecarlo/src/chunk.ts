@@ -1,0 +1,136 @@
+import { compileStage, type Stage } from '@twinfet/core';
+import type { ChunkResult, ImportanceResult, ImportanceTask, MonteCarloResult, MonteCarloTask, ChunkTask } from './messages.js';
+import { addToHistogram, createHistogram } from './histogram.js';
+import { addBlock, emptyMoments } from './moments.js';
+import { chunkRng } from './stream.js';
+import { fillStandardNormals } from './ziggurat.js';
+
+/** Samples evaluated per inner block: the block's draws stay in cache. */
+const BLOCK = 1024;
+
+/** Runs one chunk of work. Pure: the result depends on the task only. */
+export function runChunk(task: ChunkTask): ChunkResult {
+  const stage = compileStage(task.design);
+  return task.kind === 'montecarlo' ? runMonteCarlo(stage, task) : runImportance(stage, task);
+}
+
+function runMonteCarlo(stage: Stage, task: MonteCarloTask): MonteCarloResult {
+  const dim = stage.dimension;
+  const rng = chunkRng(task.seed, 'montecarlo', task.chunk);
+  const histogram = createHistogram(task.histogram.lo, task.histogram.hi, task.histogram.bins);
+  const spec = task.spec;
+  const offsets = task.keepOffsets ? new Float64Array(task.count) : undefined;
+  const draws = task.keepDraws ? new Float64Array(task.count * dim) : undefined;
+  const blockDraws = new Float64Array(BLOCK * dim);
+  const blockOut = new Float64Array(BLOCK);
+  const moments = emptyMoments();
+  let failuresHigh = 0;
+  let failuresLow = 0;
+  let nonConverged = 0;
+  for (let start = 0; start < task.count; start += BLOCK) {
+    const n = Math.min(BLOCK, task.count - start);
+    const u = draws === undefined ? blockDraws : draws.subarray(start * dim, (start + n) * dim);
+    fillStandardNormals(rng, u, 0, n * dim);
+    const bad = stage.offsets(u, n, blockOut, 0);
+    let m = n;
+    if (bad > 0) {
+      // Compact the converged values to the front; the NaNs are counted, never averaged.
+      nonConverged += bad;
+      m = 0;
+      for (let i = 0; i < n; i++) {
+        const x = blockOut[i]!;
+        if (x === x) blockOut[m++] = x;
+      }
+    }
+    for (let i = 0; i < m; i++) {
+      const x = blockOut[i]!;
+      if (x > spec) failuresHigh++;
+      else if (x < -spec) failuresLow++;
+    }
+    addBlock(moments, blockOut, 0, m);
+    addToHistogram(histogram, blockOut, 0, m);
+    if (offsets !== undefined) {
+      // Kept offsets hold NaN where a solve failed, so rows stay aligned with the draws.
+      offsets.set(blockOut.subarray(0, n), start);
+      if (bad > 0) stage.offsets(u, n, offsets, start);
+    }
+  }
+  return {
+    kind: 'montecarlo',
+    chunk: task.chunk,
+    count: task.count,
+    moments,
+    histogram,
+    failuresHigh,
+    failuresLow,
+    nonConverged,
+    ...(offsets === undefined ? {} : { offsets }),
+    ...(draws === undefined ? {} : { draws }),
+  };
+}
+
+function runImportance(stage: Stage, task: ImportanceTask): ImportanceResult {
+  const dim = stage.dimension;
+  const rng = chunkRng(task.seed, 'importance', task.chunk);
+  const k = task.shifts.length;
+  const shifts = new Float64Array(k * dim);
+  const halfNorms = new Float64Array(k);
+  task.shifts.forEach((s, c) => {
+    let q = 0;
+    for (let j = 0; j < dim; j++) {
+      shifts[c * dim + j] = s[j]!;
+      q += s[j]! * s[j]!;
+    }
+    halfNorms[c] = 0.5 * q;
+  });
+  const logK = Math.log(k);
+  const spec = task.spec;
+  const u = new Float64Array(BLOCK * dim);
+  const out = new Float64Array(BLOCK);
+  const logw = new Float64Array(BLOCK);
+  let sum = 0;
+  let sumSquares = 0;
+  let sumHigh = 0;
+  let sumLow = 0;
+  let hits = 0;
+  let nonConverged = 0;
+  for (let start = 0; start < task.count; start += BLOCK) {
+    const n = Math.min(BLOCK, task.count - start);
+    fillStandardNormals(rng, u, 0, n * dim);
+    for (let i = 0; i < n; i++) {
+      // Pick a centre, shift the draw, and weigh by phi(u) / q(u) with
+      // q = (1/k) sum_c phi(u - mu_c): log w = log k - logsumexp_c(mu_c . u - |mu_c|^2 / 2).
+      const c = Math.min(k - 1, Math.floor(rng.double() * k));
+      const base = i * dim;
+      for (let j = 0; j < dim; j++) u[base + j]! += shifts[c * dim + j]!;
+      let best = -Infinity;
+      for (let cc = 0; cc < k; cc++) {
+        let dot = 0;
+        for (let j = 0; j < dim; j++) dot += shifts[cc * dim + j]! * u[base + j]!;
+        const a = dot - halfNorms[cc]!;
+        if (a > best) best = a;
+      }
+      let acc = 0;
+      for (let cc = 0; cc < k; cc++) {
+        let dot = 0;
+        for (let j = 0; j < dim; j++) dot += shifts[cc * dim + j]! * u[base + j]!;
+        acc += Math.exp(dot - halfNorms[cc]! - best);
+      }
+      logw[i] = logK - best - Math.log(acc);
+    }
+    nonConverged += stage.offsets(u, n, out, 0);
+    for (let i = 0; i < n; i++) {
+      const x = out[i]!;
+      if (x !== x) continue;
+      if (x > spec || x < -spec) {
+        const w = Math.exp(logw[i]!);
+        hits++;
+        sum += w;
+        sumSquares += w * w;
+        if (x > spec) sumHigh += w;
+        else sumLow += w;
+      }
+    }
+  }
+  return { kind: 'importance', chunk: task.chunk, count: task.count, sum, sumSquares, sumHigh, sumLow, hits, nonConverged };
+}

@@ -1,0 +1,119 @@
+import type { Stage } from '@twinfet/core';
+import { normalUpperTail } from './normal.js';
+
+/** The most probable failure point of one side (Vos = +spec or Vos = -spec). */
+export interface DesignPoint {
+  /** +1 for the Vos = +spec side, -1 for -spec. */
+  readonly side: 1 | -1;
+  /** Coordinates in standard-normal space, one per stage variable. */
+  readonly u: readonly number[];
+  /** |u|: the FORM reliability index (sigma distance). */
+  readonly distance: number;
+  /** FORM estimate of this side's failure probability, Phi(-distance). */
+  readonly form: number;
+  /** 'hl-rf' when the HL-RF iteration converged, 'line-search' when the fallback was used. */
+  readonly method: 'hl-rf' | 'line-search';
+  readonly iterations: number;
+  /** Vos at the point, volts (equals side * spec to the solve tolerance). */
+  readonly offset: number;
+}
+
+const FD_STEP = 1e-5;
+
+function gradient(stage: Stage, u: Float64Array, out: Float64Array, scratch: Float64Array): void {
+  for (let j = 0; j < u.length; j++) {
+    scratch.set(u);
+    scratch[j] = u[j]! + FD_STEP;
+    const up = stage.offset(scratch, 0);
+    scratch[j] = u[j]! - FD_STEP;
+    const dn = stage.offset(scratch, 0);
+    out[j] = (up - dn) / (2 * FD_STEP);
+  }
+}
+
+function norm(u: Float64Array): number {
+  let s = 0;
+  for (const x of u) s += x * x;
+  return Math.sqrt(s);
+}
+
+/**
+ * Finds u* = argmin |u| subject to Vos(u) = target on the exact model.
+ * HL-RF iteration (Hasofer & Lind, J. Eng. Mech. Div. ASCE 100, 1974; Rackwitz & Fiessler,
+ * Computers & Structures 9, 1978) from the linearised direction, with step halving when the
+ * constraint residual grows; if it does not settle, a line search along the linearised
+ * direction finds a boundary point instead (reported as such).
+ */
+export function findDesignPoint(stage: Stage, target: number): DesignPoint {
+  const dim = stage.dimension;
+  const s = stage.sensitivities;
+  let s2 = 0;
+  for (const x of s) s2 += x * x;
+  const u = new Float64Array(dim);
+  for (let j = 0; j < dim; j++) u[j] = (target * s[j]!) / s2;
+  const g = new Float64Array(dim);
+  const scratch = new Float64Array(dim);
+  const next = new Float64Array(dim);
+  const tol = 1e-9 * Math.abs(target);
+  let converged = false;
+  let k = 0;
+  for (; k < 200; k++) {
+    const v = stage.offset(u, 0);
+    if (!Number.isFinite(v)) break;
+    gradient(stage, u, g, scratch);
+    let gg = 0;
+    let gu = 0;
+    for (let j = 0; j < dim; j++) {
+      gg += g[j]! * g[j]!;
+      gu += g[j]! * u[j]!;
+    }
+    if (!(gg > 0)) break;
+    // HL-RF update: the point of the linearised boundary closest to the origin.
+    const c = (gu - (v - target)) / gg;
+    let step = 1;
+    for (let half = 0; half < 60; half++) {
+      for (let j = 0; j < dim; j++) next[j] = u[j]! + step * (c * g[j]! - u[j]!);
+      if (Number.isFinite(stage.offset(next, 0))) break;
+      step *= 0.5; // only where the full step leaves the model's finite range
+    }
+    let delta = 0;
+    for (let j = 0; j < dim; j++) {
+      delta += (next[j]! - u[j]!) ** 2;
+      u[j] = next[j]!;
+    }
+    const moved = Math.sqrt(delta);
+    if (moved < 1e-9 * Math.max(1, norm(u)) && Math.abs(stage.offset(u, 0) - target) <= tol) {
+      converged = true;
+      break;
+    }
+  }
+  let method: DesignPoint['method'] = 'hl-rf';
+  if (!converged) {
+    method = 'line-search';
+    lineSearch(stage, target, u);
+  }
+  const distance = norm(u);
+  return { side: target > 0 ? 1 : -1, u: Array.from(u), distance, form: normalUpperTail(distance), method, iterations: k, offset: stage.offset(u, 0) };
+}
+
+/** Fallback: along the linearised direction, bisect Vos(r d) = target for r. */
+function lineSearch(stage: Stage, target: number, u: Float64Array): void {
+  const dim = stage.dimension;
+  const s = stage.sensitivities;
+  const n = norm(Float64Array.from(s));
+  const d = new Float64Array(dim);
+  for (let j = 0; j < dim; j++) d[j] = (Math.sign(target) * s[j]!) / n;
+  const at = (r: number): number => {
+    for (let j = 0; j < dim; j++) u[j] = r * d[j]!;
+    return Math.sign(target) * (stage.offset(u, 0) - target);
+  };
+  let lo = 0;
+  let hi = 1;
+  while (at(hi) < 0 && hi < 64) hi *= 2;
+  for (let i = 0; i < 200 && hi - lo > 1e-12 * hi; i++) {
+    const mid = 0.5 * (lo + hi);
+    if (at(mid) < 0) lo = mid;
+    else hi = mid;
+  }
+  at(hi);
+}

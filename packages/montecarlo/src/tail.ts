@@ -1,0 +1,223 @@
+import { compileStage, InputError, type Design, type Stage } from '@twinfet/core';
+import { findDesignPoint, type DesignPoint } from './designPoint.js';
+import type { ImportanceResult, ImportanceTask } from './messages.js';
+import { normalQuantile, sigmaLevel } from './normal.js';
+import { createExecutor, defaultWorkers, type Executor } from './pool.js';
+import { runChunks } from './schedule.js';
+import { seedText } from './seed.js';
+import { chipFailure } from './yield.js';
+
+/** Importance-sampling chunk size: small, so the stop rule can act after a few thousand samples. */
+export const IMPORTANCE_CHUNK = 4096;
+
+/** Options of `estimateTail`. */
+export interface TailOptions {
+  /** |Vos| limit, volts (default: the design's spec). */
+  readonly spec?: number;
+  readonly seed?: string | number;
+  /** Stop when the interval's half-width is at most this fraction of the estimate (default 0.05). */
+  readonly relError?: number;
+  /** Fixed sample count instead of the relative-error rule. */
+  readonly samples?: number;
+  /** Upper bound on samples under the relative-error rule (default 1e7). */
+  readonly maxSamples?: number;
+  /** Confidence level of the interval (default 0.95). */
+  readonly confidence?: number;
+  readonly workers?: number;
+  readonly executor?: Executor;
+  readonly signal?: AbortSignal;
+  readonly onProgress?: (done: number, total: number) => void;
+}
+
+/** A design point as reported: its distance and coordinates by device and parameter. */
+export interface ReportedDesignPoint {
+  readonly side: '+spec' | '-spec';
+  readonly distance: number;
+  readonly form: number;
+  readonly method: DesignPoint['method'];
+  readonly offset: number;
+  readonly coordinates: readonly {
+    device: string;
+    role: string;
+    parameter: string;
+    /** Standard-normal coordinate (sigmas). */
+    u: number;
+    /** The physical deviation: dV_T in volts, or dbeta/beta as a fraction. */
+    deviation: number;
+  }[];
+}
+
+/** The high-sigma failure estimate. */
+export interface TailReport {
+  readonly spec: number;
+  readonly failureProbability: number;
+  readonly standardError: number;
+  readonly interval: readonly [number, number];
+  readonly confidence: number;
+  /** Equivalent two-sided sigma level Phi^-1(1 - p/2), and at the interval ends. */
+  readonly sigmaLevel: number | null;
+  /** Sigma levels at the interval ends (null where that end is 0: unbounded). */
+  readonly sigmaLevelInterval: readonly [number | null, number | null];
+  /** z * SE / p (null when no failure was seen). */
+  readonly relativeHalfWidth: number | null;
+  /** Failure probability split by side. */
+  readonly high: number;
+  readonly low: number;
+  readonly samples: number;
+  readonly hits: number;
+  readonly nonConverged: number;
+  readonly seed: string;
+  readonly stopRule: 'relative-error' | 'samples' | 'max-samples';
+  /** Relative variance per sample, var(w 1{fail}) / p^2: the figure of merit. */
+  readonly relativeVariancePerSample: number | null;
+  /** Plain Monte Carlo samples for the same relative half-width h: z^2 (1 - p) / (p h^2). */
+  readonly equivalentPlainSamples: number | null;
+  readonly designPoints: readonly ReportedDesignPoint[];
+  readonly form: { readonly failureProbability: number; readonly sigmaLevel: number };
+  readonly chip: { readonly instances: number; readonly failure: number; readonly interval: readonly [number, number] };
+  readonly seconds: number;
+}
+
+function describePoint(stage: Stage, p: DesignPoint): ReportedDesignPoint {
+  return {
+    side: p.side > 0 ? '+spec' : '-spec',
+    distance: p.distance,
+    form: p.form,
+    method: p.method,
+    offset: p.offset,
+    coordinates: stage.variables.map((v, j) => {
+      const uj = p.u[j]!;
+      let deviation: number;
+      if (v.parameter === 'vt') deviation = v.sigma * uj;
+      else {
+        // Log-normal current factor with the correlated part: z = rho u_vt + sqrt(1 - rho^2) u_beta.
+        const proc = stage.design.process[stage.operatingPoint[Math.floor(j / 2)]!.polarity]!;
+        const z = proc.rho * p.u[j - 1]! + Math.sqrt(1 - proc.rho * proc.rho) * uj;
+        deviation = Math.expm1(v.sigma * z);
+      }
+      return { device: v.device, role: v.role, parameter: v.parameter, u: uj, deviation };
+    }),
+  };
+}
+
+function check(o: TailOptions): void {
+  if (o.relError !== undefined && !(o.relError > 0 && o.relError < 1)) {
+    throw new InputError('relError', `expected a fraction between 0 and 1 such as 0.05, got ${o.relError}`);
+  }
+  if (o.samples !== undefined && !(Number.isInteger(o.samples) && o.samples >= 100 && o.samples <= 1e10)) {
+    throw new InputError('samples', `expected a whole number from 100 to 1e10, got ${o.samples}`);
+  }
+  if (o.confidence !== undefined && !(o.confidence > 0 && o.confidence < 1)) {
+    throw new InputError('confidence', `expected a level between 0 and 1 such as 0.95, got ${o.confidence}`);
+  }
+  if (o.spec !== undefined && !(Number.isFinite(o.spec) && o.spec > 0)) {
+    throw new InputError('spec', `expected a positive offset limit in volts, got ${o.spec}`);
+  }
+}
+
+/**
+ * Probability that |Vos| exceeds the spec, by mean-shift importance sampling on the exact model:
+ * the design points u*+ and u*- (FORM), then samples from the equal mixture of N(u*+, I) and
+ * N(u*-, I), weight phi(u)/q(u). Stops when the interval's relative half-width reaches
+ * `relError`, or after `samples`. Deterministic for a seed: rounds are fixed sets of chunks.
+ */
+export async function estimateTail(design: Design, options: TailOptions = {}): Promise<TailReport> {
+  check(options);
+  const started = performance.now();
+  const stage = compileStage(design);
+  const spec = options.spec ?? design.spec.offset;
+  const confidence = options.confidence ?? 0.95;
+  const relError = options.relError ?? 0.05;
+  const seed = seedText(options.seed);
+  const z = normalQuantile(1 - (1 - confidence) / 2);
+  const points = [findDesignPoint(stage, spec), findDesignPoint(stage, -spec)];
+  const fixed = options.samples;
+  const maxSamples = fixed ?? options.maxSamples ?? 1e7;
+
+  const executor = options.executor ?? createExecutor(options.workers ?? defaultWorkers());
+  let n = 0;
+  let sum = 0;
+  let sumSquares = 0;
+  let sumHigh = 0;
+  let sumLow = 0;
+  let hits = 0;
+  let nonConverged = 0;
+  let chunk = 0;
+  let stopRule: TailReport['stopRule'] = fixed === undefined ? 'relative-error' : 'samples';
+  const consume = (r: ImportanceResult): void => {
+    n += r.count;
+    sum += r.sum;
+    sumSquares += r.sumSquares;
+    sumHigh += r.sumHigh;
+    sumLow += r.sumLow;
+    hits += r.hits;
+    nonConverged += r.nonConverged;
+  };
+  const stats = () => {
+    const p = sum / n;
+    const variance = Math.max(0, sumSquares / n - p * p);
+    return { p, se: Math.sqrt(variance / n), variance };
+  };
+  try {
+    let round = 1;
+    for (;;) {
+      const remaining = maxSamples - n;
+      if (remaining <= 0) break;
+      // Round sizes double (1, 2, 4, ... chunks), capped, so that a run stops near the sample
+      // count it needs; the schedule depends only on the results so far, never on timing.
+      const tasks: ImportanceTask[] = [];
+      let planned = 0;
+      for (let c = 0; c < round && planned < remaining; c++) {
+        const count = Math.min(IMPORTANCE_CHUNK, remaining - planned);
+        tasks.push({ kind: 'importance', design, seed, chunk: chunk++, count, spec, shifts: points.map((p) => p.u) });
+        planned += count;
+      }
+      await runChunks(executor, tasks, (r) => consume(r as ImportanceResult), {
+        signal: options.signal,
+        onProgress: options.onProgress === undefined ? undefined : (d) => options.onProgress!(n + d, maxSamples),
+      });
+      if (fixed === undefined) {
+        const { p, se } = stats();
+        if (p > 0 && hits >= 10 && (z * se) / p <= relError) break;
+      }
+      if (n >= maxSamples && fixed === undefined) stopRule = 'max-samples';
+      round = Math.min(round * 2, 64);
+    }
+  } finally {
+    if (options.executor === undefined) await executor.close();
+  }
+  const { p, se, variance } = stats();
+  const lo = Math.max(0, p - z * se);
+  const hi = Math.min(1, p + z * se);
+  const formP = points[0]!.form + points[1]!.form;
+  const instances = design.spec.instances;
+  const has = p > 0;
+  const relHalf = has ? (z * se) / p : null;
+  return {
+    spec,
+    failureProbability: p,
+    standardError: se,
+    interval: [lo, hi],
+    confidence,
+    sigmaLevel: has ? sigmaLevel(p) : null,
+    sigmaLevelInterval: [hi > 0 ? sigmaLevel(hi) : null, lo > 0 ? sigmaLevel(lo) : null],
+    relativeHalfWidth: relHalf,
+    high: sumHigh / n,
+    low: sumLow / n,
+    samples: n,
+    hits,
+    nonConverged,
+    seed,
+    stopRule,
+    relativeVariancePerSample: has ? variance / (p * p) : null,
+    equivalentPlainSamples: relHalf !== null && relHalf > 0 ? (z * z * (1 - p)) / (p * relHalf * relHalf) : null,
+    designPoints: points.map((pt) => describePoint(stage, pt)),
+    form: { failureProbability: formP, sigmaLevel: sigmaLevel(formP) },
+    chip: {
+      instances,
+      failure: chipFailure(p, instances),
+      interval: [chipFailure(lo, instances), chipFailure(hi, instances)],
+    },
+    seconds: (performance.now() - started) / 1000,
+  };
+}

@@ -1,0 +1,37 @@
+import type { Design } from '@twinfet/core';
+
+/** Invented demo process for tests (not foundry data). */
+export const testProcess = {
+  n: { vt0: 0.45, slope: 1.3, kp: 300e-6, avt: 5e-9, abeta: 1e-8, rho: 0 },
+  p: { vt0: 0.5, slope: 1.35, kp: 90e-6, avt: 6.5e-9, abeta: 1.2e-8, rho: 0 },
+} as const;
+
+/** A large simple pair: sigma(dbeta/beta) of 0.16%, so the offset is linear to well under 1%. */
+export const bigSimple: Design = {
+  name: 'big simple pair (invented)',
+  temperature: 300,
+  topology: 'simple',
+  tail: 20e-6,
+  input: { polarity: 'n', w: 20e-6, l: 2e-6 },
+  process: testProcess,
+  spec: { offset: 2e-3, instances: 1 },
+};
+
+/** A large mirror stage, same idea. */
+export const bigMirror: Design = {
+  name: 'big mirror stage (invented)',
+  temperature: 300,
+  topology: 'mirror',
+  tail: 20e-6,
+  input: { polarity: 'n', w: 20e-6, l: 2e-6 },
+  load: { polarity: 'p', w: 10e-6, l: 4e-6 },
+  process: testProcess,
+  spec: { offset: 2e-3, instances: 4 },
+};
+
+/** A simple pair whose offset is the V_T difference plus a negligible beta term: linear. */
+export const linearSimple: Design = {
+  ...bigSimple,
+  name: 'linear simple pair (invented)',
+  process: { n: { ...testProcess.n, abeta: 1e-12 } },
+};

@@ -1,0 +1,78 @@
+import { compileStage, linearisedSigma, type Design } from '@twinfet/core';
+import { describe, expect, it } from 'vitest';
+import { findDesignPoint } from '../src/designPoint.js';
+import { normalUpperTail, twoSidedTail } from '../src/normal.js';
+import { createExecutor } from '../src/pool.js';
+import { simulate } from '../src/simulate.js';
+import { estimateTail } from '../src/tail.js';
+import { bigMirror, linearSimple } from './designs.js';
+
+const sigmaLin = linearisedSigma(compileStage(linearSimple));
+const at = (k: number): Design => ({ ...linearSimple, spec: { offset: k * sigmaLin, instances: 1 } });
+
+describe('design points (FORM)', () => {
+  it('for a linear offset the design point is at distance spec/sigma along the sensitivities', () => {
+    const st = compileStage(at(5));
+    for (const side of [1, -1]) {
+      const p = findDesignPoint(st, side * 5 * sigmaLin);
+      expect(p.method).toBe('hl-rf');
+      // Linear boundary: beta = spec/sigma exactly (Hasofer & Lind 1974); solve tolerance 1e-9.
+      expect(Math.abs(p.distance - 5)).toBeLessThan(1e-6);
+      expect(Math.abs(p.offset - side * 5 * sigmaLin)).toBeLessThan(1e-9 * 5 * sigmaLin);
+    }
+  });
+  it('on the mirror stage the point lies on the exact boundary and FORM is near the Gaussian', () => {
+    const st = compileStage(bigMirror);
+    const spec = 5 * linearisedSigma(st);
+    const p = findDesignPoint(st, spec);
+    expect(Math.abs(p.offset - spec)).toBeLessThan(1e-9 * spec);
+    // Small mismatch: the boundary is close to linear, so the distance is within 2% of 5.
+    expect(Math.abs(p.distance - 5)).toBeLessThan(0.1);
+  });
+});
+
+describe('importance sampling against the Gaussian closed form (DOMAIN.md)', () => {
+  const executor = createExecutor(1);
+  it.each([4, 5, 6, 7])('at %i sigma the estimate matches 2 Phi(-k) within its 99.9 percent interval', async (k) => {
+    const r = await estimateTail(at(k), { seed: `is-${k}`, executor, confidence: 0.999, relError: 0.05 });
+    const truth = twoSidedTail(k);
+    expect(truth).toBeGreaterThanOrEqual(r.interval[0]);
+    expect(truth).toBeLessThanOrEqual(r.interval[1]);
+    expect(r.relativeHalfWidth!).toBeLessThanOrEqual(0.05);
+    expect(r.designPoints.map((d) => d.side)).toEqual(['+spec', '-spec']);
+    // Two sides of a symmetric boundary: FORM gives 2 Phi(-k) exactly for a linear offset.
+    expect(Math.abs(r.form.failureProbability / truth - 1)).toBeLessThan(1e-5);
+    expect(Math.abs(r.sigmaLevel! - k)).toBeLessThan(0.05);
+  });
+
+  it.each([4, 5, 6, 7])('relative variance per sample at %i sigma matches exp(b^2) Phi(-2b)/Phi(-b)^2 - 1 within 15 percent', async (k) => {
+    const r = await estimateTail(at(k), { seed: `rv-${k}`, executor, samples: 200_000 });
+    const want = (Math.exp(k * k) * normalUpperTail(2 * k)) / normalUpperTail(k) ** 2 - 1;
+    // DOMAIN.md values 4.51, 5.68, 6.87, 8.08: the formula computed here must reproduce them.
+    expect(Math.abs(want - { 4: 4.51, 5: 5.68, 6: 6.87, 7: 8.08 }[k]!)).toBeLessThan(0.01);
+    expect(Math.abs(r.relativeVariancePerSample! / want - 1)).toBeLessThan(0.15);
+  });
+
+  it('at about 3.5 sigma it agrees with plain Monte Carlo within the two intervals', async () => {
+    const design = { ...bigMirror, spec: { offset: 3.5 * linearisedSigma(compileStage(bigMirror)), instances: 1 } };
+    const is = await estimateTail(design, { seed: 'x', executor, relError: 0.03 });
+    const mc = await simulate(design, { samples: 2_000_000, seed: 'x', executor, keepOffsets: false });
+    const [a, b] = is.interval;
+    const [c, d] = mc.yield.failure.interval;
+    expect(Math.max(a, c)).toBeLessThanOrEqual(Math.min(b, d)); // the intervals overlap
+    await executor.close();
+  });
+
+  it('chip failure for M instances is 1 - (1 - p)^M', async () => {
+    const d = { ...at(6), spec: { offset: 6 * sigmaLin, instances: 1000 } };
+    const r = await estimateTail(d, { seed: 'chip', workers: 1 });
+    // Identity to rounding (expm1/log1p forms): 1e-12 relative.
+    expect(Math.abs(r.chip.failure / -Math.expm1(1000 * Math.log1p(-r.failureProbability)) - 1)).toBeLessThan(1e-12);
+  });
+
+  it('refuses bad options naming the field', async () => {
+    await expect(estimateTail(at(5), { relError: 0 })).rejects.toThrow(/^relError: /);
+    await expect(estimateTail(at(5), { samples: 5 })).rejects.toThrow(/^samples: /);
+    await expect(estimateTail(at(5), { spec: -1 })).rejects.toThrow(/^spec: /);
+  });
+});
