@@ -8,9 +8,27 @@ import { fillStandardNormals } from './ziggurat.js';
 /** Samples evaluated per inner block: the block's draws stay in cache. */
 const BLOCK = 1024;
 
+/**
+ * Compiled stages by design, per thread: a stage holds only constants and scratch space, so
+ * reusing it changes no result, and its hot functions stay warm across chunks.
+ */
+const stages = new Map<string, Stage>();
+const STAGE_CACHE_LIMIT = 16;
+
+function stageFor(design: ChunkTask['design']): Stage {
+  const key = JSON.stringify(design);
+  let stage = stages.get(key);
+  if (stage === undefined) {
+    stage = compileStage(design);
+    if (stages.size >= STAGE_CACHE_LIMIT) stages.delete(stages.keys().next().value!);
+    stages.set(key, stage);
+  }
+  return stage;
+}
+
 /** Runs one chunk of work. Pure: the result depends on the task only. */
 export function runChunk(task: ChunkTask): ChunkResult {
-  const stage = compileStage(task.design);
+  const stage = stageFor(task.design);
   return task.kind === 'montecarlo' ? runMonteCarlo(stage, task) : runImportance(stage, task);
 }
 

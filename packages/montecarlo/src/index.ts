@@ -16,3 +16,4 @@ export * from './tail.js';
 export * from './wilson.js';
 export * from './yield.js';
 export * from './ziggurat.js';
+export { runChunk } from './chunk.js';

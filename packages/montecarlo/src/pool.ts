@@ -80,7 +80,9 @@ export function poolExecutor(workers: number): Executor {
     minThreads: workers,
     maxThreads: workers,
     idleTimeout: 60_000,
-    ...(fromSource ? { execArgv: ['--import', 'tsx'] } : {}),
+    // Built workers need none of the parent's flags (a loader such as tsx would only slow
+    // their start); from sources they need tsx to load TypeScript.
+    execArgv: fromSource ? ['--import', 'tsx'] : [],
   });
   let closed = false;
   return {

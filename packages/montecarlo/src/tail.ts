@@ -2,13 +2,15 @@ import { compileStage, InputError, type Design, type Stage } from '@twinfet/core
 import { findDesignPoint, type DesignPoint } from './designPoint.js';
 import type { ImportanceResult, ImportanceTask } from './messages.js';
 import { normalQuantile, sigmaLevel } from './normal.js';
-import { createExecutor, defaultWorkers, type Executor } from './pool.js';
+import { createExecutor, defaultWorkers, inThreadExecutor, type Executor } from './pool.js';
 import { runChunks } from './schedule.js';
 import { seedText } from './seed.js';
 import { chipFailure } from './yield.js';
 
 /** Importance-sampling chunk size: small, so the stop rule can act after a few thousand samples. */
 export const IMPORTANCE_CHUNK = 4096;
+/** Remaining samples above which a worker pool is worth its start-up (~0.15 s). */
+export const POOL_THRESHOLD = 200_000;
 
 /** Options of `estimateTail`. */
 export interface TailOptions {
@@ -134,7 +136,11 @@ export async function estimateTail(design: Design, options: TailOptions = {}): P
   const fixed = options.samples;
   const maxSamples = fixed ?? options.maxSamples ?? 1e7;
 
-  const executor = options.executor ?? createExecutor(options.workers ?? defaultWorkers());
+  // Most high-sigma estimates need only a few thousand samples: start in this thread and open a
+  // worker pool only when the first round shows the job is big (the numbers do not depend on it).
+  const ownExecutor = options.executor === undefined;
+  let executor: Executor = options.executor ?? inThreadExecutor();
+  const wantedWorkers = options.workers ?? defaultWorkers();
   let n = 0;
   let sum = 0;
   let sumSquares = 0;
@@ -176,15 +182,18 @@ export async function estimateTail(design: Design, options: TailOptions = {}): P
         signal: options.signal,
         onProgress: options.onProgress === undefined ? undefined : (d) => options.onProgress!(n + d, maxSamples),
       });
-      if (fixed === undefined) {
-        const { p, se } = stats();
-        if (p > 0 && hits >= 10 && (z * se) / p <= relError) break;
+      const { p, se, variance } = stats();
+      if (fixed === undefined && p > 0 && hits >= 10 && (z * se) / p <= relError) break;
+      if (ownExecutor && executor.threads === 0 && wantedWorkers > 1) {
+        // Samples still needed: fixed count, or (z/E)^2 relVar from the estimate so far.
+        const need = fixed ?? (p > 0 ? ((z / relError) ** 2 * variance) / (p * p) : maxSamples);
+        if (need - n > POOL_THRESHOLD) executor = createExecutor(wantedWorkers);
       }
       if (n >= maxSamples && fixed === undefined) stopRule = 'max-samples';
       round = Math.min(round * 2, 64);
     }
   } finally {
-    if (options.executor === undefined) await executor.close();
+    if (ownExecutor) await executor.close();
   }
   const { p, se, variance } = stats();
   const lo = Math.max(0, p - z * se);

@@ -7,7 +7,6 @@ import { designSummary, pct, sci } from '../describe.js';
 import { loadDesign } from '../designFile.js';
 import { parseCount } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
-import { histogramSvg } from '../plot.js';
 import { progressBar } from '../progress.js';
 import { renderPairs } from '../table.js';
 import { textHistogram } from '../textHistogram.js';
@@ -82,6 +81,8 @@ async function writeSamplesCsv(path: string, design: Design, outcome: RunOutcome
 
 /** The histogram plot of a run. */
 export async function runPlot(report: RunReport, title: string): Promise<string> {
+  // Loaded on demand: the plotting library takes ~200 ms to import, which other runs should not pay.
+  const { histogramSvg } = await import('../plot.js');
   const h = report.histogram;
   const half = Math.max(5 * report.offset.sigma, 1.15 * report.yield.spec);
   const first = Math.max(0, Math.floor((-half - h.lo) / h.binWidth));

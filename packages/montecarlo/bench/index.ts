@@ -1,0 +1,91 @@
+/**
+ * Speed and memory benchmark (`pnpm bench`): ns/sample of the chunk function in one thread,
+ * samples/s of whole runs with 1 and with all workers, peak memory of a 1e8-sample run that
+ * keeps no samples, and the wall time of a 6-sigma high-sigma estimate through the CLI.
+ * It prints figures; it asserts nothing (targets are checked by reading them).
+ */
+import { execFileSync } from 'node:child_process';
+import { availableParallelism } from 'node:os';
+import { fileURLToPath } from 'node:url';
+import { compileStage, linearisedSigma, type Design } from '@twinfet/core';
+import { defaultWorkers, runChunk, simulate } from '@twinfet/montecarlo';
+import { loadDesign } from '../../cli/dist/designFile.js';
+
+const root = fileURLToPath(new URL('../../../', import.meta.url));
+const examples = ['weak-inversion-wta', 'sense-amp-pmos', 'comparator-demo'];
+const quick = process.argv.includes('--quick');
+
+function chunkNs(design: Design): number {
+  const task = {
+    kind: 'montecarlo' as const,
+    design,
+    seed: 'bench',
+    chunk: 0,
+    count: 65_536,
+    spec: design.spec.offset,
+    histogram: { lo: -0.1, hi: 0.1, bins: 2000 },
+    keepOffsets: false,
+    keepDraws: false,
+  };
+  for (let i = 0; i < 5; i++) runChunk({ ...task, chunk: 1000 + i }); // warm-up: let the JIT settle
+  const reps = quick ? 10 : 40;
+  const t = performance.now();
+  for (let i = 0; i < reps; i++) runChunk({ ...task, chunk: i });
+  return ((performance.now() - t) * 1e6) / (reps * task.count);
+}
+
+async function runNs(design: Design, workers: number, samples: number): Promise<number> {
+  await simulate(design, { samples: 131_072, workers, keepOffsets: false }); // warm-up
+  const t = performance.now();
+  await simulate(design, { samples, workers, keepOffsets: false, seed: 'bench' });
+  return ((performance.now() - t) * 1e6) / samples;
+}
+
+const line = (cells: (string | number)[]): string => cells.map((c, i) => String(c).padStart(i === 0 ? 20 : 12)).join('');
+
+console.log(`twinfet benchmark  node ${process.version}, ${availableParallelism()} cores, ${defaultWorkers()} workers by default${quick ? ' (quick)' : ''}`);
+console.log('');
+console.log(line(['design', 'topology', 'chunk ns', 'run 1w ns', 'run all ns', 'speed-up', 'samples/s']));
+const runSamples = quick ? 1_000_000 : 4_000_000;
+for (const name of examples) {
+  const design = await loadDesign(`${root}examples/${name}.yaml`);
+  const c = chunkNs(design);
+  const one = await runNs(design, 1, runSamples);
+  const all = await runNs(design, defaultWorkers(), runSamples);
+  console.log(line([name, design.topology, c.toFixed(1), one.toFixed(1), all.toFixed(1), `${(one / all).toFixed(2)}x`, (1e9 / all).toExponential(2)]));
+}
+console.log('  chunk ns: one 65536-sample chunk in this thread (draws, exact offsets, statistics).');
+console.log(`  run ns: wall time of simulate() over ${runSamples} samples per sample, pool start-up included.`);
+
+// Peak memory of a long run that keeps no samples: it must stay flat in the sample count.
+{
+  const design = await loadDesign(`${root}examples/weak-inversion-wta.yaml`);
+  const samples = quick ? 1e7 : 1e8;
+  let peak = process.memoryUsage().rss;
+  const timer = setInterval(() => (peak = Math.max(peak, process.memoryUsage().rss)), 50);
+  const t = performance.now();
+  const r = await simulate(design, { samples, keepOffsets: false, seed: 'memory' });
+  clearInterval(timer);
+  peak = Math.max(peak, process.memoryUsage().rss);
+  console.log('');
+  console.log(`memory: ${samples.toExponential(0)} samples (simple pair, histogram quantiles) in ${((performance.now() - t) / 1000).toFixed(1)} s, sigma ${(r.offset.sigma * 1e3).toFixed(4)} mV; peak RSS of the main process ${(peak / 2 ** 20).toFixed(0)} MB (workers share it as threads)`);
+}
+
+// A 6-sigma failure probability to +-10% at 95% through the CLI, Node start-up included.
+{
+  const file = `${root}examples/comparator-demo.yaml`;
+  const sigma = linearisedSigma(compileStage(await loadDesign(file)));
+  const spec = `${(6 * sigma * 1e3).toFixed(6)}mV`;
+  const bin = `${root}packages/cli/bin/twinfet.js`;
+  const times: number[] = [];
+  let out = '';
+  for (let i = 0; i < 5; i++) {
+    const t = performance.now();
+    out = execFileSync(process.execPath, [bin, 'tail', file, '--spec', spec, '--rel-error', '0.1', '--json'], { encoding: 'utf8' });
+    times.push(performance.now() - t);
+  }
+  const r = JSON.parse(out) as { failureProbability: number; samples: number; equivalentPlainSamples: number; relativeHalfWidth: number };
+  times.sort((a, b) => a - b);
+  console.log('');
+  console.log(`tail: 6 sigma (spec ${spec}) on comparator-demo: p = ${r.failureProbability.toExponential(3)} +-${(r.relativeHalfWidth * 100).toFixed(1)}% from ${r.samples} samples; wall ${times[0]!.toFixed(0)}-${times[times.length - 1]!.toFixed(0)} ms (median ${times[2]!.toFixed(0)} ms) including Node start-up; plain Monte Carlo would need ${r.equivalentPlainSamples.toExponential(2)} samples`);
+}
