@@ -133,7 +133,7 @@ describe('examples parse to the stated SI values', () => {
     expectRelClose(d.tail, 2e-8, 1e-15);
     expectRelClose(d.input.w, 4e-6, 1e-15);
     expectRelClose(d.input.l, 4e-6, 1e-15);
-    expectRelClose(d.spec.offset, 0.015, 1e-15);
+    expectRelClose(d.spec.offset, 0.005, 1e-15);
     expect(d.spec.instances).toBe(64);
     expect('load' in d).toBe(false);
     expect(d.process.p).toBeUndefined();

@@ -1,5 +1,5 @@
 import { compileStage, formatQuantity, type Design, type Stage } from '@twinfet/core';
-import { analyticSummary, type AnalyticSummary } from '@twinfet/montecarlo';
+import { analyticSummary, chipFailure, type AnalyticSummary } from '@twinfet/montecarlo';
 import { renderPairs, renderTable } from '../table.js';
 import { designSummary, pct, sci, shareLabel } from '../describe.js';
 
@@ -66,8 +66,8 @@ export function renderInspect(r: InspectReport): string {
     renderPairs([
       ['offset sigma (linearised)', formatQuantity(a.sigma, 'V', 4)],
       ['spec |Vos| <=', `${formatQuantity(g.spec, 'V', 4)}  (${g.sigmaLevel.toFixed(3)} sigma)`],
-      ['Gaussian instance yield', `${yieldText(g.yield)}  (failure ${sci(g.failure, 4)})`],
-      [`Gaussian chip yield (${g.chipInstances} instance${g.chipInstances === 1 ? '' : 's'})`, yieldText(g.chipYield)],
+      ['Gaussian instance yield', `${yieldFromFailure(g.failure)}  (failure ${sci(g.failure, 4)})`],
+      [`Gaussian chip yield (${g.chipInstances} instance${g.chipInstances === 1 ? '' : 's'})`, yieldFromFailure(chipFailure(g.failure, g.chipInstances))],
     ]),
     '',
     renderBudget(a),
@@ -86,4 +86,9 @@ export function yieldDigits(y: number): number {
 export function yieldText(y: number, digits = yieldDigits(y)): string {
   if (1 - y <= 0) return '1 (failure below double precision)';
   return y.toFixed(digits);
+}
+
+/** A yield given by its failure probability: `1 - 5.16e-33` once the nines stop being readable. */
+export function yieldFromFailure(failure: number): string {
+  return failure < 1e-9 ? `1 - ${failure.toExponential(3)}` : yieldText(1 - failure);
 }

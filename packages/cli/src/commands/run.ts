@@ -10,7 +10,7 @@ import { assertFinite, printJson, type Io } from '../output.js';
 import { progressBar } from '../progress.js';
 import { renderPairs } from '../table.js';
 import { textHistogram } from '../textHistogram.js';
-import { renderBudget, yieldDigits, yieldText } from './inspect.js';
+import { renderBudget, yieldDigits, yieldFromFailure, yieldText } from './inspect.js';
 import { renderTail } from './tail.js';
 import { writeOutputFile } from '../files.js';
 
@@ -132,7 +132,7 @@ export function renderRun(r: RunReport, design: Design): string {
       ['spec |Vos| <=', mv(r.yield.spec)],
       ['failures', `${r.yield.failures} of ${r.evaluated} (${r.yield.failuresHigh} above +spec, ${r.yield.failuresLow} below -spec)`],
       ['instance yield', `${yieldWithInterval(r.yield.estimate, r.yield.interval, c)} (${r.yield.method})`],
-      ['Gaussian estimate', `${yieldText(r.analytic.gaussian.yield)}   from the linearised sigma`],
+      ['Gaussian estimate', `${yieldFromFailure(r.analytic.gaussian.failure)}   from the linearised sigma`],
       [`chip yield (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, yieldWithInterval(r.chip.estimate, r.chip.interval, c)],
     ]),
   ];

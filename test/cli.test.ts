@@ -1,0 +1,152 @@
+import { spawnSync } from 'node:child_process';
+import { mkdtempSync, readFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import { describe, expect, it } from 'vitest';
+import { compileStage, linearisedSigma } from '@twinfet/core';
+import { twoSidedTail } from '@twinfet/montecarlo';
+import { loadDesign } from '../packages/cli/src/designFile.js';
+
+const root = fileURLToPath(new URL('..', import.meta.url));
+const bin = join(root, 'packages/cli/bin/twinfet.js');
+const demo = join(root, 'examples/comparator-demo.yaml');
+const out = mkdtempSync(join(tmpdir(), 'twinfet-cli-'));
+
+function twinfet(...args: string[]): { code: number; stdout: string; stderr: string } {
+  const r = spawnSync(process.execPath, [bin, ...args], { cwd: root, encoding: 'utf8', timeout: 120_000 });
+  return { code: r.status ?? -1, stdout: r.stdout, stderr: r.stderr };
+}
+
+describe('twinfet (end to end, the built CLI)', () => {
+  it('--help, <command> --help and --version exit 0', () => {
+    const h = twinfet('--help');
+    expect(h.code).toBe(0);
+    for (const c of ['inspect', 'run', 'tail']) expect(h.stdout).toContain(c);
+    expect(twinfet('run', '--help').stdout).toContain('--samples');
+    const v = twinfet('--version');
+    expect(v.code).toBe(0);
+    expect(v.stdout.trim()).toMatch(/^\d+\.\d+\.\d+$/);
+  });
+
+  it('inspect --json gives analytic.sigma equal to the library value and a budget summing to 1', async () => {
+    const r = twinfet('inspect', demo, '--json');
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.stdout) as { analytic: { sigma: number; budget: { device: string; parameter: string; share: number }[] } };
+    const lib = linearisedSigma(compileStage(await loadDesign(demo)));
+    // Same computation through JSON: exact to the printed digits (JSON keeps all 17).
+    expect(j.analytic.sigma).toBe(lib);
+    expect(Math.abs(j.analytic.budget.reduce((a, e) => a + e.share, 0) - 1)).toBeLessThan(1e-12);
+    expect(j.analytic.budget[0]).toMatchObject({ device: 'M1', parameter: 'vt' });
+  });
+
+  it('inspect prints an aligned table with every device and the budget', () => {
+    const r = twinfet('inspect', demo);
+    expect(r.code).toBe(0);
+    for (const s of ['M1 (n)', 'M4 (p)', 'offset sigma (linearised)', 'input pair dV_T', 'Gaussian instance yield']) expect(r.stdout).toContain(s);
+  });
+
+  it('run --json prints one object with the documented fields, volts throughout', async () => {
+    const r = twinfet('run', demo, '--samples', '2e5', '--seed', '42', '--json', '--workers', '2');
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.stdout);
+    for (const k of ['samples', 'seed', 'offset', 'analytic', 'yield', 'chip']) expect(j).toHaveProperty(k);
+    expect(j.samples).toBe(200000);
+    expect(j.seed).toBe('42');
+    expect(j.offset.sigmaInterval).toHaveLength(2);
+    expect(j.yield.interval).toHaveLength(2);
+    expect(j.chip.interval).toHaveLength(2);
+    expect(j.yield.method).toBe('clopper-pearson');
+    expect(j.yield.confidence).toBe(0.95);
+    expect(j.chip.instances).toBe(1);
+    const sigma = linearisedSigma(compileStage(await loadDesign(demo)));
+    // Volts: the demo's sigma is ~3.85 mV; Monte Carlo within 4 standard errors (sigma/sqrt(2N)).
+    expect(Math.abs(j.offset.sigma - sigma)).toBeLessThan((4 * sigma) / Math.sqrt(4e5));
+    // Yield against the Gaussian estimate within 4 binomial SE plus the model's nonlinearity
+    // (the exact offset of the demo is within 0.3% of linear: allow 3% of p).
+    const p = twoSidedTail(0.01 / sigma);
+    expect(Math.abs(1 - j.yield.estimate - p)).toBeLessThan(4 * Math.sqrt(p / 2e5) + 0.03 * p);
+    expect(j.offset.quantiles.signed.map((q: { p: number }) => q.p)).toEqual([0.001, 0.01, 0.5, 0.99, 0.999]);
+  });
+
+  it('accepts 1e6-style and 1_000_000-style sample counts', () => {
+    const a = JSON.parse(twinfet('run', demo, '--samples', '1_000', '--json', '--workers', '1').stdout);
+    expect(a.samples).toBe(1000);
+    const b = JSON.parse(twinfet('run', demo, '--samples', '2e3', '--json', '--workers', '1').stdout);
+    expect(b.samples).toBe(2000);
+  });
+
+  it('the text report shows the design, sigma with interval, histogram, budget, yield and timing', () => {
+    const r = twinfet('run', demo, '--samples', '50000', '--workers', '1');
+    expect(r.code).toBe(0);
+    for (const s of ['Comparator front end (demo)', 'offset sigma', 'linearised sigma', 'quantiles', '<- spec', 'input pair dV_T', 'instance yield', 'chip yield', 'samples/s', 'seed 1']) {
+      expect(r.stdout).toContain(s);
+    }
+    expect(r.stderr).toBe(''); // no progress bar when stderr is not a terminal
+  });
+
+  it('points to the high-sigma command when few failures were seen', () => {
+    const r = twinfet('run', demo, '--samples', '20000', '--spec', '20mV', '--workers', '1');
+    expect(r.stdout).toContain('limited by the sample count');
+    expect(r.stdout).toContain('twinfet tail');
+  });
+
+  it('--samples-out writes every sample with its draws by device and parameter', () => {
+    const file = join(out, 'samples.csv');
+    const r = twinfet('run', demo, '--samples', '3000', '--workers', '1', '--samples-out', file, '--json');
+    expect(r.code).toBe(0);
+    const lines = readFileSync(file, 'utf8').trim().split('\n');
+    expect(lines[0]).toBe('sample,offset_V,M1_dVT_V,M1_dbeta_rel,M2_dVT_V,M2_dbeta_rel,M3_dVT_V,M3_dbeta_rel,M4_dVT_V,M4_dbeta_rel');
+    expect(lines).toHaveLength(3001);
+    const offsets = lines.slice(1).map((l) => Number(l.split(',')[1]));
+    const mean = offsets.reduce((a, b) => a + b, 0) / offsets.length;
+    const sd = Math.sqrt(offsets.reduce((a, b) => a + (b - mean) ** 2, 0) / (offsets.length - 1));
+    const j = JSON.parse(r.stdout);
+    // The CSV is the same samples (9 significant digits printed): 1e-7 relative.
+    expect(Math.abs(sd / j.offset.sigma - 1)).toBeLessThan(1e-7);
+    // M1's dV_T column has the per-device sigma A_VT/sqrt(2WL) = 2.5 mV within 4 SE (SE = s/sqrt(2N)).
+    const d1 = lines.slice(1).map((l) => Number(l.split(',')[2]));
+    const s1 = Math.sqrt(d1.reduce((a, b) => a + b * b, 0) / d1.length);
+    expect(Math.abs(s1 - 2.5e-3)).toBeLessThan((4 * 2.5e-3) / Math.sqrt(6000));
+  });
+
+  it('--plot writes an SVG histogram with the spec lines', () => {
+    const file = join(out, 'hist.svg');
+    const r = twinfet('run', demo, '--samples', '20000', '--workers', '1', '--plot', file);
+    expect(r.code).toBe(0);
+    const svg = readFileSync(file, 'utf8');
+    expect(svg.startsWith('<svg')).toBe(true);
+    for (const s of ['offset Vos (mV)', '+spec', 'Gaussian fit']) expect(svg).toContain(s);
+    expect(svg).not.toMatch(/NaN|Infinity/);
+  });
+
+  it('tail --json gives the documented fields, matching the FORM estimate near the Gaussian', () => {
+    const r = twinfet('tail', demo, '--spec', '20mV', '--json', '--seed', '3');
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.stdout);
+    for (const k of ['spec', 'failureProbability', 'interval', 'sigmaLevel', 'samples', 'designPoints', 'form']) expect(j).toHaveProperty(k);
+    expect(j.spec).toBe(0.02);
+    expect(j.designPoints).toHaveLength(2);
+    expect(j.designPoints[0].coordinates).toHaveLength(8);
+    expect(j.interval[0]).toBeLessThanOrEqual(j.failureProbability);
+    expect(j.interval[1]).toBeGreaterThanOrEqual(j.failureProbability);
+    // The demo's offset is near-linear: FORM and importance sampling within 10% (common practice, no source).
+    expect(Math.abs(j.form.failureProbability / j.failureProbability - 1)).toBeLessThan(0.1);
+  });
+
+  it('run --method importance adds the high-sigma estimate to the report', () => {
+    const r = twinfet('run', demo, '--samples', '20000', '--spec', '20mV', '--method', 'importance', '--json', '--workers', '1');
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.stdout);
+    expect(j.importance.spec).toBe(0.02);
+    expect(j.importance.failureProbability).toBeGreaterThan(0);
+  });
+
+  it('a bad value exits 2 with one line naming the field, nothing on stdout', () => {
+    const r = twinfet('run', demo, '--samples', 'many');
+    expect(r.code).toBe(2);
+    expect(r.stdout).toBe('');
+    expect(r.stderr.trim().split('\n')).toHaveLength(1);
+    expect(r.stderr).toContain('--samples');
+  });
+});
