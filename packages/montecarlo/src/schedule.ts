@@ -4,11 +4,14 @@ import type { Executor } from './pool.js';
 /** Samples per chunk: big enough that a worker round trip (~50 us) is noise. */
 export const CHUNK_SIZE = 65_536;
 
-/** Splits `samples` into fixed-size chunks; the last may be short. */
-export function chunkCounts(samples: number, chunkSize = CHUNK_SIZE): number[] {
-  const out: number[] = [];
-  for (let done = 0; done < samples; done += chunkSize) out.push(Math.min(chunkSize, samples - done));
-  return out;
+/** Number of fixed-size chunks for `samples`; the last may be short. */
+export function chunkCount(samples: number, chunkSize = CHUNK_SIZE): number {
+  return Math.ceil(samples / chunkSize);
+}
+
+/** Samples in chunk `index` of a run of `samples`. */
+export function chunkLength(samples: number, index: number, chunkSize = CHUNK_SIZE): number {
+  return Math.min(chunkSize, samples - index * chunkSize);
 }
 
 /**
@@ -31,7 +34,7 @@ export class RunAborted extends Error {
  */
 export async function runChunks(
   executor: Executor,
-  tasks: readonly ChunkTask[],
+  tasks: readonly ChunkTask[] | { readonly length: number; readonly at: (index: number) => ChunkTask; readonly samples: number },
   consume: (r: ChunkResult) => void,
   options: { signal?: AbortSignal | undefined; onProgress?: ((done: number, total: number) => void) | undefined } = {},
 ): Promise<void> {
@@ -41,7 +44,9 @@ export async function runChunks(
   let next = 0;
   let nextToConsume = 0;
   let samplesDone = 0;
-  const samplesTotal = tasks.reduce((a, t) => a + t.count, 0);
+  // Tasks may be made on demand, so a 1e12-sample run never holds millions of task objects.
+  const taskAt = Array.isArray(tasks) ? (i: number) => (tasks as readonly ChunkTask[])[i]! : (tasks as { at: (i: number) => ChunkTask }).at;
+  const samplesTotal = Array.isArray(tasks) ? (tasks as readonly ChunkTask[]).reduce((a, t) => a + t.count, 0) : (tasks as { samples: number }).samples;
   let failure: unknown;
   let aborted = false;
 
@@ -55,7 +60,7 @@ export async function runChunks(
       const index = next++;
       let r: ChunkResult;
       try {
-        r = await executor.run(tasks[index]!, local.signal);
+        r = await executor.run(taskAt(index), local.signal);
       } catch (e) {
         if (local.signal.aborted && failure === undefined) aborted = true;
         else if (failure === undefined) {

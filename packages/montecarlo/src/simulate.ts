@@ -6,7 +6,7 @@ import type { InjectedFault, MonteCarloResult, MonteCarloTask } from './messages
 import { emptyMoments, mergeMoments, type Moments } from './moments.js';
 import { normalQuantile } from './normal.js';
 import { createExecutor, defaultWorkers, type Executor } from './pool.js';
-import { CHUNK_SIZE, chunkCounts, runChunks, RunAborted } from './schedule.js';
+import { CHUNK_SIZE, chunkCount, chunkLength, runChunks, RunAborted } from './schedule.js';
 import { seedText } from './seed.js';
 import { sigmaInterval } from './sigmaInterval.js';
 import { estimateTail, type TailReport } from './tail.js';
@@ -193,20 +193,24 @@ export async function runMonteCarlo(design: Design, options: SimulateOptions = {
   const range = Math.max(HISTOGRAM_SIGMAS * analytic.sigma, 1.2 * spec);
   const histogramSpec = { lo: -range, hi: range, bins: HISTOGRAM_BINS };
 
-  const counts = chunkCounts(samples);
-  const tasks: MonteCarloTask[] = counts.map((count, chunk) => ({
-    kind: 'montecarlo',
-    design,
-    seed,
-    chunk,
-    count,
-    spec,
-    histogram: histogramSpec,
-    keepOffsets,
-    keepDraws,
-    ...(options.fault !== undefined && options.fault.chunk === chunk ? { fault: options.fault.fault } : {}),
-  }));
-  const workers = Math.min(options.workers ?? defaultWorkers(), counts.length);
+  const chunks = chunkCount(samples);
+  const tasks = {
+    length: chunks,
+    samples,
+    at: (chunk: number): MonteCarloTask => ({
+      kind: 'montecarlo',
+      design,
+      seed,
+      chunk,
+      count: chunkLength(samples, chunk),
+      spec,
+      histogram: histogramSpec,
+      keepOffsets,
+      keepDraws,
+      ...(options.fault !== undefined && options.fault.chunk === chunk ? { fault: options.fault.fault } : {}),
+    }),
+  };
+  const workers = Math.min(options.workers ?? defaultWorkers(), chunks);
   const executor = options.executor ?? createExecutor(workers);
 
   let moments: Moments = emptyMoments();
