@@ -6,11 +6,21 @@ import { inspectDesign, renderInspect } from './commands/inspect.js';
 import { processIo, printJson, type Io, NonFiniteResultError } from './output.js';
 import { registerRun } from './commands/run.js';
 import { registerTail } from './commands/tail.js';
+import { registerSize } from './commands/size.js';
+import { registerSweep } from './commands/sweep.js';
 
 const version = (JSON.parse(readFileSync(new URL('../package.json', import.meta.url), 'utf8')) as { version: string }).version;
 
 /** Exit codes: 0 done, 1 internal error, 2 bad input, 130 interrupted. */
 export const EXIT = { ok: 0, internal: 1, input: 2, interrupted: 130 } as const;
+
+/** commander's own messages ("error: unknown option '--x'") in the project's one-line form. */
+function output(io: Io) {
+  return {
+    writeOut: (s: string) => io.out(s.trimEnd()),
+    writeErr: (s: string) => io.err(s.startsWith('error: ') ? `twinfet: ${s.slice(7).trimEnd()}; see twinfet --help` : s.trimEnd()),
+  };
+}
 
 /** Builds the command tree; `io` receives everything printed. */
 export function buildProgram(io: Io, setExit: (code: number) => void): Command {
@@ -18,7 +28,7 @@ export function buildProgram(io: Io, setExit: (code: number) => void): Command {
     .description('Mismatch-limited offset and yield of MOS differential pairs (design aid; not a substitute for foundry matching data or sign-off)')
     .version(version, '-V, --version', 'print the version')
     .showHelpAfterError(false)
-    .configureOutput({ writeOut: (s) => io.out(s.trimEnd()), writeErr: (s) => io.err(s.trimEnd()) })
+    .configureOutput(output(io))
     .exitOverride();
 
   program
@@ -35,7 +45,9 @@ export function buildProgram(io: Io, setExit: (code: number) => void): Command {
 
   registerRun(program, io, setExit);
   registerTail(program, io, setExit);
-  for (const c of program.commands) c.exitOverride().configureOutput({ writeOut: (s) => io.out(s.trimEnd()), writeErr: (s) => io.err(s.trimEnd()) });
+  registerSize(program, io, setExit);
+  registerSweep(program, io, setExit);
+  for (const c of program.commands) c.exitOverride().configureOutput(output(io));
   return program;
 }
 

@@ -17,3 +17,8 @@ export * from './wilson.js';
 export * from './yield.js';
 export * from './ziggurat.js';
 export { runChunk } from './chunk.js';
+export * from './resize.js';
+export * from './areaSplit.js';
+export * from './sizeLinearised.js';
+export * from './size.js';
+export * from './sweep.js';

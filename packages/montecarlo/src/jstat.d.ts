@@ -9,6 +9,10 @@ declare module 'jstat' {
       /** Quantile of the Beta(alpha, beta) distribution at probability p. */
       inv(p: number, alpha: number, beta: number): number;
     };
+    normal: {
+      /** Cumulative distribution function of N(mean, sd) at x (used by tests as an independent Phi). */
+      cdf(x: number, mean: number, sd: number): number;
+    };
     chisquare: {
       /** Quantile of the chi-square distribution with dof degrees of freedom at probability p. */
       inv(p: number, dof: number): number;

@@ -1,0 +1,295 @@
+import { formatQuantity, InputError, parseQuantity, validateDesign, type Design } from '@twinfet/core';
+import { DEFAULT_SEED, sweepDesigns, SWEEP_SAMPLES, type SweepPointResult } from '@twinfet/montecarlo';
+import type { Command } from 'commander';
+import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
+import { designSummary, sci } from '../describe.js';
+import { loadDesign } from '../designFile.js';
+import { writeOutputFile } from '../files.js';
+import { parseCount, parseFraction } from '../options.js';
+import { assertFinite, printJson, type Io } from '../output.js';
+import { sweepSvg, type SweepPoint } from '../plot.js';
+import { progressBar } from '../progress.js';
+import { renderTable } from '../table.js';
+import { plotAxis, sweepField, sweepValues, withField, type SweepField } from '../sweepField.js';
+import { yieldDigits, yieldText } from './inspect.js';
+
+interface SweepFlags extends CommonFlags {
+  vary?: string;
+  from?: string;
+  to?: string;
+  steps?: string;
+  log?: boolean;
+  samples?: string;
+  method?: string;
+  targetSigma?: string;
+  targetYield?: string;
+  csv?: string;
+  plot?: string;
+}
+
+/** The sweep report printed as JSON (SI units; null where a figure is not available). */
+export interface SweepReport {
+  readonly design: ReturnType<typeof designSummary>;
+  readonly field: string;
+  /** SI unit of the swept values ('' for plain numbers). */
+  readonly unit: string;
+  readonly log: boolean;
+  readonly method: 'plain' | 'importance';
+  readonly samples: number;
+  readonly seed: string;
+  readonly confidence: number;
+  readonly targets: { readonly sigma: number | null; readonly yield: number | null };
+  readonly points: readonly (SweepPointResult & { readonly value: number; readonly meetsTarget: { readonly sigma: Verdict | null; readonly yield: Verdict | null } })[];
+  readonly notes: readonly string[];
+  readonly warnings: readonly string[];
+}
+
+/** Whether a point meets a target, judged on its interval. */
+export type Verdict = 'met' | 'missed' | 'unclear';
+
+const verdict = (lo: number, hi: number, limit: number): Verdict => (hi <= limit ? 'met' : lo > limit ? 'missed' : 'unclear');
+
+function parseEnd(text: string | undefined, option: string, f: SweepField): number {
+  if (text === undefined) throw new InputError(option, `missing; give the ${option === '--from' ? 'first' : 'last'} value of ${f.path}, e.g. ${option} ${example(f)}`);
+  return parseQuantity(text, f.dimension, option);
+}
+
+function example(f: SweepField): string {
+  switch (f.dimension) {
+    case 'length': return '2um';
+    case 'current': return '10uA';
+    case 'temperature': return '"27 C"';
+    case 'voltage': return '10mV';
+    case 'kp': return '300uA/V^2';
+    case 'avt': return '5mV*um';
+    case 'abeta': return '1%*um';
+    case 'cox': return '8.6fF/um^2';
+    case 'dimensionless': return '1.3';
+  }
+}
+
+/** The design at one swept value, validated; errors name the option that produced the value. */
+function pointDesign(design: Design, f: SweepField, value: number, option: string): Design {
+  const d = withField(design, f.path, value);
+  try {
+    return validateDesign(d);
+  } catch (e) {
+    if (e instanceof InputError) throw new InputError(option, `${f.path} = ${shown(f, value)} is not a valid design (${e.message})`);
+    throw e;
+  }
+}
+
+function parsePositiveVoltage(text: string, option: string): number {
+  const v = parseQuantity(text, 'voltage', option);
+  if (!(v > 0)) throw new InputError(option, `expected a positive offset sigma such as 2mV, got "${text}"`);
+  return v;
+}
+
+function shown(f: SweepField, v: number): string {
+  return f.tableUnit === '' ? String(Number(v.toPrecision(6))) : formatQuantity(v, f.tableUnit, 4);
+}
+
+const mv = (v: number): string => formatQuantity(v, 'V', 4);
+/** A yield or interval end: exactly 1 prints as 1 (no failures seen), tiny values in scientific form. */
+const bound = (y: number, digits: number): string => (y === 1 ? '1' : y < 1e-3 ? sci(y, 4) : yieldText(y, digits));
+const conf = (c: number): string => `${Math.round(c * 1000) / 10}%`;
+
+/** Text table of a sweep. */
+export function renderSweep(r: SweepReport, f: SweepField): string {
+  const c = conf(r.confidence);
+  const hasTail = r.method === 'importance';
+  const counts = new Set(r.points.map((p) => p.instances));
+  const chipHead = counts.size === 1 ? `chip yield (${r.points[0]!.instances})` : 'chip yield';
+  const header = [f.path, 'analytic sigma', 'MC sigma', `${c} interval`, 'yield', `${c} interval`, chipHead];
+  if (hasTail) header.push('IS failure', `${c} interval`, 'sigma level');
+  if (r.targets.sigma !== null) header.push(`sigma <= ${mv(r.targets.sigma)}`);
+  if (r.targets.yield !== null) header.push(`yield >= ${r.targets.yield}`);
+  const rows = r.points.map((p) => {
+    const m = p.monteCarlo;
+    // Digits enough for three figures of the interval's larger failure, per row.
+    const digits = yieldDigits(m.yieldInterval[0]);
+    const row = [
+      shown(f, p.value),
+      mv(p.analyticSigma),
+      mv(m.sigma),
+      `[${mv(m.sigmaInterval[0])}, ${mv(m.sigmaInterval[1])}]`,
+      m.failures === 0 ? '1 (no failures)' : bound(m.yield, digits),
+      `[${bound(m.yieldInterval[0], digits)}, ${bound(m.yieldInterval[1], digits)}]`,
+      bound(m.chipYield, digits),
+    ];
+    if (hasTail) {
+      const t = p.importance!;
+      row.push(sci(t.failure, 4), `[${sci(t.interval[0], 3)}, ${sci(t.interval[1], 3)}]`, t.sigmaLevel === null ? 'n/a' : t.sigmaLevel.toFixed(3));
+    }
+    if (p.meetsTarget.sigma !== null) row.push(p.meetsTarget.sigma);
+    if (p.meetsTarget.yield !== null) row.push(p.meetsTarget.yield);
+    return row;
+  });
+  const lines = [
+    `${r.design.name}  (${r.design.topology} stage) sweeping ${f.path}: ${r.points.length} points${r.log ? ' (log spacing)' : ''}, ${r.samples} Monte Carlo samples per point, seed ${r.seed} at every point`,
+    '',
+    renderTable(header, rows, header.map((_, i) => (i === 0 ? 'left' : 'right'))),
+  ];
+  for (const n of r.notes) lines.push(`note: ${n}`);
+  for (const w of r.warnings) lines.push(`warning: ${w}`);
+  return lines.join('\n');
+}
+
+const cell = (x: number | null): string => (x === null ? '' : String(x));
+
+/** CSV of a sweep, SI units, one row per point; empty cells where a figure is not available. */
+export function sweepCsv(r: SweepReport): string {
+  const u = r.unit === '' ? r.field : `${r.field}_${r.unit}`;
+  const header = [u, 'analytic_sigma_V', 'mc_sigma_V', 'mc_sigma_lo_V', 'mc_sigma_hi_V', 'samples', 'failures', 'yield', 'yield_lo', 'yield_hi', 'chip_yield', 'chip_yield_lo', 'chip_yield_hi', 'is_failure', 'is_failure_lo', 'is_failure_hi', 'is_sigma_level'];
+  const rows = r.points.map((p) => {
+    const m = p.monteCarlo;
+    const t = p.importance;
+    return [p.value, p.analyticSigma, m.sigma, m.sigmaInterval[0], m.sigmaInterval[1], m.samples, m.failures, m.yield, m.yieldInterval[0], m.yieldInterval[1], m.chipYield, m.chipYieldInterval[0], m.chipYieldInterval[1], t?.failure ?? null, t?.interval[0] ?? null, t?.interval[1] ?? null, t?.sigmaLevel ?? null]
+      .map(cell)
+      .join(',');
+  });
+  return `${[header.join(','), ...rows].join('\n')}\n`;
+}
+
+/** Registers `twinfet sweep`. */
+export function registerSweep(program: Command, io: Io, setExit: (code: number) => void): void {
+  withCommonOptions(
+    program
+      .command('sweep')
+      .description('step one numeric design field and report analytic and Monte Carlo sigma and yield at each value')
+      .argument('<design>', 'design file (YAML or JSON)')
+      .option('--vary <FIELD>', 'the field to step: input.w, input.l, load.w, load.l, tail, temperature, spec.offset, spec.instances, process.n.avt, ...')
+      .option('--from <A>', 'first value, with the field\'s unit, e.g. 1um, 5uA, "27 C"')
+      .option('--to <B>', 'last value, e.g. 20um')
+      .option('--steps <N>', 'number of values, ends included (default 5)')
+      .option('--log', 'space the values evenly in log (both ends above 0), and draw a log axis')
+      .option('--samples <N>', `Monte Carlo samples per point (default ${SWEEP_SAMPLES})`)
+      .option('--method <M>', 'plain (default), or importance to add the high-sigma failure probability')
+      .option('--spec <V>', "offset limit overriding the design's spec, e.g. 20mV")
+      .option('--target-sigma <V>', 'a sigma target drawn on the plot and judged per point, e.g. 2mV')
+      .option('--target-yield <Y>', 'a yield target drawn on the plot (as 1 - yield) and judged per point, e.g. 0.999')
+      .option('--csv <FILE>', 'write one row per point (SI units)')
+      .option('--plot <FILE.svg>', 'sigma and failure probability against the field, with interval bars'),
+  ).action(async (file: string, flags: SweepFlags) => {
+    const common = readCommon(flags);
+    if (flags.vary === undefined) throw new InputError('--vary', 'missing; give the field to step, e.g. --vary input.w');
+    const steps = flags.steps === undefined ? 5 : parseCount(flags.steps, '--steps', 2, 200);
+    const samples = flags.samples === undefined ? SWEEP_SAMPLES : parseCount(flags.samples, '--samples', 100, 1e9);
+    const method = flags.method ?? 'plain';
+    if (method !== 'plain' && method !== 'importance') throw new InputError('--method', `expected plain or importance, got "${method}"`);
+    const targetSigma = flags.targetSigma === undefined ? null : parsePositiveVoltage(flags.targetSigma, '--target-sigma');
+    const targetYield = flags.targetYield === undefined ? null : parseFraction(flags.targetYield, '--target-yield', '0.999');
+    if (flags.plot !== undefined && !flags.plot.toLowerCase().endsWith('.svg')) throw new InputError('--plot', `expected a file name ending in .svg, got "${flags.plot}"`);
+    if (flags.csv !== undefined && !flags.csv.toLowerCase().endsWith('.csv')) throw new InputError('--csv', `expected a file name ending in .csv, got "${flags.csv}"`);
+    const design = await loadDesign(file);
+    const f = sweepField(flags.vary, design);
+    if (f.path === 'spec.offset' && common.spec !== undefined) throw new InputError('--spec', 'cannot be combined with --vary spec.offset; drop one');
+    const from = parseEnd(flags.from, '--from', f);
+    const to = parseEnd(flags.to, '--to', f);
+    const log = flags.log === true;
+    if (log && !(from > 0 && to > 0)) throw new InputError('--log', `needs --from and --to above 0, got ${shown(f, from)} and ${shown(f, to)}`);
+    if (from === to) throw new InputError('--to', `equals --from (${shown(f, from)}); give a different last value`);
+    const notes: string[] = [];
+    let values = sweepValues(from, to, steps, log);
+    if (f.integer) {
+      const rounded = values.map((v) => Math.round(v));
+      if (rounded.some((v, i) => v !== values[i])) notes.push(`${f.path} takes whole numbers: the values were rounded to ${rounded.join(', ')}`);
+      values = rounded;
+    }
+    pointDesign(design, f, values[0]!, '--from');
+    pointDesign(design, f, values[values.length - 1]!, '--to');
+    const designs = values.map((v) => pointDesign(design, f, v, '--vary'));
+
+    const ac = new AbortController();
+    const onSigint = (): void => ac.abort();
+    process.once('SIGINT', onSigint);
+    const bar = progressBar(io, 'sweep');
+    let points: SweepPointResult[];
+    try {
+      points = await sweepDesigns(designs, {
+        samples,
+        workers: common.workers,
+        confidence: common.confidence,
+        importance: method === 'importance',
+        signal: ac.signal,
+        onPoint: (d, t) => bar.update(d * samples, t * samples),
+        ...(common.seed === undefined ? {} : { seed: common.seed }),
+        ...(common.spec === undefined ? {} : { spec: common.spec }),
+      });
+    } catch (e) {
+      if (ac.signal.aborted) {
+        io.err('twinfet: sweep interrupted; nothing was printed or written');
+        setExit(130);
+        return;
+      }
+      throw e;
+    } finally {
+      bar.stop();
+      process.removeListener('SIGINT', onSigint);
+    }
+    const warnings = [...new Set(points.flatMap((p) => p.warnings.map((w) => `at ${f.path} = ${shown(f, values[p.index]!)}: ${w}`)))];
+    if (points.some((p) => p.monteCarlo.limitedBySamples) && method === 'plain') {
+      notes.push('some points saw fewer than 10 failures: their yields are limited by the sample count; add --method importance for high-sigma figures');
+    }
+    const report: SweepReport = {
+      design: designSummary(design),
+      field: f.path,
+      unit: f.siUnit,
+      log,
+      method,
+      samples,
+      seed: common.seed ?? DEFAULT_SEED,
+      confidence: common.confidence,
+      targets: { sigma: targetSigma, yield: targetYield },
+      points: points.map((p) => ({
+        ...p,
+        value: values[p.index]!,
+        meetsTarget: {
+          sigma: targetSigma === null ? null : verdict(p.monteCarlo.sigmaInterval[0], p.monteCarlo.sigmaInterval[1], targetSigma),
+          yield:
+            targetYield === null
+              ? null
+              : p.importance !== null
+                ? verdict(p.importance.interval[0], p.importance.interval[1], 1 - targetYield)
+                : verdict(1 - p.monteCarlo.yieldInterval[1], 1 - p.monteCarlo.yieldInterval[0], 1 - targetYield),
+        },
+      })),
+      notes,
+      warnings,
+    };
+    assertFinite(report);
+    if (flags.csv !== undefined) await writeOutputFile(flags.csv, '--csv', sweepCsv(report));
+    if (flags.plot !== undefined) {
+      const axis = plotAxis(f, values);
+      const plotPoints: SweepPoint[] = report.points.map((p) => ({
+        x: p.value,
+        analyticSigma: p.analyticSigma,
+        mcSigma: p.monteCarlo.sigma,
+        mcSigmaLo: p.monteCarlo.sigmaInterval[0],
+        mcSigmaHi: p.monteCarlo.sigmaInterval[1],
+        yield: p.monteCarlo.yield,
+        yieldLo: p.monteCarlo.yieldInterval[0],
+        yieldHi: p.monteCarlo.yieldInterval[1],
+        ...(p.importance === null ? {} : { tailFailure: p.importance.failure, tailLo: p.importance.interval[0], tailHi: p.importance.interval[1] }),
+      }));
+      const svg = await sweepSvg({
+        title: `${design.name}: offset against ${f.path}`,
+        field: f.path,
+        fieldUnit: axis.unit,
+        xScale: axis.scale,
+        log,
+        points: plotPoints,
+        ...(targetSigma === null ? {} : { sigmaTarget: targetSigma }),
+        ...(targetYield === null ? {} : { yieldTarget: targetYield }),
+      });
+      await writeOutputFile(flags.plot, '--plot', svg);
+    }
+    if (flags.json === true) printJson(io, report);
+    else {
+      io.out(renderSweep(report, f));
+      if (flags.csv !== undefined) io.out(`wrote ${flags.csv}`);
+      if (flags.plot !== undefined) io.out(`wrote ${flags.plot}`);
+    }
+    setExit(0);
+  });
+}

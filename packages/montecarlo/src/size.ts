@@ -1,0 +1,521 @@
+/**
+ * Sizing a pair for an offset target: solve on the linearised model, then confirm on the exact
+ * model (Monte Carlo for sigma and moderate yields, importance sampling for high-sigma yields)
+ * and scale up a little until the confirmed figure meets the target with its interval.
+ */
+import { compileStage, formatQuantity, InputError, linearisedSigma, type Design, type DeviceRole, type InversionRegion, type Stage } from '@twinfet/core';
+import { areaSplit, equalScalingFamily, optimalSplitFamily, type AreaSplit } from './areaSplit.js';
+import { normalQuantile, sigmaLevel, twoSidedTail } from './normal.js';
+import { createExecutor, defaultWorkers, type Executor } from './pool.js';
+import { checkVary, DEFAULT_MIN_DIMENSION_M, singlePairFamily, type SizeVary, type SizingFamily } from './resize.js';
+import { seedText } from './seed.js';
+import { simulate } from './simulate.js';
+import { limitingTerm, solveLinearised, type LinearisedFloor, type LinearisedSolution } from './sizeLinearised.js';
+import { estimateTail } from './tail.js';
+import { allowedFailure, chipYieldFromFailure } from './yield.js';
+
+/** What the sized design must achieve. */
+export type SizeTarget =
+  /** Offset sigma at most `sigma` volts. */
+  | { readonly kind: 'sigma'; readonly sigma: number }
+  /** Instance yield P(|Vos| <= spec) at least `yield`. */
+  | { readonly kind: 'yield'; readonly yield: number }
+  /** Chip yield over spec.instances instances at least `chipYield`. */
+  | { readonly kind: 'chip-yield'; readonly chipYield: number };
+
+/** Options of `sizeDesign`. */
+export interface SizeOptions {
+  readonly target: SizeTarget;
+  /** What may change (default `input.w`). */
+  readonly vary?: SizeVary;
+  /** |Vos| limit for yields, volts (default: the design's spec). */
+  readonly spec?: number;
+  /** Monte Carlo samples per confirmation of a sigma target (default 200000); yields use at least 384/p. */
+  readonly samples?: number;
+  readonly seed?: string | number;
+  readonly workers?: number;
+  /** An executor to reuse (the caller closes it). */
+  readonly executor?: Executor;
+  /** Confidence level of every interval (default 0.95). */
+  readonly confidence?: number;
+  /** Confirmations after the first before giving up (default 8). */
+  readonly maxRefinements?: number;
+  readonly signal?: AbortSignal;
+}
+
+/** Failure probabilities below this are confirmed by importance sampling (plain Monte Carlo would need > ~4e6 samples). */
+export const IMPORTANCE_BELOW = 1e-4;
+/** Default Monte Carlo samples per confirmation of a sigma target (interval about +-0.3% at 95%). */
+export const SIZE_SAMPLES = 200_000;
+/** Relative half-width aimed for when confirming a yield by Monte Carlo: N = z^2 / (h^2 p). */
+export const YIELD_RELATIVE_HALF_WIDTH = 0.1;
+/** Relative half-width of the importance-sampling confirmation. */
+export const TAIL_RELATIVE_HALF_WIDTH = 0.05;
+/** Largest Monte Carlo confirmation of a yield. */
+export const MAX_CONFIRM_SAMPLES = 2e7;
+
+/** One pair's geometry and operating point, SI units. */
+export interface PairSizing {
+  readonly role: DeviceRole;
+  readonly polarity: 'n' | 'p';
+  /** W and L, m. */
+  readonly w: number;
+  readonly l: number;
+  /** Gate area W L of one device, m^2. */
+  readonly gateArea: number;
+  readonly ic: number;
+  readonly region: InversionRegion;
+  /** gm/I_D, 1/V. */
+  readonly gmOverId: number;
+  /** Cox W L of one device, F, or null when the process gives no cox. */
+  readonly gateCapacitance: number | null;
+}
+
+/** A design point of the sizing: geometry, operating point and linearised figures. */
+export interface SizedPoint {
+  /** Position along the family (area factor, or total area in m^2 for `both`). */
+  readonly scale: number;
+  readonly pairs: readonly PairSizing[];
+  /** Linearised offset sigma, volts. */
+  readonly sigmaLinearised: number;
+  /** Gate area of the varied devices (both devices of each varied pair), m^2. */
+  readonly variedArea: number;
+  /** Gate area of every device of the stage, m^2. */
+  readonly totalGateArea: number;
+  /** Gaussian instance failure 2 Phi(-spec / sigma) at the spec. */
+  readonly gaussianFailure: number;
+  /** Cox W L of one input device (the capacitance each input sees), F; null without process cox. */
+  readonly inputCapacitance: number | null;
+}
+
+/** One confirmation on the exact model. */
+export interface Confirmation {
+  readonly method: 'monte-carlo' | 'importance-sampling';
+  readonly seed: string;
+  readonly samples: number;
+  readonly point: SizedPoint;
+  /** Monte Carlo offset sigma and its chi-square interval, volts (null for importance sampling). */
+  readonly sigma: number | null;
+  readonly sigmaInterval: readonly [number, number] | null;
+  /** Instance failure probability at the spec and its interval. */
+  readonly failure: number;
+  readonly failureInterval: readonly [number, number];
+  /** Chip yield over spec.instances, and its interval. */
+  readonly chipYield: number;
+  readonly chipYieldInterval: readonly [number, number];
+  /** Whether the figure meets the target by the stated rule. */
+  readonly met: boolean;
+}
+
+/** The result of `sizeDesign`. */
+export interface SizeReport {
+  readonly vary: SizeVary;
+  readonly target: SizeTarget & {
+    /** The linearised sigma that meets the target (the sigma itself, or spec / sigma level), volts. */
+    readonly sigmaEquivalent: number;
+    /** Allowed instance failure probability (yield targets), else null. */
+    readonly allowedFailure: number | null;
+  };
+  /** The acceptance rule applied to the confirmed figure, in words. */
+  readonly rule: string;
+  /** |Vos| limit used for yields, volts, and instances per chip. */
+  readonly spec: number;
+  readonly instances: number;
+  readonly confidence: number;
+  readonly original: SizedPoint;
+  /** The linearised solution (before any refinement on the exact model). */
+  readonly linearised: SizedPoint & { readonly atMinimum: boolean };
+  /** The sized design's figures. */
+  readonly result: SizedPoint;
+  /** The final confirmation (met) and every confirmation in order. */
+  readonly confirmed: Confirmation;
+  readonly confirmations: readonly Confirmation[];
+  /** Kinget's rule: area x sigma^2 is constant when V_T dominates. Areas in m^2. */
+  readonly areaCost: {
+    readonly sigmaOriginal: number;
+    readonly sigmaTarget: number;
+    readonly originalArea: number;
+    /** originalArea x (sigmaOriginal / sigmaTarget)^2. */
+    readonly ruleArea: number;
+    readonly resultArea: number;
+    /** resultArea / ruleArea. */
+    readonly ratio: number;
+  };
+  /** For `both`: the optimum split against scaling both pairs by one factor (linearised solutions). */
+  readonly split: null | {
+    readonly inputCoefficient: number;
+    readonly loadCoefficient: number;
+    readonly inputShare: number;
+    /** Per-device gate areas a_in + a_load, m^2, at the optimum and with equal scaling. */
+    readonly optimum: { readonly input: number; readonly load: number; readonly total: number };
+    readonly equal: { readonly input: number; readonly load: number; readonly total: number; readonly factor: number };
+    /** 1 - optimum.total / equal.total. */
+    readonly saving: number;
+  };
+  /** The sized design, SI units. */
+  readonly design: Design;
+  readonly notes: readonly string[];
+  readonly warnings: readonly string[];
+}
+
+/** The pair summary of role in a compiled stage. */
+function pairSizing(stage: Stage, role: DeviceRole): PairSizing {
+  const op = stage.operatingPoint.find((o) => o.role === role);
+  if (op === undefined) throw new Error(`internal: no ${role} device`);
+  return {
+    role,
+    polarity: op.polarity,
+    w: op.w,
+    l: op.l,
+    gateArea: op.gateArea,
+    ic: op.ic,
+    region: op.region,
+    gmOverId: op.gmOverId,
+    gateCapacitance: op.gateCapacitance ?? null,
+  };
+}
+
+function variedRoles(vary: SizeVary): DeviceRole[] {
+  return vary === 'both' ? ['input', 'load'] : [vary.startsWith('input.') ? 'input' : 'load'];
+}
+
+/** Geometry, operating point and linearised figures of a design. */
+export function sizedPoint(design: Design, vary: SizeVary, scale: number, spec: number): SizedPoint {
+  const stage = compileStage(design);
+  const roles: DeviceRole[] = design.load === undefined ? ['input'] : ['input', 'load'];
+  const pairs = roles.map((r) => pairSizing(stage, r));
+  const sigma = linearisedSigma(stage);
+  const areaOf = (r: DeviceRole): number => 2 * (pairs.find((p) => p.role === r)?.gateArea ?? 0);
+  return {
+    scale,
+    pairs,
+    sigmaLinearised: sigma,
+    variedArea: variedRoles(vary).reduce((a, r) => a + areaOf(r), 0),
+    totalGateArea: roles.reduce((a, r) => a + areaOf(r), 0),
+    gaussianFailure: twoSidedTail(spec / sigma),
+    inputCapacitance: pairs[0]!.gateCapacitance,
+  };
+}
+
+const mvText = (v: number): string => `${Number((v * 1e3).toPrecision(4))} mV`;
+
+const TERM_NAMES: Record<string, string> = {
+  'input.vt': 'the input pair dV_T term A_VT/sqrt(WL)',
+  'input.beta': 'the input pair dbeta/beta term (I_D/gm) A_beta/sqrt(WL)',
+  'load.vt': 'the load pair dV_T term (gm_load/gm_in) A_VT/sqrt(WL_load)',
+  'load.beta': 'the load pair dbeta/beta term (I_D/gm_in) A_beta/sqrt(WL_load)',
+};
+
+/** Why the limiting term does not fall further along this family, in words. */
+function floorReason(vary: SizeVary, f: LinearisedFloor, family: SizingFamily): string {
+  const term = f.limiting;
+  const name = `${TERM_NAMES[`${term.role}.${term.parameter}`]!} (${(term.share * 100).toFixed(0)}% of sigma^2 there)`;
+  const varied = variedRoles(vary).includes(term.role);
+  if (!varied) {
+    const fix = term.role === 'load' ? 'vary load.area or both' : 'vary input.area or both';
+    let why: string;
+    if (vary === 'input.w') why = 'which widening the input pair lowers only until its gm/I_D saturates in weak inversion';
+    else if (vary === 'input.l') why = 'which grows as the input pair is lengthened (gm_in falls at fixed bias)';
+    else if (vary === 'input.area') why = 'which sizing the input pair at fixed W/L does not change';
+    else why = 'which sizing the load does not change';
+    return `set by ${name}, ${why}; ${fix}`;
+  }
+  if (vary.endsWith('.l') && term.parameter === 'beta') {
+    return `set by ${name}, which stops falling as L grows at fixed W and bias (I_D/gm rises as sqrt(L) in strong inversion); vary ${term.role}.w or ${term.role}.area`;
+  }
+  if (f.atMaximum) return `set by ${name} at the largest size searched (${family.limitText})`;
+  return `set by ${name}; further along ${vary} sigma rises again at fixed bias; vary ${term.role}.area`;
+}
+
+/** The refusal for a target below the family's floor. */
+function unreachable(option: string, targetText: string, vary: SizeVary, f: LinearisedFloor, family: SizingFamily, spec: number, yieldTarget: boolean): InputError {
+  const best = yieldTarget
+    ? `the best instance yield is ${(1 - twoSidedTail(spec / f.floor.sigma)).toPrecision(6)} (lowest linearised sigma ${mvText(f.floor.sigma)} at spec ${mvText(spec)})`
+    : `the lowest linearised sigma is ${mvText(f.floor.sigma)}`;
+  return new InputError(option, `${targetText} cannot be met by varying ${vary}: ${best}, ${floorReason(vary, f, family)}`);
+}
+
+interface Plan {
+  readonly option: string;
+  readonly targetText: string;
+  readonly sigmaTarget: number;
+  readonly allowed: number | null;
+  readonly method: 'monte-carlo' | 'importance-sampling';
+  readonly samples: number;
+  readonly rule: string;
+}
+
+function plan(design: Design, o: SizeOptions, spec: number, confidence: number): Plan {
+  const t = o.target;
+  const c = `${Math.round(confidence * 1000) / 10}%`;
+  const z = normalQuantile(1 - (1 - confidence) / 2);
+  if (t.kind === 'sigma') {
+    if (!(t.sigma > 0 && Number.isFinite(t.sigma))) throw new InputError('sigma', `expected a positive offset sigma in volts, got ${String(t.sigma)}`);
+    return {
+      option: 'sigma',
+      targetText: `offset sigma ${mvText(t.sigma)}`,
+      sigmaTarget: t.sigma,
+      allowed: null,
+      method: 'monte-carlo',
+      samples: o.samples ?? SIZE_SAMPLES,
+      rule: `upper end of the ${c} chi-square interval of the Monte Carlo sigma <= target`,
+    };
+  }
+  const instances = design.spec.instances;
+  let p: number;
+  let option: string;
+  let targetText: string;
+  if (t.kind === 'yield') {
+    if (!(t.yield > 0 && t.yield < 1)) throw new InputError('yield', `expected a yield strictly between 0 and 1 such as 0.999, got ${String(t.yield)}`);
+    p = 1 - t.yield;
+    option = 'yield';
+    targetText = `instance yield ${t.yield}`;
+  } else {
+    if (!(t.chipYield > 0 && t.chipYield < 1)) throw new InputError('chip-yield', `expected a chip yield strictly between 0 and 1 such as 0.99, got ${String(t.chipYield)}`);
+    p = allowedFailure(t.chipYield, instances);
+    option = 'chip-yield';
+    targetText = `chip yield ${t.chipYield} over ${instances} instance${instances === 1 ? '' : 's'}`;
+  }
+  if (!(p > 0)) throw new InputError(option, `${targetText} allows a failure probability below double precision; give a lower target`);
+  const sigmaTarget = spec / sigmaLevel(p);
+  if (p >= IMPORTANCE_BELOW) {
+    const n = Math.ceil((z * z) / (YIELD_RELATIVE_HALF_WIDTH ** 2 * p));
+    return {
+      option,
+      targetText,
+      sigmaTarget,
+      allowed: p,
+      method: 'monte-carlo',
+      samples: Math.min(MAX_CONFIRM_SAMPLES, Math.max(o.samples ?? SIZE_SAMPLES, n)),
+      rule: `upper end of the ${c} Clopper-Pearson interval of the Monte Carlo failure probability <= allowed failure ${p.toPrecision(4)}`,
+    };
+  }
+  return {
+    option,
+    targetText,
+    sigmaTarget,
+    allowed: p,
+    method: 'importance-sampling',
+    samples: 0,
+    rule: `upper end of the ${c} interval of the importance-sampling failure probability <= allowed failure ${p.toPrecision(4)}`,
+  };
+}
+
+/**
+ * Sizes the design for an offset target (see the module comment), keeping the bias.
+ * @throws InputError naming the target when it cannot be met, or a bad option
+ * @example
+ * const r = await sizeDesign(design, { target: { kind: 'sigma', sigma: 2e-3 }, vary: 'input.area' });
+ * r.design.input.w // metres
+ */
+export async function sizeDesign(design: Design, options: SizeOptions): Promise<SizeReport> {
+  compileStage(design); // validates at the edge
+  const vary = options.vary ?? 'input.w';
+  checkVary(design, vary);
+  const spec = options.spec ?? design.spec.offset;
+  if (!(spec > 0 && Number.isFinite(spec))) throw new InputError('spec', `expected a positive offset limit in volts, got ${String(spec)}`);
+  const confidence = options.confidence ?? 0.95;
+  if (!(confidence > 0 && confidence < 1)) throw new InputError('confidence', `expected a level strictly between 0 and 1 such as 0.95, got ${String(confidence)}`);
+  const maxRefinements = options.maxRefinements ?? 8;
+  const seed = seedText(options.seed);
+  const pl = plan(design, options, spec, confidence);
+  const notes: string[] = [];
+
+  let split: AreaSplit | undefined;
+  let family: SizingFamily;
+  if (vary === 'both') {
+    split = areaSplit(design);
+    family = optimalSplitFamily(design, split);
+  } else family = singlePairFamily(design, vary);
+
+  const lin = solveLinearised(family, pl.sigmaTarget);
+  if (!lin.reached) throw unreachable(pl.option, pl.targetText, vary, lin, family, spec, pl.allowed !== null);
+  if (lin.atMinimum) notes.push(`the target is met already at the smallest size allowed (linearised sigma ${mvText(lin.sigma)}); the devices are set to that minimum`);
+
+  const original = sizedPoint(design, vary, 1, spec);
+  const linearised = { ...sizedPoint(lin.design, vary, lin.t, spec), atMinimum: lin.atMinimum };
+
+  const executor = options.executor ?? createExecutor(options.workers ?? defaultWorkers());
+  const confirmations: Confirmation[] = [];
+  let current: LinearisedSolution = lin;
+  try {
+    for (let i = 0; ; i++) {
+      const s = i === 0 ? seed : `${seed}/refine-${i}`;
+      const c = await confirm(current, vary, spec, pl, s, confidence, executor, options.signal);
+      confirmations.push(c);
+      if (c.met) break;
+      if (i >= maxRefinements) {
+        throw new InputError(pl.option, `${pl.targetText} was not confirmed on the exact model after ${i + 1} confirmations (last: ${describeFigure(c)}); use more samples or relax the target`);
+      }
+      const next = refine(family, current, c, pl);
+      if (!next.reached) {
+        throw new InputError(pl.option, `${pl.targetText} cannot be confirmed by varying ${vary}: the exact model needs a lower linearised sigma than ${mvText(next.floor.sigma)}, the lowest reachable, ${floorReason(vary, next, family)}`);
+      }
+      current = next;
+    }
+  } finally {
+    if (options.executor === undefined) await executor.close();
+  }
+  const confirmed = confirmations[confirmations.length - 1]!;
+  if (confirmations.length > 1) {
+    notes.push(`the linearised solution was scaled up ${confirmations.length - 1} time(s) until the exact-model figure met the target with its interval`);
+  }
+
+  const result = confirmed.point;
+  const sigmaOriginal = original.sigmaLinearised;
+  const ruleArea = original.variedArea * (sigmaOriginal / pl.sigmaTarget) ** 2;
+  const areaCost = { sigmaOriginal, sigmaTarget: pl.sigmaTarget, originalArea: original.variedArea, ruleArea, resultArea: result.variedArea, ratio: result.variedArea / ruleArea };
+  if (vary !== 'both' && design.load !== undefined) {
+    notes.push('the area rule assumes all of sigma^2 scales with the varied area; here the other pair keeps its part, so more area is needed than the rule says');
+  }
+  if (vary.endsWith('.w') || vary.endsWith('.l')) {
+    notes.push(`changing only ${vary.endsWith('.w') ? 'W' : 'L'} at fixed bias moves the inversion coefficient and gm/I_D, so the dbeta/beta and load terms change too`);
+  }
+  for (const role of variedRoles(vary)) {
+    const before = role === 'input' ? design.input : design.load!;
+    const after = role === 'input' ? current.design.input : current.design.load!;
+    const proc = design.process[before.polarity]!;
+    if ((after.w < before.w || after.l < before.l) && proc.wmin === undefined && proc.lmin === undefined) {
+      notes.push(`process.${before.polarity} gives no wmin/lmin, so the ${role} pair was not made smaller than ${formatQuantity(DEFAULT_MIN_DIMENSION_M, 'm')} in W or L; add them for your process`);
+    }
+  }
+  notes.push(`sized dimensions are rounded up to 4 significant digits${vary.endsWith('.area') || vary === 'both' ? ' (W/L kept to that rounding)' : ''}`);
+
+  let splitReport: SizeReport['split'] = null;
+  if (split !== undefined) {
+    const eq = solveLinearised(equalScalingFamily(design), pl.sigmaTarget);
+    const perDevice = (d: Design) => ({ input: d.input.w * d.input.l, load: d.load!.w * d.load!.l });
+    const opt = perDevice(lin.design);
+    if (eq.reached) {
+      const e = perDevice(eq.design);
+      splitReport = {
+        inputCoefficient: split.inputCoefficient,
+        loadCoefficient: split.loadCoefficient,
+        inputShare: split.inputShare,
+        optimum: { ...opt, total: opt.input + opt.load },
+        equal: { ...e, total: e.input + e.load, factor: eq.t },
+        saving: 1 - (opt.input + opt.load) / (e.input + e.load),
+      };
+    } else notes.push('scaling both pairs by one factor cannot reach the target within the allowed sizes, so there is no equal-scaling comparison');
+  }
+
+  const warnings = [...compileStage(current.design).warnings];
+  return {
+    vary,
+    target: { ...options.target, sigmaEquivalent: pl.sigmaTarget, allowedFailure: pl.allowed },
+    rule: pl.rule,
+    spec,
+    instances: design.spec.instances,
+    confidence,
+    original,
+    linearised,
+    result,
+    confirmed,
+    confirmations,
+    areaCost,
+    split: splitReport,
+    design: current.design,
+    notes,
+    warnings,
+  };
+}
+
+function describeFigure(c: Confirmation): string {
+  if (c.sigma !== null && c.sigmaInterval !== null && c.method === 'monte-carlo') {
+    return `sigma ${mvText(c.sigma)} [${mvText(c.sigmaInterval[0])}, ${mvText(c.sigmaInterval[1])}], failure ${c.failure.toPrecision(3)} [${c.failureInterval[0].toPrecision(3)}, ${c.failureInterval[1].toPrecision(3)}]`;
+  }
+  return `failure ${c.failure.toPrecision(3)} [${c.failureInterval[0].toPrecision(3)}, ${c.failureInterval[1].toPrecision(3)}]`;
+}
+
+async function confirm(
+  at: LinearisedSolution,
+  vary: SizeVary,
+  spec: number,
+  pl: Plan,
+  seed: string,
+  confidence: number,
+  executor: Executor,
+  signal: AbortSignal | undefined,
+): Promise<Confirmation> {
+  const point = sizedPoint(at.design, vary, at.t, spec);
+  const instances = at.design.spec.instances;
+  const chip = (iv: readonly [number, number]): [number, number] => [chipYieldFromFailure(iv[1], instances), chipYieldFromFailure(iv[0], instances)];
+  if (pl.method === 'monte-carlo') {
+    const r = await simulate(at.design, {
+      samples: pl.samples,
+      seed,
+      confidence,
+      executor,
+      spec,
+      keepOffsets: false,
+      ...(signal === undefined ? {} : { signal }),
+    });
+    const fi = r.yield.failure.interval;
+    const met = pl.allowed === null ? r.offset.sigmaInterval[1] <= pl.sigmaTarget : fi[1] <= pl.allowed;
+    return {
+      method: 'monte-carlo',
+      seed,
+      samples: r.evaluated,
+      point,
+      sigma: r.offset.sigma,
+      sigmaInterval: r.offset.sigmaInterval,
+      failure: r.yield.failure.estimate,
+      failureInterval: fi,
+      chipYield: chipYieldFromFailure(r.yield.failure.estimate, instances),
+      chipYieldInterval: chip(fi),
+      met,
+    };
+  }
+  const r = await estimateTail(at.design, {
+    spec,
+    seed,
+    confidence,
+    executor,
+    relError: TAIL_RELATIVE_HALF_WIDTH,
+    ...(signal === undefined ? {} : { signal }),
+  });
+  return {
+    method: 'importance-sampling',
+    seed,
+    samples: r.samples,
+    point,
+    sigma: null,
+    sigmaInterval: null,
+    failure: r.failureProbability,
+    failureInterval: r.interval,
+    chipYield: chipYieldFromFailure(r.failureProbability, instances),
+    chipYieldInterval: chip(r.interval),
+    met: r.interval[1] <= pl.allowed!,
+  };
+}
+
+/**
+ * The next, larger design after a confirmation that missed: the linearised sigma is lowered by
+ * the ratio the exact model showed, with a margin of twice the interval's half-width so that the
+ * next confirmation (an independent stream) passes with high probability.
+ */
+function refine(family: SizingFamily, at: LinearisedSolution, c: Confirmation, pl: Plan): LinearisedSolution | LinearisedFloor {
+  let ratio: number;
+  if (pl.allowed === null) {
+    const s = c.sigma!;
+    const h = (c.sigmaInterval![1] - s) / s;
+    ratio = pl.sigmaTarget / (s * (1 + 2 * h));
+  } else if (c.failure > 0) {
+    // Effective sigma of the exact model: the Gaussian sigma with the same failure probability.
+    const h = (c.failureInterval[1] - c.failure) / c.failure;
+    const effective = 1 / sigmaLevel(c.failure);
+    const wanted = 1 / sigmaLevel(pl.allowed / (1 + 2 * h));
+    ratio = wanted / effective;
+  } else ratio = 0.98;
+  const target = Math.min(at.sigma * ratio, at.sigma * 0.999);
+  const next = solveLinearised(family, target);
+  if (!next.reached) return next;
+  if (next.t <= at.t * 1.001) {
+    // Rounding to 4 digits can leave the same design: step the scale up by at least 0.5%.
+    const t = at.t * 1.005;
+    if (t > family.range[1]) return { reached: false, floor: { t: at.t, design: at.design, sigma: at.sigma }, limiting: limitingTerm(at.design), atMaximum: true };
+    const design = family.at(t);
+    return { t, design, sigma: linearisedSigma(compileStage(design)), reached: true, atMinimum: false };
+  }
+  return next;
+}

@@ -1,0 +1,138 @@
+/**
+ * A sweep: the same analysis over a list of designs (one field stepped), on one executor.
+ * Every point uses the same seed, so neighbouring points share their random streams (common
+ * random numbers) and the differences between them are not masked by sampling noise.
+ */
+import { compileStage, InputError, linearisedSigma, type Design } from '@twinfet/core';
+import { createExecutor, defaultWorkers, type Executor } from './pool.js';
+import { seedText } from './seed.js';
+import { simulate } from './simulate.js';
+import { estimateTail } from './tail.js';
+
+/** Monte Carlo samples per sweep point by default. */
+export const SWEEP_SAMPLES = 20_000;
+
+/** Options of `sweepDesigns`. */
+export interface SweepOptions {
+  /** Monte Carlo samples per point (default 20000). */
+  readonly samples?: number;
+  readonly seed?: string | number;
+  readonly workers?: number;
+  /** An executor to reuse (the caller closes it); otherwise one is made for the whole sweep. */
+  readonly executor?: Executor;
+  /** Confidence level of every interval (default 0.95). */
+  readonly confidence?: number;
+  /** |Vos| limit overriding each design's spec, volts. */
+  readonly spec?: number;
+  /** Add the importance-sampling failure probability at each point. */
+  readonly importance?: boolean;
+  readonly signal?: AbortSignal;
+  /** Called after each finished point with the count of finished points. */
+  readonly onPoint?: (done: number, total: number) => void;
+}
+
+/** The figures of one sweep point. Voltages in volts, probabilities as fractions. */
+export interface SweepPointResult {
+  readonly index: number;
+  /** |Vos| limit and instances per chip used at this point. */
+  readonly spec: number;
+  readonly instances: number;
+  /** Linearised offset sigma, volts. */
+  readonly analyticSigma: number;
+  readonly monteCarlo: {
+    readonly samples: number;
+    readonly sigma: number;
+    readonly sigmaInterval: readonly [number, number];
+    readonly failures: number;
+    readonly yield: number;
+    readonly yieldInterval: readonly [number, number];
+    readonly chipYield: number;
+    readonly chipYieldInterval: readonly [number, number];
+    /** Fewer than 10 failures: the yield is limited by the sample count. */
+    readonly limitedBySamples: boolean;
+  };
+  /** Importance-sampling failure probability (null unless asked for). */
+  readonly importance: null | {
+    readonly failure: number;
+    readonly interval: readonly [number, number];
+    /** Equivalent two-sided sigma level (null when the estimate is 0). */
+    readonly sigmaLevel: number | null;
+    readonly samples: number;
+  };
+  readonly warnings: readonly string[];
+}
+
+/**
+ * Runs the analysis at each design, several points at a time (one per worker thread), and
+ * returns the points in input order.
+ * @throws InputError naming the point when a design is invalid
+ */
+export async function sweepDesigns(designs: readonly Design[], options: SweepOptions = {}): Promise<SweepPointResult[]> {
+  if (designs.length === 0) throw new InputError('designs', 'a sweep needs at least one point');
+  designs.forEach((d, i) => {
+    try {
+      compileStage(d);
+    } catch (e) {
+      if (e instanceof InputError) throw new InputError(e.field, `${e.message.slice(e.field.length + 2)} (at sweep point ${i + 1})`);
+      throw e;
+    }
+  });
+  const seed = seedText(options.seed);
+  const samples = options.samples ?? SWEEP_SAMPLES;
+  const confidence = options.confidence ?? 0.95;
+  const executor = options.executor ?? createExecutor(options.workers ?? defaultWorkers());
+  const out: SweepPointResult[] = new Array<SweepPointResult>(designs.length);
+  let next = 0;
+  let done = 0;
+  let failed = false;
+  const lane = async (): Promise<void> => {
+    while (next < designs.length && !failed) {
+      const index = next++;
+      try {
+        out[index] = await point(designs[index]!, index);
+      } catch (e) {
+        failed = true;
+        throw e;
+      }
+      done++;
+      options.onPoint?.(done, designs.length);
+    }
+  };
+  const point = async (design: Design, index: number): Promise<SweepPointResult> => {
+    const spec = options.spec ?? design.spec.offset;
+    const common = { seed, confidence, executor, spec, ...(options.signal === undefined ? {} : { signal: options.signal }) };
+    const r = await simulate(design, { ...common, samples, keepOffsets: false });
+    const tail = options.importance === true ? await estimateTail(design, common) : undefined;
+    return {
+      index,
+      spec,
+      instances: design.spec.instances,
+      analyticSigma: linearisedSigma(compileStage(design)),
+      monteCarlo: {
+        samples: r.evaluated,
+        sigma: r.offset.sigma,
+        sigmaInterval: r.offset.sigmaInterval,
+        failures: r.yield.failures,
+        yield: r.yield.estimate,
+        yieldInterval: r.yield.interval,
+        chipYield: r.chip.estimate,
+        chipYieldInterval: r.chip.interval,
+        limitedBySamples: r.yield.limitedBySamples,
+      },
+      importance:
+        tail === undefined
+          ? null
+          : { failure: tail.failureProbability, interval: tail.interval, sigmaLevel: tail.sigmaLevel, samples: tail.samples },
+      warnings: r.warnings,
+    };
+  };
+  try {
+    const lanes = Math.min(designs.length, Math.max(1, executor.threads));
+    const results = await Promise.allSettled(Array.from({ length: lanes }, lane));
+    const rejected = results.find((x): x is PromiseRejectedResult => x.status === 'rejected');
+    if (rejected !== undefined) throw rejected.reason;
+  } finally {
+    if (options.executor === undefined) await executor.close();
+  }
+  return out;
+}
