@@ -1,6 +1,6 @@
 import { readFileSync } from 'node:fs';
 import { Command, CommanderError } from 'commander';
-import { isInputError } from '@twinfet/core';
+import { InputError, isInputError } from '@twinfet/core';
 import { loadDesign } from './designFile.js';
 import { inspectDesign, renderInspect } from './commands/inspect.js';
 import { processIo, printJson, type Io, NonFiniteResultError } from './output.js';
@@ -47,7 +47,17 @@ export function buildProgram(io: Io, setExit: (code: number) => void): Command {
   registerTail(program, io, setExit);
   registerSize(program, io, setExit);
   registerSweep(program, io, setExit);
-  for (const c of program.commands) c.exitOverride().configureOutput(output(io));
+  for (const c of program.commands) c.exitOverride().configureOutput(output(io)).allowExcessArguments(true);
+  // Name a stray argument ourselves: it is nearly always a unit split off its value (--spec 5 mV).
+  program.hook('preAction', (_root, action) => {
+    const extra = action.args.slice(action.registeredArguments.length);
+    if (extra.length > 0) {
+      throw new InputError(
+        action.name(),
+        `unexpected argument "${extra.join(' ')}" after the design file; quote a value with a space (--spec "5 mV") or write it joined (--spec 5mV)`,
+      );
+    }
+  });
   return program;
 }
 

@@ -33,12 +33,20 @@ export function compileSimplePair(design: Design, temperatureWarnings: readonly 
     const z2 = bR * c2 + bS * u[base + 3]!;
     // ln(s1/s2) = -(z1 - z2)/2 exactly, so weak and moderate inversion need no log call.
     const dv = ekvInverseDifference(s0 * Math.exp(-0.5 * z1), s0 * Math.exp(-0.5 * z2), -0.5 * (z1 - z2));
-    return sign * (sVt * (a - c2) + nut * dv);
+    const vos = sign * (sVt * (a - c2) + nut * dv);
+    // A current factor so far out that exp overflows (sigma(dbeta/beta) of hundreds) has no
+    // finite balance: NaN, counted as not evaluated like a failed mirror solve, never +-Infinity.
+    return vos - vos === 0 ? vos : Number.NaN;
   };
 
   const offsets = (u: Float64Array, count: number, out: Float64Array, outBase: number): number => {
-    for (let i = 0, j = 0; i < count; i++, j += 4) out[outBase + i] = offset(u, j);
-    return 0;
+    let failed = 0;
+    for (let i = 0, j = 0; i < count; i++, j += 4) {
+      const vos = offset(u, j);
+      out[outBase + i] = vos;
+      if (vos !== vos) failed++;
+    }
+    return failed;
   };
 
   // Linearised: dv_i/dz_beta,i = -1/g (g = n U_T gm/I_D), so dVos/dz_beta = -(I_D/gm) per device.

@@ -51,7 +51,8 @@ export interface Stage {
   readonly warnings: readonly string[];
   /**
    * Exact offset Vos = V_G1 - V_G2 (volts) for the draws u[base .. base + dimension).
-   * Returns NaN only when the balance solve did not converge (never silently wrong).
+   * Returns NaN only when the balance solve did not converge or the draws put a device beyond
+   * the range of doubles (never silently wrong, never +-Infinity).
    */
   offset(u: Float64Array, base: number): number;
   /**

@@ -19,6 +19,10 @@ export interface DesignPoint {
 }
 
 const FD_STEP = 1e-5;
+/** Relative step size below which HL-RF counts as settled (see the loop). */
+const MOVE_TOLERANCE = 1e-6;
+/** The fallback line search looks this many sigmas out at most (Phi(-r) underflows from ~38). */
+const LINE_SEARCH_MAX = 4096;
 
 function gradient(stage: Stage, u: Float64Array, out: Float64Array, scratch: Float64Array): void {
   for (let j = 0; j < u.length; j++) {
@@ -82,7 +86,11 @@ export function findDesignPoint(stage: Stage, target: number): DesignPoint {
       u[j] = next[j]!;
     }
     const moved = Math.sqrt(delta);
-    if (moved < 1e-9 * Math.max(1, norm(u)) && Math.abs(stage.offset(u, 0) - target) <= tol) {
+    // The central-difference gradient carries rounding noise of relative size ~eps |u| / FD_STEP,
+    // which turns the point about the origin by ~1e-7 |u| per step at |u| ~ 600 (large pairs at
+    // a loose spec) while the distance and the residual have settled: 1e-6 |u| is above that
+    // noise and still far below what matters for FORM or for a sampling shift.
+    if (moved < MOVE_TOLERANCE * Math.max(1, norm(u)) && Math.abs(stage.offset(u, 0) - target) <= tol) {
       converged = true;
       break;
     }
@@ -109,11 +117,12 @@ function lineSearch(stage: Stage, target: number, u: Float64Array): void {
   };
   let lo = 0;
   let hi = 1;
-  while (at(hi) < 0 && hi < 64) hi *= 2;
+  while (at(hi) < 0 && hi < LINE_SEARCH_MAX) hi *= 2;
   for (let i = 0; i < 200 && hi - lo > 1e-12 * hi; i++) {
     const mid = 0.5 * (lo + hi);
     if (at(mid) < 0) lo = mid;
-    else hi = mid;
+    else hi = mid; // also where the model has no finite value: the search stays inside it
   }
-  at(hi);
+  // Never end on a point whose offset is not finite (it would reach the report as NaN).
+  if (!Number.isFinite(at(hi))) at(lo);
 }

@@ -76,3 +76,59 @@ export function sigmaLevel(pTwoSided: number): number {
 export function normalPdf(x: number): number {
   return INV_SQRT_2PI * Math.exp(-0.5 * x * x);
 }
+
+/** Below this the upper tail is a normal double; above it Phi(-x) heads for underflow (~38.5). */
+const LOG_TAIL_SWITCH = 37;
+const HALF_LOG_2PI = 0.5 * Math.log(2 * Math.PI);
+
+/**
+ * ln Phi(-x), the log of the upper tail, finite for every finite x >= 0 (also where Phi(-x)
+ * underflows to 0). Beyond x = 37 it uses the asymptotic series of the Mills ratio,
+ * Phi(-x) = phi(x)/x (1 - 1/x^2 + 3/x^4 - 15/x^6 + 105/x^8 - ...) (Abramowitz & Stegun 1964,
+ * 26.2.12), whose first omitted term is below 3e-13 there.
+ * @example logNormalUpperTail(40) // -804.608442013754
+ */
+export function logNormalUpperTail(x: number): number {
+  if (!(x >= 0 && x < Infinity)) {
+    throw new RangeError(`logNormalUpperTail: x must be a finite number >= 0, got ${x}`);
+  }
+  if (x < LOG_TAIL_SWITCH) return Math.log(normalUpperTail(x));
+  return -0.5 * x * x - Math.log(x) - HALF_LOG_2PI + Math.log(millsSeries(x));
+}
+
+/** x Phi(-x) / phi(x) = 1 - 1/x^2 + 3/x^4 - 15/x^6 + 105/x^8 for x >= 37 (A&S 26.2.12). */
+function millsSeries(x: number): number {
+  const r = 1 / (x * x);
+  return 1 - r * (1 - 3 * r * (1 - 5 * r * (1 - 7 * r)));
+}
+
+/**
+ * Two-sided sigma level k of a failure probability given as a sum of one-sided tails
+ * sum_i Phi(-d_i) (FORM with one design point per side): 2 Phi(-k) = sum_i Phi(-d_i).
+ * Stays finite where the sum underflows (distances beyond ~38, such as a very large pair at a
+ * loose spec): there it solves ln Phi(-k) = ln(sum/2) in log space by Newton's method.
+ * @example sigmaLevelOfTails([6, 6]) // 6
+ * @example sigmaLevelOfTails([600, 600]) // 600
+ */
+export function sigmaLevelOfTails(distances: readonly number[]): number {
+  if (distances.length === 0) throw new RangeError('sigmaLevelOfTails: no distances');
+  let p = 0;
+  for (const d of distances) p += normalUpperTail(d);
+  if (p >= 1e-300) return sigmaLevel(Math.min(1, p));
+  const logs = distances.map(logNormalUpperTail);
+  const top = Math.max(...logs);
+  let acc = 0;
+  for (const l of logs) acc += Math.exp(l - top);
+  const target = top + Math.log(acc) - Math.LN2;
+  // ln Phi(-k) is smooth and decreasing with slope -phi(k)/Phi(-k) = -k / millsSeries(k)
+  // (k > 37 here, since the sum underflowed): Newton from the leading-order root
+  // sqrt(-2 target), which lies above the root, converges in a few steps. The slope comes
+  // from the series, not from exp(ln phi - ln Phi): that difference cancels at large k.
+  let k = Math.sqrt(-2 * target);
+  for (let i = 0; i < 50; i++) {
+    const step = ((logNormalUpperTail(k) - target) * millsSeries(k)) / -k;
+    k = Math.max(LOG_TAIL_SWITCH, k - step);
+    if (Math.abs(step) <= 1e-15 * k) break;
+  }
+  return k;
+}

@@ -1,4 +1,6 @@
+import { once } from 'node:events';
 import { availableParallelism } from 'node:os';
+import type { Worker } from 'node:worker_threads';
 import { Piscina } from 'piscina';
 import type { ChunkResult, ChunkTask, WorkerReply } from './messages.js';
 import { runChunk } from './chunk.js';
@@ -85,10 +87,25 @@ export function poolExecutor(workers: number): Executor {
     execArgv: fromSource ? ['--import', 'tsx'] : [],
   });
   let closed = false;
+  // Every thread the pool has started, until it exits. piscina 5.3.2 drops a crashed worker, or
+  // one whose task was aborted, at once but hears of its exit later; an exit that arrives after
+  // destroy() has returned (destroy clears its `destroying` flag) makes it start replacements,
+  // threads that outlive the pool. close() therefore waits for the dropped ones first.
+  const alive = new Set<Worker>();
+  const track = (): void => {
+    for (const w of pool.threads) {
+      if (alive.has(w)) continue;
+      alive.add(w);
+      w.once('exit', () => alive.delete(w));
+    }
+  };
+  pool.on('workerCreate', track);
+  track();
   return {
     threads: workers,
     async run(task, signal) {
       if (closed) throw new Error('internal: executor used after close');
+      track();
       let reply: WorkerReply;
       try {
         reply = await pool.run(task, signal === undefined ? {} : { signal });
@@ -102,9 +119,26 @@ export function poolExecutor(workers: number): Executor {
     async close() {
       if (closed) return;
       closed = true;
+      track();
+      const inPool = new Set(pool.threads);
+      const dropped = [...alive].filter((w) => !inPool.has(w));
+      for (const w of dropped) void w.terminate(); // already asked by piscina; harmless twice
+      await Promise.all(dropped.map((w) => (alive.has(w) ? once(w, 'exit') : undefined)));
       await pool.destroy();
+      // Replacements started while waiting were in the pool and are gone with it; anything
+      // still tracked here would be a thread piscina no longer knows of: end it too.
+      track();
+      await Promise.all([...alive].map(async (w) => {
+        const exited = once(w, 'exit');
+        await w.terminate();
+        if (alive.has(w)) await exited;
+      }));
+      pool.off('workerCreate', track);
     },
-    liveThreads: () => (closed ? 0 : pool.threads.length),
+    liveThreads: () => {
+      if (!closed) track();
+      return alive.size;
+    },
   };
 }
 

@@ -1,7 +1,7 @@
 import { compileStage, InputError, type Design, type Stage } from '@twinfet/core';
 import { findDesignPoint, type DesignPoint } from './designPoint.js';
 import type { ImportanceResult, ImportanceTask } from './messages.js';
-import { normalQuantile, sigmaLevel } from './normal.js';
+import { normalQuantile, sigmaLevel, sigmaLevelOfTails } from './normal.js';
 import { createExecutor, defaultWorkers, inThreadExecutor, type Executor } from './pool.js';
 import { runChunks } from './schedule.js';
 import { seedText } from './seed.js';
@@ -78,6 +78,11 @@ export interface TailReport {
   readonly form: { readonly failureProbability: number; readonly sigmaLevel: number };
   readonly chip: { readonly instances: number; readonly failure: number; readonly interval: readonly [number, number] };
   readonly seconds: number;
+}
+
+/** A count beyond the range of doubles (p near the smallest doubles) is reported as not available. */
+function finiteOrNull(x: number): number | null {
+  return Number.isFinite(x) ? x : null;
 }
 
 function describePoint(stage: Stage, p: DesignPoint): ReportedDesignPoint {
@@ -160,7 +165,9 @@ export async function estimateTail(design: Design, options: TailOptions = {}): P
     nonConverged += r.nonConverged;
   };
   const stats = () => {
-    const p = sum / n;
+    // An unbiased estimate may exceed 1 by a hair when nearly every sample fails: clamp, so
+    // the sigma level and the chip failure stay defined.
+    const p = Math.min(1, sum / n);
     const variance = Math.max(0, sumSquares / n - p * p);
     return { p, se: Math.sqrt(variance / n), variance };
   };
@@ -186,7 +193,7 @@ export async function estimateTail(design: Design, options: TailOptions = {}): P
       if (fixed === undefined && p > 0 && hits >= 10 && (z * se) / p <= relError) break;
       if (ownExecutor && executor.threads === 0 && wantedWorkers > 1) {
         // Samples still needed: fixed count, or (z/E)^2 relVar from the estimate so far.
-        const need = fixed ?? (p > 0 ? ((z / relError) ** 2 * variance) / (p * p) : maxSamples);
+        const need = fixed ?? (p > 0 ? ((z / relError) ** 2 * variance) / p / p : maxSamples);
         if (need - n > POOL_THRESHOLD) executor = createExecutor(wantedWorkers);
       }
       if (n >= maxSamples && fixed === undefined) stopRule = 'max-samples';
@@ -218,10 +225,12 @@ export async function estimateTail(design: Design, options: TailOptions = {}): P
     nonConverged,
     seed,
     stopRule,
-    relativeVariancePerSample: has ? variance / (p * p) : null,
-    equivalentPlainSamples: relHalf !== null && relHalf > 0 ? (z * z * (1 - p)) / (p * relHalf * relHalf) : null,
+    // variance / p^2 divided in two steps: p^2 underflows to 0 for p below ~1e-162.
+    relativeVariancePerSample: has ? variance / p / p : null,
+    equivalentPlainSamples: relHalf !== null && relHalf > 0 ? finiteOrNull((z * z * (1 - p)) / p / relHalf / relHalf) : null,
     designPoints: points.map((pt) => describePoint(stage, pt)),
-    form: { failureProbability: formP, sigmaLevel: sigmaLevel(formP) },
+    // From the distances, not from formP: beyond ~38 sigma formP underflows to 0 and its level would be Infinity.
+    form: { failureProbability: formP, sigmaLevel: sigmaLevelOfTails([points[0]!.distance, points[1]!.distance]) },
     chip: {
       instances,
       failure: chipFailure(p, instances),

@@ -82,6 +82,14 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
         ...(relError === undefined ? {} : { relError }),
         ...(samples === undefined ? {} : { samples }),
       });
+    } catch (e) {
+      if (ac.signal.aborted) {
+        // An interrupted estimate has no honest interval to give (the stop rule never ran).
+        io.err('twinfet: tail interrupted before the estimate reached its stop rule; nothing was printed');
+        setExit(130);
+        return;
+      }
+      throw e;
     } finally {
       bar.stop();
       process.removeListener('SIGINT', onSigint);
