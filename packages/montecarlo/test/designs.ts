@@ -1,10 +1,8 @@
 import type { Design } from '@twinfet/core';
+import { demoProcess } from '../../core/test/designs.js';
 
-/** Invented demo process for tests (not foundry data). */
-export const testProcess = {
-  n: { vt0: 0.45, slope: 1.3, kp: 300e-6, avt: 5e-9, abeta: 1e-8, rho: 0 },
-  p: { vt0: 0.5, slope: 1.35, kp: 90e-6, avt: 6.5e-9, abeta: 1.2e-8, rho: 0 },
-} as const;
+/** The invented demo process of the core tests (not foundry data). */
+export const testProcess = demoProcess;
 
 /** A large simple pair: sigma(dbeta/beta) of 0.16%, so the offset is linear to well under 1%. */
 export const bigSimple: Design = {

@@ -1,4 +1,5 @@
 import { describe, it, expect } from 'vitest';
+import { mulberry32 } from './testRandom.js';
 import fc from 'fast-check';
 import {
   addToHistogram,
@@ -11,17 +12,6 @@ import {
 } from '../src/histogram.js';
 import { normalPdf, normalQuantile } from '../src/normal.js';
 
-/** Test-only generator: mulberry32 (public-domain 32-bit generator), fixed seed. */
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** Test-only Box-Muller normals (Box & Muller, Ann. Math. Stat. 29, 1958). */
 function seededNormals(n: number, seed: number): Float64Array {

@@ -1,4 +1,5 @@
 import { describe, it, expect } from 'vitest';
+import { mulberry32, relErr } from './testRandom.js';
 import {
   KS_EXACT_MAX_ORDER,
   kolmogorovCdf,
@@ -8,21 +9,6 @@ import {
   ksStatistic,
 } from '../src/ks.js';
 
-function relErr(actual: number, expected: number): number {
-  return Math.abs(actual - expected) / Math.abs(expected);
-}
-
-/** Test-only generator: mulberry32 (public-domain 32-bit generator), fixed seed. */
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 const uniformCdf = (x: number): number => (x <= 0 ? 0 : x >= 1 ? 1 : x);
 

@@ -1,27 +1,13 @@
 import { describe, it, expect } from 'vitest';
+import { mulberry32, relErr } from './testRandom.js';
 import fc from 'fast-check';
 import { addSamples, emptyMoments, mergeMoments, stdDev, variance } from '../src/moments.js';
 import type { Moments } from '../src/moments.js';
-
-function relErr(actual: number, expected: number): number {
-  return Math.abs(actual - expected) / Math.abs(expected);
-}
 
 function onePass(values: Float64Array): Moments {
   return addSamples(emptyMoments(), values, 0, values.length);
 }
 
-/** Test-only generator: mulberry32 (public-domain 32-bit generator), fixed seed. */
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 describe('moments: reference values', () => {
   it('[2, 4, 4, 4, 5, 5, 7, 9]: mean 5, sample variance 32/7, min 2, max 9', () => {

@@ -1,4 +1,5 @@
 import { describe, it, expect } from 'vitest';
+import { mulberry32, relErr } from './testRandom.js';
 import jStat from 'jstat';
 import {
   CHI_SQUARE_APPROXIMATION_DOF,
@@ -7,21 +8,6 @@ import {
   sigmaInterval,
 } from '../src/sigmaInterval.js';
 
-function relErr(actual: number, expected: number): number {
-  return Math.abs(actual - expected) / Math.abs(expected);
-}
-
-/** Test-only generator: mulberry32 (public-domain 32-bit generator), fixed seed. */
-function mulberry32(seed: number): () => number {
-  let a = seed >>> 0;
-  return () => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return ((t ^ (t >>> 14)) >>> 0) / 4294967296;
-  };
-}
 
 /** Test-only Box-Muller normal pair from two uniforms (Box & Muller, Ann. Math. Stat. 1958). */
 function fillNormals(rand: () => number, out: Float64Array): void {

@@ -7,7 +7,7 @@ import { designSummary, pct, sci } from '../describe.js';
 import { loadDesign } from '../designFile.js';
 import { parseCount } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
-import { progressBar } from '../progress.js';
+import { withInterrupt } from '../interrupt.js';
 import { renderPairs } from '../table.js';
 import { textHistogram } from '../textHistogram.js';
 import { renderBudget, yieldDigits, yieldFromFailure, yieldText } from './inspect.js';
@@ -163,29 +163,28 @@ export function registerRun(program: Command, io: Io, setExit: (code: number) =>
   ).action(async (file: string, flags: RunFlags) => {
     const o = parseRunFlags(flags);
     const design = await loadDesign(file);
-    const ac = new AbortController();
-    const onSigint = (): void => ac.abort();
-    process.once('SIGINT', onSigint);
-    const bar = progressBar(io, 'run');
-    let outcome: RunOutcome;
-    try {
-      outcome = await runMonteCarlo(design, {
+    const done = await withInterrupt(io, 'run', (signal, onProgress) =>
+      runMonteCarlo(design, {
         samples: o.samples,
         workers: o.workers,
         confidence: o.confidence,
         interval: o.interval,
-        signal: ac.signal,
+        signal,
         partialOnAbort: true,
-        onProgress: bar.update,
+        onProgress,
         keepDraws: flags.samplesOut !== undefined,
         ...(o.seed === undefined ? {} : { seed: o.seed }),
         ...(o.spec === undefined ? {} : { spec: o.spec }),
         ...(o.method === 'importance' ? { importance: true } : {}),
-      });
-    } finally {
-      bar.stop();
-      process.removeListener('SIGINT', onSigint);
+      }),
+    );
+    if (!('value' in done)) {
+      // Interrupted before a single chunk finished: there are no statistics to print.
+      io.err('twinfet: run interrupted before any chunk finished; nothing was printed');
+      setExit(130);
+      return;
     }
+    const outcome = done.value;
     const report = outcome.report;
     assertFinite(report);
     if (flags.samplesOut !== undefined) await writeSamplesCsv(flags.samplesOut, design, outcome);

@@ -10,6 +10,7 @@ import { closestWord } from '../didYouMean.js';
 import { writeOutputFile } from '../files.js';
 import { parseCount, parseFraction } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
+import { withInterrupt } from '../interrupt.js';
 import { renderPairs, renderTable } from '../table.js';
 import { yieldText } from './inspect.js';
 
@@ -200,34 +201,32 @@ export function registerSize(program: Command, io: Io, setExit: (code: number) =
       throw new InputError('--write', `expected a file name ending in .yaml, got "${flags.write}"`);
     }
     const design = await loadDesign(file);
-    const ac = new AbortController();
-    const onSigint = (): void => ac.abort();
-    process.once('SIGINT', onSigint);
-    let report: SizeReport;
+    let done: Awaited<ReturnType<typeof withInterrupt<SizeReport>>>;
     try {
-      report = await sizeDesign(design, {
-        target,
-        vary,
-        workers: common.workers,
-        confidence: common.confidence,
-        signal: ac.signal,
-        ...(common.seed === undefined ? {} : { seed: common.seed }),
-        ...(common.spec === undefined ? {} : { spec: common.spec }),
-        ...(samples === undefined ? {} : { samples }),
-      });
+      done = await withInterrupt(io, 'size', (signal) =>
+        sizeDesign(design, {
+          target,
+          vary,
+          workers: common.workers,
+          confidence: common.confidence,
+          signal,
+          ...(common.seed === undefined ? {} : { seed: common.seed }),
+          ...(common.spec === undefined ? {} : { spec: common.spec }),
+          ...(samples === undefined ? {} : { samples }),
+        }),
+      );
     } catch (e) {
-      if (ac.signal.aborted) {
-        io.err('twinfet: size interrupted; nothing was written');
-        setExit(130);
-        return;
-      }
       if (isInputError(e) && Object.hasOwn(OPTION_OF, e.field)) {
         throw new InputError(OPTION_OF[e.field]!, e.message.slice(e.field.length + 2));
       }
       throw e;
-    } finally {
-      process.removeListener('SIGINT', onSigint);
     }
+    if (!('value' in done)) {
+      io.err('twinfet: size interrupted; nothing was written');
+      setExit(130);
+      return;
+    }
+    const report = done.value;
     const sized: Design = { ...report.design, name: `${design.name}, sized` };
     const out = { source: file, ...report, design: sized, written: flags.write ?? null };
     assertFinite(out);

@@ -8,7 +8,7 @@ import { writeOutputFile } from '../files.js';
 import { parseCount, parseFraction } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
 import type { SweepPoint } from '../plot.js';
-import { progressBar } from '../progress.js';
+import { withInterrupt } from '../interrupt.js';
 import { renderTable } from '../table.js';
 import { plotAxis, sweepField, sweepValues, withField, type SweepField } from '../sweepField.js';
 import { yieldDigits, yieldText } from './inspect.js';
@@ -200,33 +200,24 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
     pointDesign(design, f, values[values.length - 1]!, '--to');
     const designs = values.map((v) => pointDesign(design, f, v, '--vary'));
 
-    const ac = new AbortController();
-    const onSigint = (): void => ac.abort();
-    process.once('SIGINT', onSigint);
-    const bar = progressBar(io, 'sweep');
-    let points: SweepPointResult[];
-    try {
-      points = await sweepDesigns(designs, {
+    const done = await withInterrupt(io, 'sweep', (signal, onProgress) =>
+      sweepDesigns(designs, {
         samples,
         workers: common.workers,
         confidence: common.confidence,
         importance: method === 'importance',
-        signal: ac.signal,
-        onPoint: (d, t) => bar.update(d * samples, t * samples),
+        signal,
+        onPoint: (d, t) => onProgress(d * samples, t * samples),
         ...(common.seed === undefined ? {} : { seed: common.seed }),
         ...(common.spec === undefined ? {} : { spec: common.spec }),
-      });
-    } catch (e) {
-      if (ac.signal.aborted) {
-        io.err('twinfet: sweep interrupted; nothing was printed or written');
-        setExit(130);
-        return;
-      }
-      throw e;
-    } finally {
-      bar.stop();
-      process.removeListener('SIGINT', onSigint);
+      }),
+    );
+    if (!('value' in done)) {
+      io.err('twinfet: sweep interrupted; nothing was printed or written');
+      setExit(130);
+      return;
     }
+    const points: SweepPointResult[] = done.value;
     const warnings = [...new Set(points.flatMap((p) => p.warnings.map((w) => `at ${f.path} = ${shown(f, values[p.index]!)}: ${w}`)))];
     if (points.some((p) => p.monteCarlo.limitedBySamples) && method === 'plain') {
       notes.push('some points saw fewer than 10 failures: their yields are limited by the sample count; add --method importance for high-sigma figures');

@@ -6,7 +6,7 @@ import { designSummary, sci } from '../describe.js';
 import { loadDesign } from '../designFile.js';
 import { parseCount, parseFraction } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
-import { progressBar } from '../progress.js';
+import { withInterrupt } from '../interrupt.js';
 import { renderPairs, renderTable } from '../table.js';
 
 interface TailFlags extends CommonFlags {
@@ -66,34 +66,25 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
     const relError = flags.relError === undefined ? undefined : parseFraction(flags.relError, '--rel-error', '0.05');
     const samples = flags.samples === undefined ? undefined : parseCount(flags.samples, '--samples', 100, 1e10);
     const design = await loadDesign(file);
-    const ac = new AbortController();
-    const onSigint = (): void => ac.abort();
-    process.once('SIGINT', onSigint);
-    const bar = progressBar(io, 'tail');
-    let report: TailReport;
-    try {
-      report = await estimateTail(design, {
+    const done = await withInterrupt(io, 'tail', (signal, onProgress) =>
+      estimateTail(design, {
         workers: common.workers,
         confidence: common.confidence,
-        signal: ac.signal,
-        onProgress: bar.update,
+        signal,
+        onProgress,
         ...(common.seed === undefined ? {} : { seed: common.seed }),
         ...(common.spec === undefined ? {} : { spec: common.spec }),
         ...(relError === undefined ? {} : { relError }),
         ...(samples === undefined ? {} : { samples }),
-      });
-    } catch (e) {
-      if (ac.signal.aborted) {
-        // An interrupted estimate has no honest interval to give (the stop rule never ran).
-        io.err('twinfet: tail interrupted before the estimate reached its stop rule; nothing was printed');
-        setExit(130);
-        return;
-      }
-      throw e;
-    } finally {
-      bar.stop();
-      process.removeListener('SIGINT', onSigint);
+      }),
+    );
+    if (!('value' in done)) {
+      // An interrupted estimate has no honest interval to give (the stop rule never ran).
+      io.err('twinfet: tail interrupted before the estimate reached its stop rule; nothing was printed');
+      setExit(130);
+      return;
     }
+    const report = done.value;
     assertFinite(report);
     if (flags.json === true) printJson(io, { design: designSummary(design), ...report });
     else {
