@@ -28,11 +28,11 @@ function chunkNs(design: Design): number {
     keepDraws: false,
   };
   // Warm-up long enough for the JIT to settle (5 chunks were not: the first design measured
-  // came out 20-30% slow), then the best of three timed batches.
+  // came out 20-30% slow), then the best of five timed batches (the least disturbed by other load on a shared machine).
   for (let i = 0; i < 30; i++) runChunk({ ...task, chunk: 1000 + i });
   const reps = quick ? 10 : 30;
   let best = Infinity;
-  for (let round = 0; round < 3; round++) {
+  for (let round = 0; round < 5; round++) {
     const t = performance.now();
     for (let i = 0; i < reps; i++) runChunk({ ...task, chunk: round * reps + i });
     best = Math.min(best, ((performance.now() - t) * 1e6) / (reps * task.count));
@@ -46,7 +46,7 @@ async function runNs(design: Design, workers: number, samples: number): Promise<
   try {
     await simulate(design, { samples: 2_000_000, executor, keepOffsets: false }); // warm-up: threads and JIT
     let best = Infinity;
-    for (let rep = 0; rep < 2; rep++) {
+    for (let rep = 0; rep < 3; rep++) {
       const t = performance.now();
       await simulate(design, { samples, executor, keepOffsets: false, seed: `bench-${rep}` });
       best = Math.min(best, ((performance.now() - t) * 1e6) / samples);
@@ -78,7 +78,7 @@ for (const name of examples) {
   console.log(line([name, design.topology, c.toFixed(1), one.toFixed(1), all.toFixed(1), `${(one / all).toFixed(2)}x`, (1e9 / all).toExponential(2)]));
 }
 console.log('  chunk ns: one 65536-sample chunk in this thread (draws, exact offsets, statistics).');
-console.log('  run ns: wall time of simulate() per sample (3e7 simple, 8e6 mirror samples; best of 2) on a warm pool.');
+console.log('  run ns: wall time of simulate() per sample (3e7 simple, 8e6 mirror samples; best of 3) on a warm pool.');
 console.log(`  pool start-up plus one 131072-sample run with ${defaultWorkers()} workers: ${(await poolStartMs(await loadDesign(`${root}examples/comparator-demo.yaml`))).toFixed(0)} ms.`);
 
 // Peak memory of a long run that keeps no samples: it must stay flat in the sample count.
