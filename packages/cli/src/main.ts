@@ -3,7 +3,7 @@ import { Command, CommanderError } from 'commander';
 import { InputError, isInputError } from '@twinfet/core';
 import { loadDesign } from './designFile.js';
 import { inspectDesign, renderInspect } from './commands/inspect.js';
-import { processIo, printJson, type Io, NonFiniteResultError } from './output.js';
+import { assertFinite, processIo, printJson, type Io, NonFiniteResultError } from './output.js';
 import { registerRun } from './commands/run.js';
 import { registerTail } from './commands/tail.js';
 import { registerSize } from './commands/size.js';
@@ -38,6 +38,7 @@ export function buildProgram(io: Io, setExit: (code: number) => void): Command {
     .option('--json', 'print one JSON object instead of tables')
     .action(async (file: string, opts: { json?: boolean }) => {
       const report = inspectDesign(await loadDesign(file));
+      assertFinite(report);
       if (opts.json === true) printJson(io, report);
       else io.out(renderInspect(report));
       setExit(EXIT.ok);
