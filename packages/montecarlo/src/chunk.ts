@@ -102,6 +102,7 @@ function runImportance(stage: Stage, task: ImportanceTask): ImportanceResult {
     halfNorms[c] = 0.5 * q;
   });
   const logK = Math.log(k);
+  const logScale = task.logScale;
   const spec = task.spec;
   const u = new Float64Array(BLOCK * dim);
   const out = new Float64Array(BLOCK);
@@ -141,7 +142,7 @@ function runImportance(stage: Stage, task: ImportanceTask): ImportanceResult {
       const x = out[i]!;
       if (x !== x) continue;
       if (x > spec || x < -spec) {
-        const w = Math.exp(logw[i]!);
+        const w = Math.exp(logw[i]! + logScale);
         hits++;
         sum += w;
         sumSquares += w * w;

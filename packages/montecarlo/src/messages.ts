@@ -38,6 +38,11 @@ export interface ImportanceTask extends TaskBase {
   readonly kind: 'importance';
   /** Mixture centres in standard-normal space, each of the stage's dimension. */
   readonly shifts: readonly (readonly number[])[];
+  /**
+   * Weights are accumulated as w e^{logScale}, so that at 26-37 sigma (w ~ e^{-b^2/2}) neither
+   * w nor w^2 underflows; the caller divides the sums back.
+   */
+  readonly logScale: number;
 }
 
 export type ChunkTask = MonteCarloTask | ImportanceTask;
@@ -65,7 +70,7 @@ export interface ImportanceResult {
   readonly kind: 'importance';
   readonly chunk: number;
   readonly count: number;
-  /** Sum of w * 1{|Vos| > spec}, and of its square. */
+  /** Sum of w e^{logScale} 1{|Vos| > spec}, and of its square. */
   readonly sum: number;
   readonly sumSquares: number;
   /** The same split by side (Vos > +spec, Vos < -spec). */

@@ -69,7 +69,13 @@ export interface TailReport {
   readonly hits: number;
   readonly nonConverged: number;
   readonly seed: string;
-  readonly stopRule: 'relative-error' | 'samples' | 'max-samples';
+  readonly stopRule: 'relative-error' | 'samples' | 'max-samples' | 'below-double-range';
+  /**
+   * True when the probability is below the smallest double (both design points beyond ~37.5
+   * sigma): no sample could weigh it, so none is drawn; `failureProbability` is then 0 and
+   * `sigmaLevel` and `form.sigmaLevel` come from the design points' distances.
+   */
+  readonly belowDoubleRange: boolean;
   /** Relative variance per sample, var(w 1{fail}) / p^2: the figure of merit. */
   readonly relativeVariancePerSample: number | null;
   /** Plain Monte Carlo samples for the same relative half-width h: z^2 (1 - p) / (p h^2). */
@@ -164,16 +170,22 @@ export async function estimateTail(design: Design, options: TailOptions = {}): P
     hits += r.hits;
     nonConverged += r.nonConverged;
   };
+  // Sums are of w e^{logScale}: with the scale at the nearer design point's b^2/2 the scaled
+  // weights near the failure region are of order 1 at any distance (see ImportanceTask).
+  const logScale = 0.5 * Math.min(points[0]!.distance, points[1]!.distance) ** 2;
+  const unscale = Math.exp(-logScale);
+  /** Scaled estimate and variance (scale-free ratios are taken from these). */
   const stats = () => {
-    // An unbiased estimate may exceed 1 by a hair when nearly every sample fails: clamp, so
-    // the sigma level and the chip failure stay defined.
-    const p = Math.min(1, sum / n);
-    const variance = Math.max(0, sumSquares / n - p * p);
-    return { p, se: Math.sqrt(variance / n), variance };
+    const ps = sum / n;
+    const variance = Math.max(0, sumSquares / n - ps * ps);
+    return { ps, ses: Math.sqrt(variance / n), variance };
   };
+  const formTails = points[0]!.form + points[1]!.form;
+  const belowDoubleRange = formTails < 1e-300 && Math.exp(-logScale) === 0;
+  if (belowDoubleRange) stopRule = 'below-double-range';
   try {
     let round = 1;
-    for (;;) {
+    while (!belowDoubleRange) {
       const remaining = maxSamples - n;
       if (remaining <= 0) break;
       // Round sizes double (1, 2, 4, ... chunks), capped, so that a run stops near the sample
@@ -182,18 +194,18 @@ export async function estimateTail(design: Design, options: TailOptions = {}): P
       let planned = 0;
       for (let c = 0; c < round && planned < remaining; c++) {
         const count = Math.min(IMPORTANCE_CHUNK, remaining - planned);
-        tasks.push({ kind: 'importance', design, seed, chunk: chunk++, count, spec, shifts: points.map((p) => p.u) });
+        tasks.push({ kind: 'importance', design, seed, chunk: chunk++, count, spec, shifts: points.map((p) => p.u), logScale });
         planned += count;
       }
       await runChunks(executor, tasks, (r) => consume(r as ImportanceResult), {
         signal: options.signal,
         onProgress: options.onProgress === undefined ? undefined : (d) => options.onProgress!(n + d, maxSamples),
       });
-      const { p, se, variance } = stats();
-      if (fixed === undefined && p > 0 && hits >= 10 && (z * se) / p <= relError) break;
+      const { ps, ses, variance } = stats();
+      if (fixed === undefined && ps > 0 && hits >= 10 && (z * ses) / ps <= relError) break;
       if (ownExecutor && executor.threads === 0 && wantedWorkers > 1) {
         // Samples still needed: fixed count, or (z/E)^2 relVar from the estimate so far.
-        const need = fixed ?? (p > 0 ? ((z / relError) ** 2 * variance) / p / p : maxSamples);
+        const need = fixed ?? (ps > 0 ? ((z / relError) ** 2 * variance) / (ps * ps) : maxSamples);
         if (need - n > POOL_THRESHOLD) executor = createExecutor(wantedWorkers);
       }
       if (n >= maxSamples && fixed === undefined) stopRule = 'max-samples';
@@ -202,35 +214,40 @@ export async function estimateTail(design: Design, options: TailOptions = {}): P
   } finally {
     if (ownExecutor) await executor.close();
   }
-  const { p, se, variance } = stats();
+  const { ps, ses, variance } = n > 0 ? stats() : { ps: 0, ses: 0, variance: 0 };
+  // An unbiased estimate may exceed 1 by a hair when nearly every sample fails: clamp, so
+  // the sigma level and the chip failure stay defined.
+  const p = Math.min(1, ps * unscale);
+  const se = ses * unscale;
   const lo = Math.max(0, p - z * se);
   const hi = Math.min(1, p + z * se);
-  const formP = points[0]!.form + points[1]!.form;
+  const formP = formTails;
   const instances = design.spec.instances;
-  const has = p > 0;
-  const relHalf = has ? (z * se) / p : null;
+  const has = ps > 0;
+  const relHalf = has ? (z * ses) / ps : null;
+  const formLevel = sigmaLevelOfTails([points[0]!.distance, points[1]!.distance]);
   return {
     spec,
     failureProbability: p,
     standardError: se,
     interval: [lo, hi],
     confidence,
-    sigmaLevel: has ? sigmaLevel(p) : null,
+    sigmaLevel: belowDoubleRange ? formLevel : has && p > 0 ? sigmaLevel(p) : null,
     sigmaLevelInterval: [hi > 0 ? sigmaLevel(hi) : null, lo > 0 ? sigmaLevel(lo) : null],
     relativeHalfWidth: relHalf,
-    high: sumHigh / n,
-    low: sumLow / n,
+    high: n > 0 ? (sumHigh / n) * unscale : 0,
+    low: n > 0 ? (sumLow / n) * unscale : 0,
     samples: n,
     hits,
     nonConverged,
     seed,
     stopRule,
-    // variance / p^2 divided in two steps: p^2 underflows to 0 for p below ~1e-162.
-    relativeVariancePerSample: has ? variance / p / p : null,
-    equivalentPlainSamples: relHalf !== null && relHalf > 0 ? finiteOrNull((z * z * (1 - p)) / p / relHalf / relHalf) : null,
+    belowDoubleRange,
+    relativeVariancePerSample: has ? variance / (ps * ps) : null,
+    equivalentPlainSamples: relHalf !== null && relHalf > 0 && p > 0 ? finiteOrNull((z * z * (1 - p)) / p / relHalf / relHalf) : null,
     designPoints: points.map((pt) => describePoint(stage, pt)),
     // From the distances, not from formP: beyond ~38 sigma formP underflows to 0 and its level would be Infinity.
-    form: { failureProbability: formP, sigmaLevel: sigmaLevelOfTails([points[0]!.distance, points[1]!.distance]) },
+    form: { failureProbability: formP, sigmaLevel: formLevel },
     chip: {
       instances,
       failure: chipFailure(p, instances),

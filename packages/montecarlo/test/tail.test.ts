@@ -1,7 +1,7 @@
 import { compileStage, linearisedSigma, type Design } from '@twinfet/core';
 import { describe, expect, it } from 'vitest';
 import { findDesignPoint } from '../src/designPoint.js';
-import { normalUpperTail, twoSidedTail } from '../src/normal.js';
+import { logNormalUpperTail, normalUpperTail, twoSidedTail } from '../src/normal.js';
 import { createExecutor } from '../src/pool.js';
 import { simulate } from '../src/simulate.js';
 import { estimateTail } from '../src/tail.js';
@@ -61,6 +61,27 @@ describe('importance sampling against the Gaussian closed form (DOMAIN.md)', () 
     const [c, d] = mc.yield.failure.interval;
     expect(Math.max(a, c)).toBeLessThanOrEqual(Math.min(b, d)); // the intervals overlap
     await executor.close();
+  });
+
+  it.each([26, 30, 37])('at %i sigma (weights near 1e-150 to 1e-300) it still matches 2 Phi(-k) with a non-zero standard error', async (k) => {
+    const r = await estimateTail(at(k), { seed: `deep-${k}`, executor, confidence: 0.999 });
+    // Truth from the log tail (A&S 26.2.12 beyond 37 sigma): 2 Phi(-k).
+    const truth = 2 * Math.exp(logNormalUpperTail(k));
+    expect(r.standardError).toBeGreaterThan(0);
+    expect(r.belowDoubleRange).toBe(false);
+    expect(truth).toBeGreaterThanOrEqual(r.interval[0]);
+    expect(truth).toBeLessThanOrEqual(r.interval[1]);
+    expect(r.relativeHalfWidth!).toBeLessThanOrEqual(0.05);
+  });
+
+  it('beyond the range of doubles (45 sigma) it draws nothing and says so, with the FORM sigma level', async () => {
+    const r = await estimateTail(at(45), { seed: 'beyond', executor });
+    expect(r.belowDoubleRange).toBe(true);
+    expect(r.stopRule).toBe('below-double-range');
+    expect(r.samples).toBe(0);
+    expect(r.failureProbability).toBe(0);
+    // Linear boundary at 45 sigma on each side: the two-sided level is 45 (solve tolerance 1e-6).
+    expect(Math.abs(r.sigmaLevel! - 45)).toBeLessThan(1e-6);
   });
 
   it('chip failure for M instances is 1 - (1 - p)^M', async () => {

@@ -29,6 +29,18 @@ export function renderTail(r: TailReport): string {
       top.map((t) => `${t.device} ${t.parameter === 'vt' ? `dV_T ${formatQuantity(t.deviation, 'V', 3)}` : `dbeta/beta ${(t.deviation * 100).toPrecision(3)}%`} (${t.u.toFixed(2)} sigma)`).join(', '),
     ];
   });
+  if (r.belowDoubleRange) {
+    return [
+      renderPairs([
+        ['spec |Vos| <=', formatQuantity(r.spec, 'V', 4)],
+        ['failure probability', `below the smallest double (about 1e-308): no sample can weigh it, so none was drawn`],
+        ['equivalent sigma level', `${sig(r.sigmaLevel)} (two-sided, from the failure points' distances, FORM)`],
+      ]),
+      '',
+      'most probable failure points (standard-normal space; the largest coordinates)',
+      renderTable(['side', 'distance', 'FORM p', 'found by', 'dominant mismatch'], pts, ['left', 'right', 'right', 'left', 'left']),
+    ].join('\n');
+  }
   return [
     renderPairs([
       ['spec |Vos| <=', formatQuantity(r.spec, 'V', 4)],
