@@ -32,14 +32,6 @@ export function parseFraction(text: string, option: string, example: string): nu
   return x;
 }
 
-/** A positive finite number (plain, no unit). */
-export function parsePositive(text: string, option: string, example: string): number {
-  const t = text.trim().replace(/_/g, '');
-  const x = /^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$/.test(t) ? Number(t) : Number.NaN;
-  if (!Number.isFinite(x) || x <= 0) throw new InputError(option, `expected a positive number such as ${example}, got "${text}"`);
-  return x;
-}
-
 /** A seed: any non-empty text of at most 200 characters (numbers are taken as their text). */
 export function parseSeed(text: string): string {
   if (text.length === 0 || text.length > 200) throw new InputError('--seed', `expected 1 to 200 characters, got ${text.length}`);

@@ -1,5 +1,3 @@
-import { InputError } from '@twinfet/core';
-
 /** An internal fault: a number the tool was about to print is not finite. */
 export class NonFiniteResultError extends Error {
   constructor(path: string, value: unknown) {
@@ -43,9 +41,4 @@ export const processIo: Io = {
 export function printJson(io: Io, report: object): void {
   assertFinite(report);
   io.out(JSON.stringify(report, null, 2));
-}
-
-/** Refuses an option combination with a one-line message. */
-export function refuse(field: string, message: string): never {
-  throw new InputError(field, message);
 }

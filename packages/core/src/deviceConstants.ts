@@ -29,8 +29,8 @@ export function deviceConstants(design: Design, geometry: DeviceGeometry, therma
 /** The two variables (vt, beta) of one device. */
 export function deviceVariables(device: DeviceName, role: DeviceRole, c: DeviceConstants): RandomVariable[] {
   return [
-    { device, role, parameter: 'vt', sigma: c.sigmaVt },
-    { device, role, parameter: 'beta', sigma: c.sigmaBeta },
+    { device, role, parameter: 'vt', sigma: c.sigmaVt, rho: c.process.rho },
+    { device, role, parameter: 'beta', sigma: c.sigmaBeta, rho: c.process.rho },
   ];
 }
 

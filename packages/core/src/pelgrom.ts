@@ -30,11 +30,14 @@ export function pairSigma(coefficient: number, widthM: number, lengthM: number):
 }
 
 /**
- * Current-factor rule: beta_i = beta * exp(sigma_beta * z), z ~ N(0, 1).
+ * Current-factor rule: beta_i = beta * exp(sigma_beta * z), z ~ N(0, 1), with
+ * z = rho u_vt + sqrt(1 - rho^2) u_beta from the device's two independent unit normals.
  * A log-normal factor with median beta matches the Gaussian dbeta/beta = sigma_beta z to first
  * order, and can never make beta <= 0 or NaN however small the device (sigma_beta of 30% or more).
- * The log-normal choice is this project's (common practice, no source).
+ * The log-normal choice is this project's (common practice, no source). The hot loops inline
+ * the same expression; this is the form for reports: dbeta/beta = exp(sigma_beta z) - 1.
+ * @example currentFactorDeviation(0.01, 0, 0, 1) // 0.01005 (one sigma of 1%)
  */
-export function currentFactorMultiplier(sigmaBeta: number, z: number): number {
-  return Math.exp(sigmaBeta * z);
+export function currentFactorDeviation(sigmaBeta: number, rho: number, uVt: number, uBeta: number): number {
+  return Math.expm1(sigmaBeta * (rho * uVt + Math.sqrt(1 - rho * rho) * uBeta));
 }

@@ -17,6 +17,8 @@ export interface RandomVariable {
   readonly parameter: MismatchParameter;
   /** Per-device sigma: volts for vt, a fraction for beta. */
   readonly sigma: number;
+  /** The device's correlation rho between its dV_T and dbeta/beta deviates. */
+  readonly rho: number;
 }
 
 /** Layout of one sample: device-major, [vt, beta] per device, in device order M1, M2, (M3, M4). */

@@ -50,6 +50,8 @@ function runMonteCarlo(stage: Stage, task: MonteCarloTask): MonteCarloResult {
     const u = draws === undefined ? blockDraws : draws.subarray(start * dim, (start + n) * dim);
     fillStandardNormals(rng, u, 0, n * dim);
     const bad = stage.offsets(u, n, blockOut, 0);
+    // Kept offsets hold NaN where a solve failed, so rows stay aligned with the draws.
+    if (offsets !== undefined) offsets.set(blockOut.subarray(0, n), start);
     let m = n;
     if (bad > 0) {
       // Compact the converged values to the front; the NaNs are counted, never averaged.
@@ -67,11 +69,6 @@ function runMonteCarlo(stage: Stage, task: MonteCarloTask): MonteCarloResult {
     }
     addBlock(moments, blockOut, 0, m);
     addToHistogram(histogram, blockOut, 0, m);
-    if (offsets !== undefined) {
-      // Kept offsets hold NaN where a solve failed, so rows stay aligned with the draws.
-      offsets.set(blockOut.subarray(0, n), start);
-      if (bad > 0) stage.offsets(u, n, offsets, start);
-    }
   }
   return {
     kind: 'montecarlo',

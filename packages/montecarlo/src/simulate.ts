@@ -119,7 +119,7 @@ export interface RunOutcome {
   /** Every sample's standard-normal draws, `dimension` per sample, when kept. */
   readonly draws?: Float64Array;
   readonly dimension: number;
-  readonly variables: readonly { device: string; role: string; parameter: string; sigma: number }[];
+  readonly variables: readonly { device: string; role: string; parameter: string; sigma: number; rho: number }[];
 }
 
 function checkOptions(o: SimulateOptions): void {

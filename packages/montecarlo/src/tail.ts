@@ -1,4 +1,4 @@
-import { compileStage, InputError, type Design, type Stage } from '@twinfet/core';
+import { compileStage, currentFactorDeviation, InputError, type Design, type Stage } from '@twinfet/core';
 import { findDesignPoint, type DesignPoint } from './designPoint.js';
 import type { ImportanceResult, ImportanceTask } from './messages.js';
 import { normalQuantile, sigmaLevel, sigmaLevelOfTails } from './normal.js';
@@ -100,14 +100,8 @@ function describePoint(stage: Stage, p: DesignPoint): ReportedDesignPoint {
     offset: p.offset,
     coordinates: stage.variables.map((v, j) => {
       const uj = p.u[j]!;
-      let deviation: number;
-      if (v.parameter === 'vt') deviation = v.sigma * uj;
-      else {
-        // Log-normal current factor with the correlated part: z = rho u_vt + sqrt(1 - rho^2) u_beta.
-        const proc = stage.design.process[stage.operatingPoint[Math.floor(j / 2)]!.polarity]!;
-        const z = proc.rho * p.u[j - 1]! + Math.sqrt(1 - proc.rho * proc.rho) * uj;
-        deviation = Math.expm1(v.sigma * z);
-      }
+      // dbeta/beta pairs this beta variable with the vt variable just before it (same device).
+      const deviation = v.parameter === 'vt' ? v.sigma * uj : currentFactorDeviation(v.sigma, v.rho, p.u[j - 1]!, uj);
       return { device: v.device, role: v.role, parameter: v.parameter, u: uj, deviation };
     }),
   };

@@ -1,5 +1,5 @@
 import { createWriteStream } from 'node:fs';
-import { formatQuantity, InputError, type Design } from '@twinfet/core';
+import { currentFactorDeviation, formatQuantity, InputError, type Design } from '@twinfet/core';
 import { runMonteCarlo, type RunOutcome, type RunReport } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
 import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
@@ -45,11 +45,10 @@ function parseRunFlags(flags: RunFlags) {
 }
 
 /** Writes every sample's offset and physical mismatch draws as CSV. */
-async function writeSamplesCsv(path: string, design: Design, outcome: RunOutcome): Promise<void> {
+async function writeSamplesCsv(path: string, outcome: RunOutcome): Promise<void> {
   const { offsets, draws, dimension, variables } = outcome;
   if (offsets === undefined || draws === undefined) throw new Error('internal: samples were not kept');
   const header = ['sample', 'offset_V', ...variables.map((v) => (v.parameter === 'vt' ? `${v.device}_dVT_V` : `${v.device}_dbeta_rel`))];
-  const rhos = variables.map((v) => design.process[v.role === 'input' ? design.input.polarity : design.load!.polarity]!.rho);
   const stream = createWriteStream(path);
   const done = new Promise<void>((resolve, reject) => {
     stream.on('error', (e) => reject(new InputError('--samples-out', `cannot write "${path}": ${e.message}`)));
@@ -62,12 +61,9 @@ async function writeSamplesCsv(path: string, design: Design, outcome: RunOutcome
     for (let j = 0; j < dimension; j++) {
       const v = variables[j]!;
       const u = draws[i * dimension + j]!;
-      if (v.parameter === 'vt') row.push((v.sigma * u).toPrecision(9));
-      else {
-        const rho = rhos[j]!;
-        const z = rho * draws[i * dimension + j - 1]! + Math.sqrt(1 - rho * rho) * u;
-        row.push(Math.expm1(v.sigma * z).toPrecision(9));
-      }
+      // A beta variable follows its device's vt variable in the layout.
+      const deviation = v.parameter === 'vt' ? v.sigma * u : currentFactorDeviation(v.sigma, v.rho, draws[i * dimension + j - 1]!, u);
+      row.push(deviation.toPrecision(9));
     }
     chunk += `${row.join(',')}\n`;
     if (chunk.length > 1 << 20) {
@@ -187,7 +183,7 @@ export function registerRun(program: Command, io: Io, setExit: (code: number) =>
     const outcome = done.value;
     const report = outcome.report;
     assertFinite(report);
-    if (flags.samplesOut !== undefined) await writeSamplesCsv(flags.samplesOut, design, outcome);
+    if (flags.samplesOut !== undefined) await writeSamplesCsv(flags.samplesOut, outcome);
     if (flags.plot !== undefined) await writeOutputFile(flags.plot, '--plot', await runPlot(report, `${design.name}: offset distribution`));
     if (flags.json === true) printJson(io, report);
     else io.out(renderRun(report, design));
