@@ -6,7 +6,7 @@
  * stay sensible; values past the design limits must be refused naming the field.
  */
 import { compileStage, DESIGN_LIMITS, InputError, linearisedSigma, type Design, type TopologyName } from '@twinfet/core';
-import { estimateTail, simulate, type RunReport, type TailReport } from '@twinfet/montecarlo';
+import { estimateHighSigma, simulate, type RunReport, type HighSigmaReport } from '@twinfet/montecarlo';
 import { describe, expect, it } from 'vitest';
 import { runCli } from './support/cli.js';
 import { baseDesign } from './support/designs.js';
@@ -48,14 +48,14 @@ function maxBetaSigma(d: Design): number {
 interface Outcome {
   readonly linear: number;
   readonly run: RunReport;
-  readonly tail: TailReport;
+  readonly tail: HighSigmaReport;
 }
 
 async function evaluate(d: Design): Promise<Outcome> {
   const stage = compileStage(d);
   const linear = linearisedSigma(stage);
   const run = await simulate(d, { samples: MC_SAMPLES, workers: 1, seed: 'extreme' });
-  const tail = await estimateTail(d, { samples: IS_SAMPLES, workers: 1, seed: 'extreme' });
+  const tail = await estimateHighSigma(d, { samples: IS_SAMPLES, workers: 1, seed: 'extreme' });
   return { linear, run, tail };
 }
 
@@ -211,7 +211,7 @@ describe('through the command line', () => {
     expect(r.code).toBe(0);
     const report = JSON.parse(r.stdout) as Record<string, unknown>;
     expect(nonFinitePaths(report)).toEqual([]);
-    const tail = report as unknown as TailReport;
+    const tail = report as unknown as HighSigmaReport;
     // FORM sigma level from the design-point distance, although 2 Phi(-492) underflows to 0:
     // spec / sigma_lin = 10 mV / 20.309 uV = 492.40 for this design (computed from the DOMAIN.md
     // mirror formula); the boundary is nearly linear here, so 1% is generous.

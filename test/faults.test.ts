@@ -10,7 +10,7 @@
  * The library runs from its build (import '@twinfet/montecarlo' resolves to dist): `npx tsc -b`.
  */
 import type { Worker } from 'node:worker_threads';
-import { createExecutor, estimateTail, simulate, type Executor } from '@twinfet/montecarlo';
+import { createExecutor, estimateHighSigma, simulate, type Executor } from '@twinfet/montecarlo';
 import { afterEach, beforeEach, describe, expect, it } from 'vitest';
 import { runCli } from './support/cli.js';
 import { linearPair } from './support/designs.js';
@@ -138,12 +138,12 @@ describe('cancellation through the API', () => {
     await allWorkersExited();
   });
 
-  it('an aborted estimateTail on its own pool rejects and leaves no thread alive', async () => {
+  it('an aborted estimateHighSigma on its own pool rejects and leaves no thread alive', async () => {
     const ac = new AbortController();
     const timer = setTimeout(() => ac.abort(), 600);
     // 6 sigma at 1% relative error with a fixed 1e8 samples: far too long to finish, uses a pool.
     const d = { ...linearPair, spec: { offset: 6 * 3.5355e-4, instances: 1 } };
-    const e = await withinHangGuard(settle(estimateTail(d, { samples: 1e8, workers: 2, signal: ac.signal })), 20_000, 'the aborted tail');
+    const e = await withinHangGuard(settle(estimateHighSigma(d, { samples: 1e8, workers: 2, signal: ac.signal })), 20_000, 'the aborted tail');
     clearTimeout(timer);
     expect((e as Error).name).toBe('AbortError');
     // It did open a pool (the fixed 1e8 samples are far past the in-thread threshold, tail.ts).

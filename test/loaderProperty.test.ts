@@ -11,7 +11,7 @@
  * core/errors.ts: "anything that is not an InputError is a bug"): common practice, no source.
  */
 import { compileStage, isInputError, linearisedSigma, type Design } from '@twinfet/core';
-import { analyticSummary } from '@twinfet/montecarlo';
+import { linearisedSummary } from '@twinfet/montecarlo';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { parseDesign } from '../packages/cli/src/designFile.js';
@@ -128,7 +128,7 @@ function outcome(text: string): { kind: 'accepted' | 'refused' } | { kind: 'brok
     const sigma = linearisedSigma(stage);
     if (!(Number.isFinite(sigma) && sigma > 0)) return { kind: 'broken', why: `linearised sigma ${sigma}` };
     // What `twinfet inspect` prints: every number must be finite (the CLI refuses to print otherwise).
-    const bad = nonFinitePaths({ operatingPoint: stage.operatingPoint, sensitivities: stage.sensitivities, analytic: analyticSummary(stage) });
+    const bad = nonFinitePaths({ operatingPoint: stage.operatingPoint, sensitivities: stage.sensitivities, analytic: linearisedSummary(stage) });
     if (bad.length > 0) return { kind: 'broken', why: `accepted, but ${bad.slice(0, 3).join(', ')}` };
   } catch (e) {
     return { kind: 'broken', why: `accepted by the loader, then ${String(e)}` };

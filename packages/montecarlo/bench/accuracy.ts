@@ -5,7 +5,7 @@
  * checks, with tolerances, are in the test suite.
  */
 import { compileStage, ekvForward, linearisedSigma, type Design } from '@twinfet/core';
-import { createExecutor, estimateTail, normalUpperTail, simulate, twoSidedTail } from '@twinfet/montecarlo';
+import { createExecutor, estimateHighSigma, normalUpperTail, simulate, twoSidedTail } from '@twinfet/montecarlo';
 import { fileURLToPath } from 'node:url';
 import { loadDesign } from '../../cli/dist/designFile.js';
 
@@ -43,8 +43,8 @@ const sigma = linearisedSigma(compileStage(linear));
 const executor = createExecutor(1);
 for (const k of [4, 5, 6, 7]) {
   const design = { ...linear, spec: { offset: k * sigma, instances: 1 } };
-  const r = await estimateTail(design, { seed: `is-${k}`, executor });
-  const rv = await estimateTail(design, { seed: `rv-${k}`, executor, samples: 200_000 });
+  const r = await estimateHighSigma(design, { seed: `is-${k}`, executor });
+  const rv = await estimateHighSigma(design, { seed: `rv-${k}`, executor, samples: 200_000 });
   const formula = (Math.exp(k * k) * normalUpperTail(2 * k)) / normalUpperTail(k) ** 2 - 1;
   const truth = twoSidedTail(k);
   console.log(

@@ -8,7 +8,8 @@ import { execFileSync } from 'node:child_process';
 import { availableParallelism } from 'node:os';
 import { fileURLToPath } from 'node:url';
 import { compileStage, linearisedSigma, type Design } from '@twinfet/core';
-import { createExecutor, defaultWorkers, runChunk, simulate } from '@twinfet/montecarlo';
+import { createExecutor, defaultWorkers, simulate } from '@twinfet/montecarlo';
+import { runChunk } from '../src/engine/chunk.js';
 import { loadDesign } from '../../cli/dist/designFile.js';
 
 const root = fileURLToPath(new URL('../../../', import.meta.url));

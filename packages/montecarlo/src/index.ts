@@ -1,24 +1,62 @@
-export * from './analytic.js';
-export * from './clopperPearson.js';
-export * from './designPoint.js';
-export * from './histogram.js';
-export * from './ks.js';
-export type * from './messages.js';
-export * from './moments.js';
-export * from './normal.js';
-export * from './pool.js';
-export * from './schedule.js';
-export * from './seed.js';
-export * from './sigmaInterval.js';
-export * from './simulate.js';
-export * from './stream.js';
-export * from './tail.js';
-export * from './wilson.js';
-export * from './yield.js';
-export * from './ziggurat.js';
-export { runChunk } from './chunk.js';
-export * from './resize.js';
-export * from './areaSplit.js';
-export * from './sizeLinearised.js';
-export * from './size.js';
-export * from './sweep.js';
+// Public API of @twinfet/montecarlo: a named list, layer by layer. Test helpers (the KS test)
+// and the test-only fault hook are not part of it.
+
+// random/: seeded streams and standard normals
+export { DEFAULT_SEED, seedText } from './random/seed.js';
+export { chunkRng, type ChunkRng, type StreamKind } from './random/stream.js';
+export { fillStandardNormals, standardNormal } from './random/ziggurat.js';
+
+// stats/: estimators and intervals
+export { clopperPearson, oneSidedUpper } from './stats/clopperPearson.js';
+export { wilson } from './stats/wilson.js';
+export { sigmaInterval } from './stats/sigmaInterval.js';
+export { addSamples, emptyMoments, mergeMoments, stdDev, variance, type Moments } from './stats/moments.js';
+export { createHistogram, exactQuantile, quantileFromHistogram, type Histogram } from './stats/histogram.js';
+export {
+  logNormalUpperTail,
+  normalCdf,
+  normalPdf,
+  normalQuantile,
+  normalUpperTail,
+  sigmaLevel,
+  sigmaLevelOfTails,
+  twoSidedTail,
+} from './stats/normal.js';
+export { allowedFailure, chipFailure, chipYield, chipYieldFromFailure } from './stats/yield.js';
+
+// engine/: chunks, executors, schedule
+export { CHUNK_SIZE, RunAborted } from './engine/schedule.js';
+export { ChunkError, createExecutor, defaultWorkers, type Executor } from './engine/pool.js';
+
+// analyses/
+export { linearisedSummary, type LinearisedSummary } from './analyses/linearisedSummary.js';
+export { findDesignPoint, type DesignPoint } from './analyses/designPoint.js';
+export {
+  simulate,
+  simulateWithSamples,
+  QUANTILE_LEVELS,
+  KEEP_LIMIT,
+  type IntervalMethod,
+  type QuantileValue,
+  type RunOutcome,
+  type RunReport,
+  type SimulateOptions,
+} from './analyses/simulate.js';
+export {
+  estimateHighSigma,
+  type HighSigmaOptions,
+  type HighSigmaReport,
+  type ReportedDesignPoint,
+} from './analyses/highSigma.js';
+export { sweepDesigns, SWEEP_SAMPLES, type SweepOptions, type SweepPointResult } from './analyses/sweep.js';
+
+// sizing/
+export { SIZE_VARIATIONS, type SizeVary } from './sizing/resize.js';
+export {
+  sizeDesign,
+  type Confirmation,
+  type SizedPoint,
+  type SizeOptions,
+  type SizeReport,
+  type SizeTarget,
+} from './sizing/size.js';

@@ -6,7 +6,7 @@ import {
   binomialSurvival,
   clopperPearson,
   oneSidedUpper,
-} from '../src/clopperPearson.js';
+} from '../src/stats/clopperPearson.js';
 
 function relErr(actual: number, expected: number): number {
   return Math.abs(actual - expected) / Math.abs(expected);

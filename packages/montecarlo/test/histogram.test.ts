@@ -9,8 +9,8 @@ import {
   histogramTotal,
   mergeHistograms,
   quantileFromHistogram,
-} from '../src/histogram.js';
-import { normalPdf, normalQuantile } from '../src/normal.js';
+} from '../src/stats/histogram.js';
+import { normalPdf, normalQuantile } from '../src/stats/normal.js';
 
 
 /** Test-only Box-Muller normals (Box & Muller, Ann. Math. Stat. 29, 1958). */

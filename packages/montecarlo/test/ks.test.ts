@@ -7,7 +7,7 @@ import {
   ksAsymptoticPValue,
   ksExactCdf,
   ksStatistic,
-} from '../src/ks.js';
+} from '../src/stats/ks.js';
 
 
 const uniformCdf = (x: number): number => (x <= 0 ? 0 : x >= 1 ? 1 : x);

@@ -1,8 +1,8 @@
 import { describe, it, expect } from 'vitest';
 import { mulberry32, relErr } from './testRandom.js';
 import fc from 'fast-check';
-import { addSamples, emptyMoments, mergeMoments, stdDev, variance } from '../src/moments.js';
-import type { Moments } from '../src/moments.js';
+import { addSamples, emptyMoments, mergeMoments, stdDev, variance } from '../src/stats/moments.js';
+import type { Moments } from '../src/stats/moments.js';
 
 function onePass(values: Float64Array): Moments {
   return addSamples(emptyMoments(), values, 0, values.length);

@@ -7,7 +7,7 @@ import {
   normalUpperTail,
   sigmaLevel,
   twoSidedTail,
-} from '../src/normal.js';
+} from '../src/stats/normal.js';
 
 function relErr(actual: number, expected: number): number {
   return Math.abs(actual - expected) / Math.abs(expected);

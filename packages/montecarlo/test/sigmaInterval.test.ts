@@ -6,7 +6,7 @@ import {
   chiSquareQuantile,
   chiSquareQuantileWilsonHilferty,
   sigmaInterval,
-} from '../src/sigmaInterval.js';
+} from '../src/stats/sigmaInterval.js';
 
 
 /** Test-only Box-Muller normal pair from two uniforms (Box & Muller, Ann. Math. Stat. 1958). */

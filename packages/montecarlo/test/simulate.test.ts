@@ -1,8 +1,8 @@
 import { compileStage, linearisedSigma } from '@twinfet/core';
 import { describe, expect, it } from 'vitest';
-import { twoSidedTail } from '../src/normal.js';
-import { createExecutor } from '../src/pool.js';
-import { simulate, type RunReport } from '../src/simulate.js';
+import { twoSidedTail } from '../src/stats/normal.js';
+import { createExecutor } from '../src/engine/pool.js';
+import { simulate, type RunReport } from '../src/analyses/simulate.js';
 import { bigMirror, bigSimple } from './designs.js';
 
 /** The statistics of a report without the timing and worker fields (which legitimately vary). */

@@ -1,14 +1,14 @@
 import { compileStage, InputError, linearisedSigma, type Design } from '@twinfet/core';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { equalScalingFamily, optimalSplitFamily } from '../src/areaSplit.js';
-import { normalUpperTail, sigmaLevel, twoSidedTail } from '../src/normal.js';
-import { createExecutor } from '../src/pool.js';
-import { ceilSignificant, singlePairFamily } from '../src/resize.js';
-import { simulate } from '../src/simulate.js';
-import { sizeDesign, type SizeReport } from '../src/size.js';
-import { solveLinearised } from '../src/sizeLinearised.js';
-import { estimateTail } from '../src/tail.js';
+import { equalScalingFamily, optimalSplitFamily } from '../src/sizing/areaSplit.js';
+import { normalUpperTail, sigmaLevel, twoSidedTail } from '../src/stats/normal.js';
+import { createExecutor } from '../src/engine/pool.js';
+import { ceilSignificant, singlePairFamily } from '../src/sizing/resize.js';
+import { simulate } from '../src/analyses/simulate.js';
+import { sizeDesign, type SizeReport } from '../src/sizing/size.js';
+import { solveLinearised } from '../src/sizing/sizeLinearised.js';
+import { estimateHighSigma } from '../src/analyses/highSigma.js';
 import { bigMirror, bigSimple, linearSimple, testProcess } from './designs.js';
 
 const K_B = 1.380649e-23; // J/K, exact (2019 SI)
@@ -264,7 +264,7 @@ describe('size for yield targets', () => {
     expect(r.confirmed.failureInterval[1]).toBeLessThanOrEqual(1e-6);
     // Independent importance sampling on a new stream against the linear case's exact answer
     // 2 Phi(-spec / sigma) (DOMAIN.md): within 4 of its standard errors.
-    const check = await estimateTail(r.design, { seed: 'independent', executor, relError: 0.03, spec });
+    const check = await estimateHighSigma(r.design, { seed: 'independent', executor, relError: 0.03, spec });
     const exact = twoSidedTail(spec / r.result.sigmaLinearised);
     expect(Math.abs(check.failureProbability - exact)).toBeLessThan(4 * check.standardError);
     expect(exact).toBeLessThanOrEqual(1e-6);

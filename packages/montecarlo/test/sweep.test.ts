@@ -1,7 +1,7 @@
 import { InputError, type Design } from '@twinfet/core';
 import { describe, expect, it } from 'vitest';
-import { createExecutor } from '../src/pool.js';
-import { sweepDesigns } from '../src/sweep.js';
+import { createExecutor } from '../src/engine/pool.js';
+import { sweepDesigns } from '../src/analyses/sweep.js';
 import { linearSimple, testProcess } from './designs.js';
 
 const K_B = 1.380649e-23; // J/K, exact (2019 SI)

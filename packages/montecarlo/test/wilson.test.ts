@@ -1,6 +1,6 @@
 import { describe, it, expect } from 'vitest';
 import fc from 'fast-check';
-import { wilson } from '../src/wilson.js';
+import { wilson } from '../src/stats/wilson.js';
 
 function relErr(actual: number, expected: number): number {
   return Math.abs(actual - expected) / Math.abs(expected);

@@ -1,7 +1,7 @@
 import { describe, it, expect } from 'vitest';
 import fc from 'fast-check';
-import { allowedFailure, chipYield, chipYieldFromFailure } from '../src/yield.js';
-import { sigmaLevel } from '../src/normal.js';
+import { allowedFailure, chipYield, chipYieldFromFailure } from '../src/stats/yield.js';
+import { sigmaLevel } from '../src/stats/normal.js';
 
 function relErr(actual: number, expected: number): number {
   return Math.abs(actual - expected) / Math.abs(expected);

@@ -1,9 +1,9 @@
 import jStat from 'jstat';
 import { describe, expect, it } from 'vitest';
-import { ksAsymptoticPValue, ksStatistic } from '../src/ks.js';
-import { normalCdf, twoSidedTail } from '../src/normal.js';
-import { chunkRng } from '../src/stream.js';
-import { fillStandardNormals, standardNormal } from '../src/ziggurat.js';
+import { ksAsymptoticPValue, ksStatistic } from '../src/stats/ks.js';
+import { normalCdf, twoSidedTail } from '../src/stats/normal.js';
+import { chunkRng } from '../src/random/stream.js';
+import { fillStandardNormals, standardNormal } from '../src/random/ziggurat.js';
 
 describe('standard-normal generator (ziggurat, Marsaglia & Tsang 2000)', () => {
   const n = 200_000;

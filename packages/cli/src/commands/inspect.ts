@@ -1,5 +1,5 @@
 import { compileStage, formatQuantity, type Design, type Stage } from '@twinfet/core';
-import { analyticSummary, chipFailure, type AnalyticSummary } from '@twinfet/montecarlo';
+import { linearisedSummary, chipFailure, type LinearisedSummary } from '@twinfet/montecarlo';
 import { renderPairs, renderTable } from '../table.js';
 import { designSummary, pct, sci, shareLabel } from '../describe.js';
 
@@ -7,7 +7,7 @@ import { designSummary, pct, sci, shareLabel } from '../describe.js';
 export interface InspectReport {
   readonly design: ReturnType<typeof designSummary>;
   readonly operatingPoint: Stage['operatingPoint'];
-  readonly analytic: AnalyticSummary;
+  readonly analytic: LinearisedSummary;
   readonly warnings: readonly string[];
 }
 
@@ -17,7 +17,7 @@ export function inspectDesign(design: Design): InspectReport {
   return {
     design: designSummary(design),
     operatingPoint: stage.operatingPoint,
-    analytic: analyticSummary(stage),
+    analytic: linearisedSummary(stage),
     warnings: stage.warnings,
   };
 }
@@ -49,7 +49,7 @@ export function renderOperatingPoint(ops: Stage['operatingPoint']): string {
 }
 
 /** The variance-budget table. */
-export function renderBudget(a: AnalyticSummary): string {
+export function renderBudget(a: LinearisedSummary): string {
   const rows = a.grouped.map((g) => [shareLabel(g.role, g.parameter), pct(g.share, 3), formatQuantity(Math.sqrt(g.variance), 'V', 4)]);
   return renderTable(['contribution', 'share of sigma^2', 'sigma part'], rows);
 }

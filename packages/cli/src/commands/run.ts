@@ -1,6 +1,6 @@
 import { createWriteStream } from 'node:fs';
 import { currentFactorDeviation, formatQuantity, InputError, type Design } from '@twinfet/core';
-import { runMonteCarlo, type RunOutcome, type RunReport } from '@twinfet/montecarlo';
+import { simulateWithSamples, type RunOutcome, type RunReport } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
 import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
 import { designSummary, pct, sci } from '../describe.js';
@@ -160,7 +160,7 @@ export function registerRun(program: Command, io: Io, setExit: (code: number) =>
     const o = parseRunFlags(flags);
     const design = await loadDesign(file);
     const done = await withInterrupt(io, 'run', (signal, onProgress) =>
-      runMonteCarlo(design, {
+      simulateWithSamples(design, {
         samples: o.samples,
         workers: o.workers,
         confidence: o.confidence,

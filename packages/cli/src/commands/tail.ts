@@ -1,5 +1,5 @@
 import { formatQuantity, InputError } from '@twinfet/core';
-import { estimateTail, type TailReport } from '@twinfet/montecarlo';
+import { estimateHighSigma, type HighSigmaReport } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
 import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
 import { designSummary, sci } from '../describe.js';
@@ -17,7 +17,7 @@ interface TailFlags extends CommonFlags {
 const sig = (x: number | null): string => (x === null ? 'unbounded' : x.toFixed(3));
 
 /** Text form of a high-sigma estimate (also used inside `run --method importance`). */
-export function renderTail(r: TailReport): string {
+export function renderTail(r: HighSigmaReport): string {
   const c = `${Math.round(r.confidence * 1000) / 10}%`;
   const pts = r.designPoints.map((p) => {
     const top = [...p.coordinates].sort((a, b) => Math.abs(b.u) - Math.abs(a.u)).slice(0, 4);
@@ -79,7 +79,7 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
     const samples = flags.samples === undefined ? undefined : parseCount(flags.samples, '--samples', 100, 1e10);
     const design = await loadDesign(file);
     const done = await withInterrupt(io, 'tail', (signal, onProgress) =>
-      estimateTail(design, {
+      estimateHighSigma(design, {
         workers: common.workers,
         confidence: common.confidence,
         signal,

@@ -1,16 +1,16 @@
 import { compileStage, InputError, type Design } from '@twinfet/core';
-import { analyticSummary, type AnalyticSummary } from './analytic.js';
-import { clopperPearson } from './clopperPearson.js';
-import { binWidth, createHistogram, exactQuantile, mergeHistograms, quantileFromHistogram, type Histogram } from './histogram.js';
-import type { InjectedFault, MonteCarloResult, MonteCarloTask } from './messages.js';
-import { emptyMoments, mergeMoments, type Moments } from './moments.js';
-import { normalQuantile } from './normal.js';
-import { createExecutor, defaultWorkers, type Executor } from './pool.js';
-import { CHUNK_SIZE, chunkCount, chunkLength, runChunks, RunAborted } from './schedule.js';
-import { seedText } from './seed.js';
-import { sigmaInterval } from './sigmaInterval.js';
-import { estimateTail, type TailReport } from './tail.js';
-import { wilson } from './wilson.js';
+import { linearisedSummary, type LinearisedSummary } from './linearisedSummary.js';
+import { clopperPearson } from '../stats/clopperPearson.js';
+import { binWidth, createHistogram, exactQuantile, mergeHistograms, quantileFromHistogram, type Histogram } from '../stats/histogram.js';
+import type { InjectedFault, MonteCarloResult, MonteCarloTask } from '../engine/messages.js';
+import { emptyMoments, mergeMoments, type Moments } from '../stats/moments.js';
+import { normalQuantile } from '../stats/normal.js';
+import { createExecutor, defaultWorkers, type Executor } from '../engine/pool.js';
+import { CHUNK_SIZE, chunkCount, chunkLength, runChunks, RunAborted } from '../engine/schedule.js';
+import { seedText } from '../random/seed.js';
+import { sigmaInterval } from '../stats/sigmaInterval.js';
+import { estimateHighSigma, type HighSigmaReport } from './highSigma.js';
+import { wilson } from '../stats/wilson.js';
 
 /** Quantile levels reported for the signed offset and for |Vos|. */
 export const QUANTILE_LEVELS = [0.001, 0.01, 0.5, 0.99, 0.999] as const;
@@ -87,7 +87,7 @@ export interface RunReport {
     readonly quantiles: { readonly signed: readonly QuantileValue[]; readonly absolute: readonly QuantileValue[] };
   };
   readonly histogram: { readonly lo: number; readonly hi: number; readonly binWidth: number; readonly counts: readonly number[]; readonly underflow: number; readonly overflow: number };
-  readonly analytic: AnalyticSummary & {
+  readonly analytic: LinearisedSummary & {
     readonly agreement: { readonly relativeDifference: number; readonly standardErrors: number; readonly consistent: boolean };
   };
   readonly yield: {
@@ -104,7 +104,7 @@ export interface RunReport {
     readonly limitedBySamples: boolean;
   };
   readonly chip: { readonly instances: number; readonly estimate: number; readonly interval: readonly [number, number] };
-  readonly importance?: TailReport;
+  readonly importance?: HighSigmaReport;
   readonly nonConverged: number;
   readonly seconds: number;
   readonly samplesPerSecond: number;
@@ -174,11 +174,11 @@ function folded(h: Histogram): Histogram {
  * report.offset.sigma // volts
  */
 export async function simulate(design: Design, options: SimulateOptions = {}): Promise<RunReport> {
-  return (await runMonteCarlo(design, options)).report;
+  return (await simulateWithSamples(design, options)).report;
 }
 
 /** `simulate`, also returning the kept offsets and draws. */
-export async function runMonteCarlo(design: Design, options: SimulateOptions = {}): Promise<RunOutcome> {
+export async function simulateWithSamples(design: Design, options: SimulateOptions = {}): Promise<RunOutcome> {
   checkOptions(options);
   const started = performance.now();
   const stage = compileStage(design);
@@ -189,7 +189,7 @@ export async function runMonteCarlo(design: Design, options: SimulateOptions = {
   const spec = options.spec ?? design.spec.offset;
   const keepOffsets = options.keepOffsets ?? (samples <= KEEP_LIMIT || options.keepDraws === true);
   const keepDraws = options.keepDraws ?? false;
-  const analytic = analyticSummary(stage, spec);
+  const analytic = linearisedSummary(stage, spec);
   const range = Math.max(HISTOGRAM_SIGMAS * analytic.sigma, 1.2 * spec);
   const histogramSpec = { lo: -range, hi: range, bins: HISTOGRAM_BINS };
 
@@ -232,7 +232,7 @@ export async function runMonteCarlo(design: Design, options: SimulateOptions = {
     done += r.count;
   };
   let partial = false;
-  let importance: TailReport | undefined;
+  let importance: HighSigmaReport | undefined;
   try {
     await runChunks(executor, tasks, (r) => consume(r as MonteCarloResult), {
       signal: options.signal,
@@ -240,7 +240,7 @@ export async function runMonteCarlo(design: Design, options: SimulateOptions = {
     });
     if (options.importance !== undefined && options.importance !== false) {
       const io = options.importance === true ? {} : options.importance;
-      importance = await estimateTail(design, {
+      importance = await estimateHighSigma(design, {
         spec,
         seed,
         confidence,

@@ -5,14 +5,14 @@
  */
 import { compileStage, formatQuantity, InputError, linearisedSigma, type Design, type DeviceRole, type InversionRegion, type Stage } from '@twinfet/core';
 import { areaSplit, equalScalingFamily, optimalSplitFamily, type AreaSplit } from './areaSplit.js';
-import { normalQuantile, sigmaLevel, twoSidedTail } from './normal.js';
-import { createExecutor, defaultWorkers, type Executor } from './pool.js';
+import { normalQuantile, sigmaLevel, twoSidedTail } from '../stats/normal.js';
+import { createExecutor, defaultWorkers, type Executor } from '../engine/pool.js';
 import { checkVary, DEFAULT_MIN_DIMENSION_M, singlePairFamily, type SizeVary, type SizingFamily } from './resize.js';
-import { seedText } from './seed.js';
-import { simulate } from './simulate.js';
+import { seedText } from '../random/seed.js';
+import { simulate } from '../analyses/simulate.js';
 import { limitingTerm, solveLinearised, type LinearisedFloor, type LinearisedSolution } from './sizeLinearised.js';
-import { estimateTail } from './tail.js';
-import { allowedFailure, chipYieldFromFailure } from './yield.js';
+import { estimateHighSigma } from '../analyses/highSigma.js';
+import { allowedFailure, chipYieldFromFailure } from '../stats/yield.js';
 
 /** What the sized design must achieve. */
 export type SizeTarget =
@@ -466,7 +466,7 @@ async function confirm(
       met,
     };
   }
-  const r = await estimateTail(at.design, {
+  const r = await estimateHighSigma(at.design, {
     spec,
     seed,
     confidence,

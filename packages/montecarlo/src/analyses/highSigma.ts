@@ -1,19 +1,19 @@
 import { compileStage, currentFactorDeviation, InputError, type Design, type Stage } from '@twinfet/core';
 import { findDesignPoint, type DesignPoint } from './designPoint.js';
-import type { ImportanceResult, ImportanceTask } from './messages.js';
-import { normalQuantile, sigmaLevel, sigmaLevelOfTails } from './normal.js';
-import { createExecutor, defaultWorkers, inThreadExecutor, type Executor } from './pool.js';
-import { runChunks } from './schedule.js';
-import { seedText } from './seed.js';
-import { chipFailure } from './yield.js';
+import type { ImportanceResult, ImportanceTask } from '../engine/messages.js';
+import { normalQuantile, sigmaLevel, sigmaLevelOfTails } from '../stats/normal.js';
+import { createExecutor, defaultWorkers, inThreadExecutor, type Executor } from '../engine/pool.js';
+import { runChunks } from '../engine/schedule.js';
+import { seedText } from '../random/seed.js';
+import { chipFailure } from '../stats/yield.js';
 
 /** Importance-sampling chunk size: small, so the stop rule can act after a few thousand samples. */
 export const IMPORTANCE_CHUNK = 4096;
 /** Remaining samples above which a worker pool is worth its start-up (~0.15 s). */
 export const POOL_THRESHOLD = 200_000;
 
-/** Options of `estimateTail`. */
-export interface TailOptions {
+/** Options of `estimateHighSigma`. */
+export interface HighSigmaOptions {
   /** |Vos| limit, volts (default: the design's spec). */
   readonly spec?: number;
   readonly seed?: string | number;
@@ -50,7 +50,7 @@ export interface ReportedDesignPoint {
 }
 
 /** The high-sigma failure estimate. */
-export interface TailReport {
+export interface HighSigmaReport {
   readonly spec: number;
   readonly failureProbability: number;
   readonly standardError: number;
@@ -107,7 +107,7 @@ function describePoint(stage: Stage, p: DesignPoint): ReportedDesignPoint {
   };
 }
 
-function check(o: TailOptions): void {
+function check(o: HighSigmaOptions): void {
   if (o.relError !== undefined && !(o.relError > 0 && o.relError < 1)) {
     throw new InputError('relError', `expected a fraction between 0 and 1 such as 0.05, got ${o.relError}`);
   }
@@ -128,7 +128,7 @@ function check(o: TailOptions): void {
  * N(u*-, I), weight phi(u)/q(u). Stops when the interval's relative half-width reaches
  * `relError`, or after `samples`. Deterministic for a seed: rounds are fixed sets of chunks.
  */
-export async function estimateTail(design: Design, options: TailOptions = {}): Promise<TailReport> {
+export async function estimateHighSigma(design: Design, options: HighSigmaOptions = {}): Promise<HighSigmaReport> {
   check(options);
   const started = performance.now();
   const stage = compileStage(design);
@@ -154,7 +154,7 @@ export async function estimateTail(design: Design, options: TailOptions = {}): P
   let hits = 0;
   let nonConverged = 0;
   let chunk = 0;
-  let stopRule: TailReport['stopRule'] = fixed === undefined ? 'relative-error' : 'samples';
+  let stopRule: HighSigmaReport['stopRule'] = fixed === undefined ? 'relative-error' : 'samples';
   const consume = (r: ImportanceResult): void => {
     n += r.count;
     sum += r.sum;

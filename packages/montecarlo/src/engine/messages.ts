@@ -3,8 +3,8 @@
  * A chunk is a pure function of its task: same task, same bytes, on any thread.
  */
 import type { Design } from '@twinfet/core';
-import type { Histogram } from './histogram.js';
-import type { Moments } from './moments.js';
+import type { Histogram } from '../stats/histogram.js';
+import type { Moments } from '../stats/moments.js';
 
 /** Test-only fault injection, honoured only when TWINFET_TEST_FAULTS=1 in the worker. */
 export type InjectedFault = 'throw' | 'exit';

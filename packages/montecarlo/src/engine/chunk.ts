@@ -1,9 +1,9 @@
 import { compileStage, type Stage } from '@twinfet/core';
 import type { ChunkResult, ImportanceResult, ImportanceTask, MonteCarloResult, MonteCarloTask, ChunkTask } from './messages.js';
-import { addToHistogram, createHistogram } from './histogram.js';
-import { addBlock, emptyMoments } from './moments.js';
-import { chunkRng } from './stream.js';
-import { fillStandardNormals } from './ziggurat.js';
+import { addToHistogram, createHistogram } from '../stats/histogram.js';
+import { addBlock, emptyMoments } from '../stats/moments.js';
+import { chunkRng } from '../random/stream.js';
+import { fillStandardNormals } from '../random/ziggurat.js';
 
 /** Samples evaluated per inner block: the block's draws stay in cache. */
 const BLOCK = 1024;
@@ -29,10 +29,10 @@ function stageFor(design: ChunkTask['design']): Stage {
 /** Runs one chunk of work. Pure: the result depends on the task only. */
 export function runChunk(task: ChunkTask): ChunkResult {
   const stage = stageFor(task.design);
-  return task.kind === 'montecarlo' ? runMonteCarlo(stage, task) : runImportance(stage, task);
+  return task.kind === 'montecarlo' ? monteCarloKernel(stage, task) : importanceKernel(stage, task);
 }
 
-function runMonteCarlo(stage: Stage, task: MonteCarloTask): MonteCarloResult {
+function monteCarloKernel(stage: Stage, task: MonteCarloTask): MonteCarloResult {
   const dim = stage.dimension;
   const rng = chunkRng(task.seed, 'montecarlo', task.chunk);
   const histogram = createHistogram(task.histogram.lo, task.histogram.hi, task.histogram.bins);
@@ -84,7 +84,7 @@ function runMonteCarlo(stage: Stage, task: MonteCarloTask): MonteCarloResult {
   };
 }
 
-function runImportance(stage: Stage, task: ImportanceTask): ImportanceResult {
+function importanceKernel(stage: Stage, task: ImportanceTask): ImportanceResult {
   const dim = stage.dimension;
   const rng = chunkRng(task.seed, 'importance', task.chunk);
   const k = task.shifts.length;

@@ -4,10 +4,10 @@
  * random numbers) and the differences between them are not masked by sampling noise.
  */
 import { compileStage, InputError, linearisedSigma, type Design } from '@twinfet/core';
-import { createExecutor, defaultWorkers, type Executor } from './pool.js';
-import { seedText } from './seed.js';
+import { createExecutor, defaultWorkers, type Executor } from '../engine/pool.js';
+import { seedText } from '../random/seed.js';
 import { simulate } from './simulate.js';
-import { estimateTail } from './tail.js';
+import { estimateHighSigma } from './highSigma.js';
 
 /** Monte Carlo samples per sweep point by default. */
 export const SWEEP_SAMPLES = 20_000;
@@ -102,7 +102,7 @@ export async function sweepDesigns(designs: readonly Design[], options: SweepOpt
     const spec = options.spec ?? design.spec.offset;
     const common = { seed, confidence, executor, spec, ...(options.signal === undefined ? {} : { signal: options.signal }) };
     const r = await simulate(design, { ...common, samples, keepOffsets: false });
-    const tail = options.importance === true ? await estimateTail(design, common) : undefined;
+    const tail = options.importance === true ? await estimateHighSigma(design, common) : undefined;
     return {
       index,
       spec,

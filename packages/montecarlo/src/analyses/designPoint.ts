@@ -1,5 +1,5 @@
 import type { Stage } from '@twinfet/core';
-import { normalUpperTail } from './normal.js';
+import { normalUpperTail } from '../stats/normal.js';
 
 /** The most probable failure point of one side (Vos = +spec or Vos = -spec). */
 export interface DesignPoint {

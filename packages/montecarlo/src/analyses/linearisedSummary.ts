@@ -1,9 +1,9 @@
 import { groupedBudget, linearisedSigma, varianceBudget, type Stage } from '@twinfet/core';
-import { twoSidedTail } from './normal.js';
-import { chipYieldFromFailure } from './yield.js';
+import { twoSidedTail } from '../stats/normal.js';
+import { chipYieldFromFailure } from '../stats/yield.js';
 
 /** The linearised (first-order) picture of a stage: sigma, budget, Gaussian yield. */
-export interface AnalyticSummary {
+export interface LinearisedSummary {
   /** Linearised offset sigma, volts. */
   readonly sigma: number;
   /** Share of sigma^2 per device and parameter (sums to 1). */
@@ -23,7 +23,7 @@ export interface AnalyticSummary {
 }
 
 /** Linearised sigma, variance budget and the Gaussian yield at `spec` (volts). */
-export function analyticSummary(stage: Stage, spec = stage.design.spec.offset): AnalyticSummary {
+export function linearisedSummary(stage: Stage, spec = stage.design.spec.offset): LinearisedSummary {
   const sigma = linearisedSigma(stage);
   const failure = twoSidedTail(spec / sigma);
   const instances = stage.design.spec.instances;

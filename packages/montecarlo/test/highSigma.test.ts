@@ -1,10 +1,10 @@
 import { compileStage, linearisedSigma, type Design } from '@twinfet/core';
 import { describe, expect, it } from 'vitest';
-import { findDesignPoint } from '../src/designPoint.js';
-import { logNormalUpperTail, normalUpperTail, twoSidedTail } from '../src/normal.js';
-import { createExecutor } from '../src/pool.js';
-import { simulate } from '../src/simulate.js';
-import { estimateTail } from '../src/tail.js';
+import { findDesignPoint } from '../src/analyses/designPoint.js';
+import { logNormalUpperTail, normalUpperTail, twoSidedTail } from '../src/stats/normal.js';
+import { createExecutor } from '../src/engine/pool.js';
+import { simulate } from '../src/analyses/simulate.js';
+import { estimateHighSigma } from '../src/analyses/highSigma.js';
 import { bigMirror, linearSimple } from './designs.js';
 
 const sigmaLin = linearisedSigma(compileStage(linearSimple));
@@ -34,7 +34,7 @@ describe('design points (FORM)', () => {
 describe('importance sampling against the Gaussian closed form (DOMAIN.md)', () => {
   const executor = createExecutor(1);
   it.each([4, 5, 6, 7])('at %i sigma the estimate matches 2 Phi(-k) within its 99.9 percent interval', async (k) => {
-    const r = await estimateTail(at(k), { seed: `is-${k}`, executor, confidence: 0.999, relError: 0.05 });
+    const r = await estimateHighSigma(at(k), { seed: `is-${k}`, executor, confidence: 0.999, relError: 0.05 });
     const truth = twoSidedTail(k);
     expect(truth).toBeGreaterThanOrEqual(r.interval[0]);
     expect(truth).toBeLessThanOrEqual(r.interval[1]);
@@ -46,7 +46,7 @@ describe('importance sampling against the Gaussian closed form (DOMAIN.md)', () 
   });
 
   it.each([4, 5, 6, 7])('relative variance per sample at %i sigma matches exp(b^2) Phi(-2b)/Phi(-b)^2 - 1 within 15 percent', async (k) => {
-    const r = await estimateTail(at(k), { seed: `rv-${k}`, executor, samples: 200_000 });
+    const r = await estimateHighSigma(at(k), { seed: `rv-${k}`, executor, samples: 200_000 });
     const want = (Math.exp(k * k) * normalUpperTail(2 * k)) / normalUpperTail(k) ** 2 - 1;
     // DOMAIN.md values 4.51, 5.68, 6.87, 8.08: the formula computed here must reproduce them.
     expect(Math.abs(want - { 4: 4.51, 5: 5.68, 6: 6.87, 7: 8.08 }[k]!)).toBeLessThan(0.01);
@@ -55,7 +55,7 @@ describe('importance sampling against the Gaussian closed form (DOMAIN.md)', () 
 
   it('at about 3.5 sigma it agrees with plain Monte Carlo within the two intervals', async () => {
     const design = { ...bigMirror, spec: { offset: 3.5 * linearisedSigma(compileStage(bigMirror)), instances: 1 } };
-    const is = await estimateTail(design, { seed: 'x', executor, relError: 0.03 });
+    const is = await estimateHighSigma(design, { seed: 'x', executor, relError: 0.03 });
     const mc = await simulate(design, { samples: 2_000_000, seed: 'x', executor, keepOffsets: false });
     const [a, b] = is.interval;
     const [c, d] = mc.yield.failure.interval;
@@ -64,7 +64,7 @@ describe('importance sampling against the Gaussian closed form (DOMAIN.md)', () 
   });
 
   it.each([26, 30, 37])('at %i sigma (weights near 1e-150 to 1e-300) it still matches 2 Phi(-k) with a non-zero standard error', async (k) => {
-    const r = await estimateTail(at(k), { seed: `deep-${k}`, executor, confidence: 0.999 });
+    const r = await estimateHighSigma(at(k), { seed: `deep-${k}`, executor, confidence: 0.999 });
     // Truth from the log tail (A&S 26.2.12 beyond 37 sigma): 2 Phi(-k).
     const truth = 2 * Math.exp(logNormalUpperTail(k));
     expect(r.standardError).toBeGreaterThan(0);
@@ -75,7 +75,7 @@ describe('importance sampling against the Gaussian closed form (DOMAIN.md)', () 
   });
 
   it('beyond the range of doubles (45 sigma) it draws nothing and says so, with the FORM sigma level', async () => {
-    const r = await estimateTail(at(45), { seed: 'beyond', executor });
+    const r = await estimateHighSigma(at(45), { seed: 'beyond', executor });
     expect(r.belowDoubleRange).toBe(true);
     expect(r.stopRule).toBe('below-double-range');
     expect(r.samples).toBe(0);
@@ -86,14 +86,14 @@ describe('importance sampling against the Gaussian closed form (DOMAIN.md)', () 
 
   it('chip failure for M instances is 1 - (1 - p)^M', async () => {
     const d = { ...at(6), spec: { offset: 6 * sigmaLin, instances: 1000 } };
-    const r = await estimateTail(d, { seed: 'chip', workers: 1 });
+    const r = await estimateHighSigma(d, { seed: 'chip', workers: 1 });
     // Identity to rounding (expm1/log1p forms): 1e-12 relative.
     expect(Math.abs(r.chip.failure / -Math.expm1(1000 * Math.log1p(-r.failureProbability)) - 1)).toBeLessThan(1e-12);
   });
 
   it('refuses bad options naming the field', async () => {
-    await expect(estimateTail(at(5), { relError: 0 })).rejects.toThrow(/^relError: /);
-    await expect(estimateTail(at(5), { samples: 5 })).rejects.toThrow(/^samples: /);
-    await expect(estimateTail(at(5), { spec: -1 })).rejects.toThrow(/^spec: /);
+    await expect(estimateHighSigma(at(5), { relError: 0 })).rejects.toThrow(/^relError: /);
+    await expect(estimateHighSigma(at(5), { samples: 5 })).rejects.toThrow(/^samples: /);
+    await expect(estimateHighSigma(at(5), { spec: -1 })).rejects.toThrow(/^spec: /);
   });
 });
