@@ -57,6 +57,8 @@ function parseEnd(text: string | undefined, option: string, f: SweepField): numb
 function example(f: SweepField): string {
   switch (f.dimension) {
     case 'length': return '2um';
+    case 'area': return '4um^2';
+    case 'resistance': return '20kohm';
     case 'current': return '10uA';
     case 'temperature': return '"27 C"';
     case 'voltage': return '10mV';
