@@ -88,7 +88,10 @@ function parsePositiveVoltage(text: string, option: string): number {
 }
 
 function shown(f: SweepField, v: number): string {
-  return f.tableUnit === '' ? String(Number(v.toPrecision(6))) : formatQuantity(v, f.tableUnit, 4);
+  if (f.tableUnit === '') return String(Number(v.toPrecision(6)));
+  // Areas read best in um^2 whatever their size (a prefix does not square cleanly).
+  if (f.dimension === 'area') return `${Number((v * 1e12).toPrecision(4))} um^2`;
+  return formatQuantity(v, f.tableUnit, 4);
 }
 
 const mv = (v: number): string => formatQuantity(v, 'V', 4);
