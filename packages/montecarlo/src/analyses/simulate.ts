@@ -168,7 +168,7 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
   let partial = false;
   let importance: HighSigmaReport | undefined;
   try {
-    await runChunks(executor, tasks, (r) => consume(r as MonteCarloResult), {
+    await runChunks(executor, tasks, consume, {
       signal: options.signal,
       onProgress: options.onProgress,
     });
