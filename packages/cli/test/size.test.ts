@@ -36,7 +36,7 @@ describe('designToYaml: written designs load back to the same doubles (identitie
       fc.property(fc.double({ min: 1e-300, max: 1e300, noNaN: true }), fc.constantFrom(...units), (x, [unit, dim, p]) => {
         expect(parseQuantity(`${shiftedDecimal(x, p)} ${unit}`, dim, 'x')).toBe(x);
       }),
-      { numRuns: 500 },
+      { seed: 1035, numRuns: 500 },
     );
     // Computed by hand: 1.235e-5 m is 12.35 um; 5e-9 V*m is 5 mV*um; 1e-8 m is 1 %*um.
     expect(shiftedDecimal(1.235e-5, -6)).toBe('12.35');
@@ -55,7 +55,7 @@ describe('designToYaml: written designs load back to the same doubles (identitie
         const d: Design = { ...d0, tail, input: { ...d0.input, w, l } };
         expect(parseDesign(designToYaml(d, []), 'x.yaml')).toEqual(d);
       }),
-      { numRuns: 200 },
+      { seed: 1053, numRuns: 200 },
     );
   });
 });

@@ -50,6 +50,7 @@ describe('ceilSignificant (identities and properties)', () => {
         expect(r).toBeLessThanOrEqual(x * (1 + 1e-3) * (1 + 1e-12)); // one step of 4 digits is <= 1e-3 relative
         expect(Number(r.toPrecision(4))).toBe(r);
       }),
+      { seed: 1046 },
     );
   });
   it('keeps values that already have 4 digits and carries 9999.x into the next decade', () => {
