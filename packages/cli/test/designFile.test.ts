@@ -80,7 +80,7 @@ function parseWith(change: (d: Data) => void): Design {
   return parseDesign(JSON.stringify(d), 'demo.json');
 }
 
-// U_T = kT/q with the exact 2019 SI constants (DOMAIN.md "Constants").
+// U_T = kT/q with the exact 2019 SI constants (BIPM, The International System of Units, 9th ed., 2019).
 const K_B = 1.380649e-23;
 const Q_E = 1.602176634e-19;
 
