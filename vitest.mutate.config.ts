@@ -21,6 +21,7 @@ export default defineConfig({
       'packages/core/test/ekv.test.ts',
       'packages/core/test/topologies.test.ts',
       'packages/core/test/stageReference.test.ts',
+      'packages/core/test/deviceModel.test.ts',
       'packages/montecarlo/test/ziggurat.test.ts',
       'packages/montecarlo/test/clopperPearson.test.ts',
       'packages/montecarlo/test/wilson.test.ts',
