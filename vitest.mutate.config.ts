@@ -28,6 +28,7 @@ export default defineConfig({
       'packages/montecarlo/test/sigmaInterval.test.ts',
       'packages/montecarlo/test/moments.test.ts',
       'packages/montecarlo/test/reportIntervals.test.ts',
+      'packages/montecarlo/test/correlation.test.ts',
     ],
     // Instrumented code runs tens of times slower: the 2^27 normal deviates of the ziggurat tail
     // counts take minutes, not seconds.
