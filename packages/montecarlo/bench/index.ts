@@ -146,18 +146,25 @@ console.log(`  pool start-up plus one 131072-sample run with ${defaultWorkers()}
   } finally {
     await executor.close();
   }
+  // SIGINT once the run is under way: the test probe (test/support/chunkProbe.mjs) reports the
+  // first finished chunk on stderr, and the signal is sent then.
   const sigint: number[] = [];
   const bin = `${root}packages/cli/bin/twinfet.js`;
+  const probe = `${root}test/support/chunkProbe.mjs`;
   const { spawn } = await import('node:child_process');
   for (let i = 0; i < 3; i++) {
     sigint.push(
       await new Promise<number>((resolve) => {
-        const child = spawn(process.execPath, [bin, 'run', `${root}examples/comparator-demo.yaml`, '--samples', '1e9', '--workers', '2', '--json'], { stdio: 'ignore' });
+        const child = spawn(process.execPath, ['--import', probe, bin, 'run', `${root}examples/comparator-demo.yaml`, '--samples', '1e9', '--workers', '2', '--json'], { stdio: ['ignore', 'ignore', 'pipe'] });
         let sentAt = 0;
-        setTimeout(() => {
-          sentAt = performance.now();
-          child.kill('SIGINT');
-        }, 1500);
+        let err = '';
+        child.stderr.setEncoding('utf8').on('data', (text: string) => {
+          err += text;
+          if (sentAt === 0 && err.includes('probe: first chunk done')) {
+            sentAt = performance.now();
+            child.kill('SIGINT');
+          }
+        });
         child.on('close', () => resolve(performance.now() - sentAt));
       }),
     );
