@@ -6,7 +6,8 @@
  * per device, U_T = kT/q with the exact 2019 SI constants.
  */
 import { describe, expect, it } from 'vitest';
-import { compileStage, currentFactorDeviation, normalisedGmOverId, type Design } from '../src/index.js';
+import { processFor } from '../src/deviceConstants.js';
+import { compileStage, currentFactorDeviation, ekvInverseDifference, normalisedGmOverId, type Design } from '../src/index.js';
 import { demoProcess, mirrorDesign, simpleDesign } from './designs.js';
 
 const rel = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
@@ -131,5 +132,43 @@ describe('simple stage: a current factor beyond the range of doubles gives NaN, 
     expect(failed).toBe(2);
     // The finite one is M1's V_T one sigma high: exactly sigma(dV_T) (stageReference.test.ts).
     expect(rel(out[1]!, 5e-9 / Math.sqrt(2 * side * side))).toBeLessThan(1e-12);
+  });
+});
+
+describe('v(s1^2) - v(s2^2) in strong inversion keeps its digits where the two inverses nearly cancel', () => {
+  // v(IC) = 2 ln(e^s - 1), s = sqrt(IC). For close s1, s2 the difference is, to second order in
+  // d = s1 - s2, v' d + v'' d^2 / 2 with v'(s) = 2 e^s / (e^s - 1) and v''(s) = -2 e^s / (e^s - 1)^2
+  // (differentiate); the third-order term is below d^3 |v'''| / 6 < 1e-30 at d = 1e-9. At s = 30
+  // each inverse is about 60, so subtracting two separately rounded ones would keep only
+  // 60 x 2^-52 / (2 d) = 7e-6 relative; the combined form keeps about 1e-15. (Below s = 1 the
+  // series form is there to save log calls, not digits: both forms then lose ~1e-16 absolute.)
+  it('s = 30 and 30 - 1e-9: equals the Taylor form to 1e-12 relative', () => {
+    const s1 = 30;
+    const s2 = 30 - 1e-9;
+    const d = s1 - s2;
+    const e = Math.exp(s2);
+    const em = Math.expm1(s2);
+    const want = (2 * e * d) / em - (e * d * d) / (em * em);
+    expect(rel(ekvInverseDifference(s1, s2, Number.NaN), want)).toBeLessThan(1e-12);
+  });
+});
+
+describe('what a compiled stage says about itself', () => {
+  it('topology, dimension and U_T of each stage', () => {
+    const s = compileStage(simpleDesign);
+    const m = compileStage(mirrorDesign);
+    expect([s.topology, s.dimension, m.topology, m.dimension]).toEqual(['simple', 4, 'mirror', 8]);
+    expect(rel(s.thermalVoltage, thermal(300))).toBeLessThan(1e-15);
+  });
+  it('a temperature outside 200-450 K is kept in the warnings of both stages (this project\'s range, no source)', () => {
+    for (const d of [simpleDesign, mirrorDesign]) {
+      const w = compileStage({ ...d, temperature: 150 }).warnings;
+      expect(w).toEqual([expect.stringMatching(/^temperature 150\.0 K is outside 200-450 K/)]);
+      expect(compileStage({ ...d, temperature: 300 }).warnings).toEqual([]);
+    }
+  });
+  it('an unvalidated design with a polarity but no process entry is an internal error, named', () => {
+    // validateDesign refuses it first; processFor's own guard is the last line (deviceConstants.ts).
+    expect(() => processFor({ ...simpleDesign, process: {} }, 'n')).toThrow(/^internal: process\.n missing after validation$/);
   });
 });
