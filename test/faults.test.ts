@@ -31,7 +31,7 @@ process.on('worker', (worker: Worker) => {
 });
 
 /** Resolves when every tracked worker has exited, or rejects after `ms` (a hang guard, not a speed check). */
-async function allWorkersExited(ms = 10_000): Promise<void> {
+async function allWorkersExited(ms = 60_000): Promise<void> {
   const deadline = performance.now() + ms;
   while (started.some((s) => !s.exited)) {
     if (performance.now() > deadline) throw new Error(`${started.filter((s) => !s.exited).length} worker thread(s) still alive after ${ms} ms`);
@@ -75,7 +75,7 @@ describe('injected worker faults (TWINFET_TEST_FAULTS=1)', () => {
     const executor: Executor = createExecutor(2);
     const e = await withinHangGuard(
       settle(simulate(linearPair, { samples: 500_000, executor, seed: 'fault', fault: { chunk: 3, fault } })),
-      20_000,
+      120_000,
       'the faulted run',
     );
     // The error is the pool's ChunkError with the worker's failure as its cause (pool.ts), one line.
@@ -86,7 +86,7 @@ describe('injected worker faults (TWINFET_TEST_FAULTS=1)', () => {
     expect((e as Error & { cause?: unknown }).cause).toBeInstanceOf(Error);
     // The caller's pool survives the fault well enough to be closed (and the run did not close it).
     expect(executor.liveThreads()).toBeGreaterThan(0);
-    await withinHangGuard(executor.close(), 10_000, 'closing the pool');
+    await withinHangGuard(executor.close(), 60_000, 'closing the pool');
     expect(executor.liveThreads()).toBe(0);
     await allWorkersExited();
     // Exact: two threads asked for; a crashed one is replaced by piscina, so at least two started.
@@ -97,7 +97,7 @@ describe('injected worker faults (TWINFET_TEST_FAULTS=1)', () => {
   it.each(['exit', 'throw'] as const)('fault %s when simulate owns its pool: rejects and leaves no thread alive', async (fault) => {
     const e = await withinHangGuard(
       settle(simulate(linearPair, { samples: 500_000, workers: 2, seed: 'fault-own', fault: { chunk: 1, fault } })),
-      20_000,
+      120_000,
       'the faulted run',
     );
     expect((e as Error).name).toBe('ChunkError');
@@ -140,7 +140,7 @@ describe('cancellation through the API', () => {
     const probe = abortAfter(ac, 2);
     const e = await withinHangGuard(
       settle(simulate(linearPair, { samples: 1e9, workers: 2, signal: ac.signal, onProgress: probe.onProgress })),
-      20_000,
+      120_000,
       'the aborted run',
     );
     expect((e as Error).name).toBe('AbortError');
@@ -161,7 +161,7 @@ describe('cancellation through the API', () => {
     const probe = abortAfter(ac, 3);
     const r = await withinHangGuard(
       simulate(linearPair, { samples: 1e9, executor, signal: ac.signal, partialOnAbort: true, seed: 'partial', onProgress: probe.onProgress }),
-      20_000,
+      120_000,
       'the aborted run',
     );
     expect(r.partial).toBe(true);
@@ -182,7 +182,7 @@ describe('cancellation through the API', () => {
     const d = { ...linearPair, spec: { offset: 6 * 3.5355e-4, instances: 1 } };
     const e = await withinHangGuard(
       settle(estimateHighSigma(d, { samples: 1e8, workers: 2, signal: ac.signal, onProgress: probe.onProgress })),
-      20_000,
+      120_000,
       'the aborted tail',
     );
     expect((e as Error).name).toBe('AbortError');
@@ -213,7 +213,7 @@ const withoutProbe = (stderr: string): string => stderr.split('\n').filter((l) =
 function interruptedCli(args: readonly string[]): Promise<CliResult> {
   let sent = false;
   return runCli(args, {
-    timeoutMs: 30_000,
+    timeoutMs: 120_000,
     nodeArgs: ['--import', PROBE],
     onStderr: (text, child) => {
       if (!sent && text.includes('probe: first chunk done')) {

@@ -26,7 +26,7 @@ export interface CliResult {
 export interface RunCliOptions {
   /** Extra environment variables (added to this process's environment). */
   readonly env?: Readonly<Record<string, string>>;
-  /** Kill the process after this long (a hang guard), ms; default 30 s. */
+  /** Kill the process after this long (a hang guard, not a speed check), ms; default 120 s. */
   readonly timeoutMs?: number;
   /** Called once the process has started, with the child (to send it signals). */
   readonly onSpawn?: (child: import('node:child_process').ChildProcess) => void;
@@ -52,7 +52,7 @@ export function runCli(args: readonly string[], options: RunCliOptions = {}): Pr
       stderr += s;
       options.onStderr?.(stderr, child);
     });
-    const timer = setTimeout(() => child.kill('SIGKILL'), options.timeoutMs ?? 30_000);
+    const timer = setTimeout(() => child.kill('SIGKILL'), options.timeoutMs ?? 120_000);
     child.on('error', (e) => {
       clearTimeout(timer);
       reject(e);
