@@ -223,7 +223,12 @@ export function validateDesign(design: Design): Design {
   for (const key of Object.keys(design.spec)) if (key !== fig.specKey && key !== 'instances') throw unknownSpecKey(def, key);
   const limit = design.spec[fig.specKey];
   if (limit === undefined) throw new InputError(`spec.${fig.specKey}`, `missing; add ${fig.example}`);
-  within(limit, `spec.${fig.specKey}`, `${fig.label} limit`, fig.limits, fig.unit === '' ? '' : fig.unit);
+  if (fig.unit === '') {
+    // A dimensionless figure is written and shown in %: so are its limits.
+    const v = positive(limit, `spec.${fig.specKey}`, `${fig.label} limit`);
+    const [lo, hi] = fig.limits;
+    if (v < lo || v > hi) throw new InputError(`spec.${fig.specKey}`, `expected a ${fig.label} limit ${lo === 0 ? 'above 0 %' : `from ${100 * lo} %`} up to ${100 * hi} %, got ${Number((100 * v).toPrecision(6))} %`);
+  } else within(limit, `spec.${fig.specKey}`, `${fig.label} limit`, fig.limits, fig.unit);
   if (design.spec.instances !== undefined) wholeNumber(design.spec.instances, 'spec.instances', 'instances per chip', DESIGN_LIMITS.instances);
   def.validate?.(design);
   return withDefaults(design);
