@@ -8,7 +8,7 @@ import { InputError } from './errors.js';
 import { DESIGN_LIMITS, MAX_DEVICE_SIGMA_BETA } from './limits.js';
 import { closestWord } from './parse/didYouMean.js';
 import type { BlockDefinition, FieldDefinition, StageDefinition } from './stages/definition.js';
-import { STAGES, stageDefinition, topologiesWith } from './stages/registry.js';
+import { alternatives, STAGES, stageDefinition, topologiesWith } from './stages/registry.js';
 import { fieldPath } from './parse/fieldReader.js';
 
 function shown(value: unknown): string {
@@ -95,7 +95,7 @@ export function unknownDesignKey(def: StageDefinition, key: string): InputError 
   const others = topologiesWith(key);
   if (others.length > 0) {
     const what = def.topology === 'simple' && key === 'load' ? 'a simple stage has ideal loads' : `a ${def.topology} stage has no ${key}`;
-    return new InputError(key, `${what}; remove ${key} or set topology: ${others.join(' or ')}`);
+    return new InputError(key, `${what}; remove ${key} or set topology: ${alternatives(others)}`);
   }
   const guess = closestWord(key, designKeys(def));
   const hint = guess === undefined ? `expected one of ${designKeys(def).join(', ')}` : `did you mean "${guess}"?`;

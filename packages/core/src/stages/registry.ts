@@ -28,10 +28,14 @@ export function topologiesWith(key: string): string[] {
  */
 export function lacksText(def: StageDefinition, key: string): string {
   const owners = topologiesWith(key);
-  const names = owners.length <= 1 ? owners.join('') : `${owners.slice(0, -1).join(', ')} or ${owners[owners.length - 1]!}`;
-  const have = owners.length === 0 ? '' : ` (the ${names} stage${owners.length > 1 ? 's have' : ' has'} one)`;
+  const have = owners.length === 0 ? '' : ` (the ${alternatives(owners)} stage${owners.length > 1 ? 's have' : ' has'} one)`;
   const ideal = def.topology === 'simple' && key === 'load' ? ' (ideal loads)' : '';
-  return `a ${key}${have}, but this design is a ${def.topology} stage${ideal}`;
+  return `${/^[aeiou]/.test(key) ? 'an' : 'a'} ${key}${have}, but this design is a ${def.topology} stage${ideal}`;
+}
+
+/** `a`, `a or b`, `a, b or c`: a list of alternatives in words. */
+export function alternatives(items: readonly string[]): string {
+  return items.length <= 1 ? items.join('') : `${items.slice(0, -1).join(', ')} or ${items[items.length - 1]!}`;
 }
 
 /**
