@@ -17,3 +17,4 @@ export { CURRENT_MIRROR_CAUTION } from './stages/currentMirror.js';
 export { parseDesign, type DesignFormat, type ParseOptions } from './parse/parseDesign.js';
 export { closestWord, editDistance } from './parse/didYouMean.js';
 export { writeDesign, shiftedDecimal } from './parse/writeDesign.js';
+export { unitSlips, SLIP_LIMIT_VOLTS, SLIP_SIGMAS, SLIP_TAIL_AMPS, SLIP_LENGTH_M } from './unitSlips.js';

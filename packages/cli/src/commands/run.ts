@@ -5,6 +5,7 @@ import type { Command } from 'commander';
 import { readCommon, readSpec, withCommonOptions, type CommonFlags } from '../commonOptions.js';
 import { figureJson, figureText, headerLine, pct, plotFigure, sci, type FigureText } from '../describe.js';
 import { loadDesign } from '../designFile.js';
+import { warnUnitSlips } from '../unitWarnings.js';
 import { parseCount } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
 import { withInterrupt } from '../interrupt.js';
@@ -163,6 +164,7 @@ export function registerRun(program: Command, io: Io, setExit: (code: number) =>
     const o = parseRunFlags(flags);
     const design = await loadDesign(file);
     const spec = readSpec(flags, design);
+    warnUnitSlips(io, design, spec);
     const done = await withInterrupt(io, 'run', (signal, onProgress) =>
       simulateWithSamples(design, {
         samples: o.samples,

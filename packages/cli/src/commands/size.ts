@@ -5,6 +5,7 @@ import type { Command } from 'commander';
 import { readCommon, readSpec, withCommonOptions, type CommonFlags } from '../commonOptions.js';
 import { figureSummary, figureText, headerLine, parseFigureOption, pct, sci, type FigureText } from '../describe.js';
 import { loadDesign } from '../designFile.js';
+import { warnUnitSlips } from '../unitWarnings.js';
 import { writeOutputFile } from '../files.js';
 import { parseCount, parseFraction } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
@@ -223,6 +224,7 @@ export function registerSize(program: Command, io: Io, setExit: (code: number) =
     const design = await loadDesign(file);
     const target = parseTarget(flags, design);
     const spec = readSpec(flags, design);
+    warnUnitSlips(io, design, spec);
     let done: Awaited<ReturnType<typeof withInterrupt<SizeReport>>>;
     try {
       done = await withInterrupt(io, 'size', (signal) =>

@@ -4,6 +4,7 @@ import type { Command } from 'commander';
 import { readCommon, readSpec, withCommonOptions, type CommonFlags } from '../commonOptions.js';
 import { designSummary, figureSummary, figureText, parseFigureOption, plotFigure, sci } from '../describe.js';
 import { loadDesign } from '../designFile.js';
+import { warnUnitSlips } from '../unitWarnings.js';
 import { writeOutputFile } from '../files.js';
 import { parseCount, parseFraction } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
@@ -84,7 +85,10 @@ function pointDesign(design: Design, f: SweepField, value: number, option: strin
 }
 
 function shown(f: SweepField, v: number): string {
-  return f.tableUnit === '' ? String(Number(v.toPrecision(6))) : formatQuantity(v, f.tableUnit, 4);
+  if (f.tableUnit === '') return String(Number(v.toPrecision(6)));
+  // Areas read best in um^2 whatever their size (a prefix does not square cleanly).
+  if (f.dimension === 'area') return `${Number((v * 1e12).toPrecision(4))} um^2`;
+  return formatQuantity(v, f.tableUnit, 4);
 }
 
 /** A yield or interval end: exactly 1 prints as 1 (no failures seen), tiny values in scientific form. */
@@ -182,6 +186,7 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
     const design = await loadDesign(file);
     const targetSigma = flags.targetSigma === undefined ? null : parseFigureOption(flags.targetSigma, '--target-sigma', design, 'sigma');
     const spec = readSpec(flags, design);
+    warnUnitSlips(io, design, spec);
     const f = sweepField(flags.vary, design);
     const specPath = `spec.${stageDefinition(design.topology).figure.specKey}`;
     if (f.path === specPath && spec !== undefined) throw new InputError('--spec', `cannot be combined with --vary ${specPath}; drop one`);

@@ -4,6 +4,7 @@ import type { Command } from 'commander';
 import { readCommon, readSpec, withCommonOptions, type CommonFlags } from '../commonOptions.js';
 import { designSummary, figureSummary, figureText, headerLine, sci } from '../describe.js';
 import { loadDesign } from '../designFile.js';
+import { warnUnitSlips } from '../unitWarnings.js';
 import { parseCount, parseFraction } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
 import { withInterrupt } from '../interrupt.js';
@@ -96,6 +97,7 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
     const samples = flags.samples === undefined ? undefined : parseCount(flags.samples, '--samples', 100, 1e10);
     const design = await loadDesign(file);
     const spec = readSpec(flags, design);
+    warnUnitSlips(io, design, spec);
     const done = await withInterrupt(io, 'tail', (signal, onProgress) =>
       estimateHighSigma(design, {
         workers: common.workers,
