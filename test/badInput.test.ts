@@ -56,7 +56,7 @@ const results = new Map<string, CliResult>();
 beforeAll(async () => {
   const done = await mapLimit(invocations, availableParallelism(), (inv) => runCli(inv.args));
   invocations.forEach((inv, i) => results.set(inv.label, done[i]!));
-}, 120_000);
+}, 240_000);
 
 describe('the corpus itself', () => {
   it('holds at least 30 broken design files, each used by a case, and every case file exists', () => {
