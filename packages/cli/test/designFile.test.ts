@@ -347,7 +347,7 @@ describe('field problems (each one line, naming the field and the bad value)', (
     ['input.polarity', (d: Data) => (d.input.polarity = 'q'), 'expected n or p', 'got "q"'],
     ['input.polarity', (d: Data) => (d.input.polarity = 'N'), 'expected n or p', 'did you mean "n"?'],
     ['input.polarity', (d: Data) => (d.input.polarity = false), 'expected n or p', 'got false'],
-    ['topology', (d: Data) => (d.topology = 'cascode'), 'expected simple, mirror or resistor', 'got "cascode"'],
+    ['topology', (d: Data) => (d.topology = 'cascode'), 'expected simple, mirror, resistor, folded or current-mirror', 'got "cascode"'],
     ['topology', (d: Data) => (d.topology = 'miror'), 'did you mean "mirror"?'],
     ['process.p.vt0', (d: Data) => (d.process.p.vt0 = '-0.5 V'), 'magnitudes', '"-0.5 V"'],
     ['process.n.vt0', (d: Data) => (d.process.n.vt0 = '0.45 A'), 'expected a voltage', '"0.45 A"'],

@@ -131,6 +131,6 @@ describe('twinfet size (end to end, the built CLI)', () => {
     }
     const simple = twinfet('size', senseAmp, '--sigma', '1mV', '--vary', 'load.area');
     expect(simple.code).toBe(2);
-    expect(simple.stderr.trimEnd()).toMatch(/^twinfet: --vary: load\.area needs a load \(the mirror or resistor stages have one\), but this design is a simple stage/);
+    expect(simple.stderr.trimEnd()).toMatch(/^twinfet: --vary: load\.area needs a load \(the mirror, resistor or folded stages have one\), but this design is a simple stage/);
   });
 });

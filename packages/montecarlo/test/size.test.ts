@@ -241,7 +241,7 @@ describe('size refuses targets that cannot be met, naming the limiting term', ()
   });
 
   it('load sizing of a simple stage, and bad targets, are refused naming the option', async () => {
-    expectInputError(await refusal(sizeDesign(bigSimple, { target: { kind: 'sigma', sigma: 1e-3 }, vary: 'load.w' })), 'vary', 'needs a load (the mirror or resistor stages have one)');
+    expectInputError(await refusal(sizeDesign(bigSimple, { target: { kind: 'sigma', sigma: 1e-3 }, vary: 'load.w' })), 'vary', 'needs a load (the mirror, resistor or folded stages have one)');
     expectInputError(await refusal(sizeDesign(bigSimple, { target: { kind: 'sigma', sigma: 1e-3 }, vary: 'both' })), 'vary', 'simple stage');
     expectInputError(await refusal(sizeDesign(bigSimple, { target: { kind: 'sigma', sigma: -1 } })), 'sigma', 'positive');
     expectInputError(await refusal(sizeDesign(bigSimple, { target: { kind: 'yield', yield: 1 } })), 'yield', 'strictly between 0 and 1');
