@@ -110,7 +110,8 @@ export function renderRun(r: RunReport, design: Design): string {
     '',
     renderPairs([
       ['offset mean', `${mv(r.offset.mean)}   ${c} ${range(r.offset.meanInterval, mv)}`],
-      ['offset sigma', `${mv(r.offset.sigma)}   ${c} ${range(r.offset.sigmaInterval, mv)} (chi-square)`],
+      ['offset sigma', `${mv(r.offset.sigma)}   ${c} ${range(r.offset.sigmaInterval, mv)} (${r.offset.sigmaIntervalMethod === 'bonett' ? 'Bonett, valid for non-Gaussian offsets' : 'chi-square'})`],
+      ['offset kurtosis', `${r.offset.kurtosis.toFixed(3)}   (3 for a Gaussian offset; above 3, heavier tails)`],
       ['linearised sigma', `${mv(r.analytic.sigma)}   Monte Carlo differs by ${pct(agree.relativeDifference, 2)} (${agree.standardErrors.toFixed(1)} standard errors)${agree.consistent ? '' : '  <- more than sampling error allows: the offset is not linear in the mismatch here'}`],
       ['min / max', `${mv(r.offset.min)} / ${mv(r.offset.max)}`],
     ]),

@@ -3,12 +3,12 @@ import { linearisedSummary, type LinearisedSummary } from './linearisedSummary.j
 import { clopperPearson } from '../stats/clopperPearson.js';
 import { binWidth, createHistogram, exactQuantile, mergeHistograms, quantileFromHistogram, type Histogram } from '../stats/histogram.js';
 import type { InjectedFault, MonteCarloResult, MonteCarloTask } from '../engine/messages.js';
-import { emptyMoments, mergeMoments, type Moments } from '../stats/moments.js';
+import { emptyMoments, kurtosis, mergeMoments, type Moments } from '../stats/moments.js';
 import { normalQuantile } from '../stats/normal.js';
 import { createExecutor, defaultWorkers, type Executor } from '../engine/pool.js';
 import { CHUNK_SIZE, chunkCount, chunkLength, runChunks, RunAborted } from '../engine/schedule.js';
 import { seedText } from '../random/seed.js';
-import { sigmaInterval } from '../stats/sigmaInterval.js';
+import { sigmaIntervalBonett, sigmaIntervalChiSquare } from '../stats/sigmaInterval.js';
 import { estimateHighSigma, type HighSigmaReport } from './highSigma.js';
 import { wilson } from '../stats/wilson.js';
 
@@ -24,6 +24,8 @@ export const HISTOGRAM_SIGMAS = 10;
 export const AGREEMENT_Z = 4;
 /** Fewer failures than this make the yield estimate sample-limited. */
 export const FEW_FAILURES = 10;
+/** From this many evaluated samples the sigma interval is Bonett's; below, the chi-square one (too few for a kurtosis). */
+export const BONETT_FROM = 10;
 
 /** Interval method for the yield. */
 export type IntervalMethod = 'clopper-pearson' | 'wilson';
@@ -80,7 +82,16 @@ export interface RunReport {
     readonly mean: number;
     readonly meanInterval: readonly [number, number];
     readonly sigma: number;
+    /**
+     * Interval on sigma by `sigmaIntervalMethod`: Bonett's (2006), which holds for
+     * non-Gaussian offsets, from 10 evaluated samples on; chi-square below.
+     */
     readonly sigmaInterval: readonly [number, number];
+    readonly sigmaIntervalMethod: 'bonett' | 'chi-square';
+    /** The chi-square interval (exact for Gaussian offsets only), for comparison. */
+    readonly sigmaIntervalChiSquare: readonly [number, number];
+    /** Sample kurtosis n M4 / M2^2 of the offset (3 for a Gaussian; larger means heavier tails). */
+    readonly kurtosis: number;
     readonly min: number;
     readonly max: number;
     readonly quantileMethod: 'exact' | 'histogram';
@@ -165,8 +176,8 @@ function folded(h: Histogram): Histogram {
 }
 
 /**
- * Monte Carlo of the exact offset: the offset distribution, its sigma with a chi-square
- * interval, quantiles, the instance and chip yield with intervals, and the linearised picture
+ * Monte Carlo of the exact offset: the offset distribution, its sigma and kurtosis with
+ * Bonett's interval (which allows for non-Gaussian offsets), quantiles, the instance and chip yield with intervals, and the linearised picture
  * beside it. Chunked and seeded: the same seed and sample count give the same numbers with
  * any number of workers.
  * @example
@@ -287,7 +298,12 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
     absolute = histogramQuantiles(folded(histogram));
   }
 
-  const se = sigma / Math.sqrt(2 * (n - 1));
+  const k = kurtosis(moments);
+  const chiSquare = sigmaIntervalChiSquare(sigma, n, confidence);
+  const bonett = n >= BONETT_FROM;
+  // Standard error of s by the delta method on Var(ln s^2) = (kurtosis - (n-3)/n) / (n-1)
+  // (Bonett 2006): sigma / sqrt(2 (n-1)) for a Gaussian, wider for heavy tails.
+  const se = 0.5 * sigma * Math.sqrt(Math.max(0, k - (n - 3) / n) / (n - 1));
   const standardErrors = (sigma - analytic.sigma) / se;
   const warnings = [...stage.warnings];
   if (nonConverged > 0) warnings.push(`${nonConverged} sample(s) whose balance solve did not converge were left out of every statistic`);
@@ -307,7 +323,10 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
       mean: moments.mean,
       meanInterval: [moments.mean - (z * sigma) / Math.sqrt(n), moments.mean + (z * sigma) / Math.sqrt(n)],
       sigma,
-      sigmaInterval: sigmaInterval(sigma, n, confidence),
+      sigmaInterval: bonett ? sigmaIntervalBonett(sigma, n, k, confidence) : chiSquare,
+      sigmaIntervalMethod: bonett ? 'bonett' : 'chi-square',
+      sigmaIntervalChiSquare: chiSquare,
+      kurtosis: k,
       min: moments.min,
       max: moments.max,
       quantileMethod,
