@@ -2,7 +2,7 @@
  * The numeric design fields a sweep can step: their paths as written in a design file, what
  * they measure, how they are shown, and how a design is rebuilt with one of them changed.
  */
-import { InputError, type Design, type Dimension, type Polarity, type ProcessParams } from '@twinfet/core';
+import { InputError, type Design, type DeviceGeometry, type Dimension, type Polarity, type ProcessParams } from '@twinfet/core';
 import { closestWord } from './didYouMean.js';
 
 /** A sweepable field. */
@@ -36,8 +36,10 @@ const field = (path: string, dimension: Dimension, siUnit: string, tableUnit: st
 export const SWEEP_FIELDS: readonly SweepField[] = [
   field('input.w', 'length', 'm', 'm'),
   field('input.l', 'length', 'm', 'm'),
+  field('input.area', 'area', 'm^2', 'um^2'),
   field('load.w', 'length', 'm', 'm'),
   field('load.l', 'length', 'm', 'm'),
+  field('load.area', 'area', 'm^2', 'um^2'),
   field('tail', 'current', 'A', 'A'),
   field('temperature', 'temperature', 'K', 'C'),
   field('spec.offset', 'voltage', 'V', 'V'),
@@ -67,6 +69,28 @@ export function sweepField(path: string, design: Design, option = '--vary'): Swe
   return f;
 }
 
+/**
+ * A pair's geometry with gate area W L = `areaM2` per device at its own W/L (as `size --vary
+ * input.area` scales it): W = sqrt(A W/L), L = sqrt(A L/W), each rounded to 12 significant digits.
+ */
+function withArea(g: DeviceGeometry, areaM2: number): DeviceGeometry {
+  const ratio = g.w / g.l;
+  return { ...g, w: Number(Math.sqrt(areaM2 * ratio).toPrecision(12)), l: Number(Math.sqrt(areaM2 / ratio).toPrecision(12)) };
+}
+
+/** The value of the field at `path` in `design` (SI units), or undefined when the design has none. */
+export function fieldValue(design: Design, path: string): number | undefined {
+  const [head, a, b] = path.split('.');
+  if (head === 'process') return design.process[a as Polarity]?.[b as keyof ProcessParams];
+  if (head === 'input' || head === 'load') {
+    const g = head === 'input' ? design.input : design.load;
+    if (g === undefined) return undefined;
+    return a === 'area' ? g.w * g.l : (g[a as 'w' | 'l'] as number);
+  }
+  if (head === 'spec') return design.spec[a as 'offset' | 'instances'];
+  return head === 'temperature' ? design.temperature : head === 'tail' ? design.tail : undefined;
+}
+
 /** The design with the field at `path` set to `valueSi` (SI units); the rest is unchanged. */
 export function withField(design: Design, path: string, valueSi: number): Design {
   const [head, a, b] = path.split('.');
@@ -76,10 +100,10 @@ export function withField(design: Design, path: string, valueSi: number): Design
     case 'tail':
       return { ...design, tail: valueSi };
     case 'input':
-      return { ...design, input: { ...design.input, [a!]: valueSi } };
+      return { ...design, input: a === 'area' ? withArea(design.input, valueSi) : { ...design.input, [a!]: valueSi } };
     case 'load':
       if (design.load === undefined) throw new Error('internal: load field of a simple stage');
-      return { ...design, load: { ...design.load, [a!]: valueSi } };
+      return { ...design, load: a === 'area' ? withArea(design.load, valueSi) : { ...design.load, [a!]: valueSi } };
     case 'spec':
       return { ...design, spec: { ...design.spec, [a!]: valueSi } };
     case 'process': {
@@ -115,6 +139,8 @@ export function plotAxis(f: SweepField, values: readonly number[]): { unit: stri
   switch (f.dimension) {
     case 'length':
       return { unit: 'um', scale: 1e6 };
+    case 'area':
+      return { unit: 'um^2', scale: 1e12 };
     case 'current':
       return big < 1e-6 ? { unit: 'nA', scale: 1e9 } : big < 1e-3 ? { unit: 'uA', scale: 1e6 } : { unit: 'mA', scale: 1e3 };
     case 'voltage':

@@ -14,6 +14,8 @@ export type Dimension =
   | 'voltage'
   | 'current'
   | 'length'
+  /** m^2, e.g. a gate area W L */
+  | 'area'
   | 'temperature'
   /** A/V^2 */
   | 'kp'
@@ -86,6 +88,7 @@ const EXPECTED: Readonly<Record<Dimension, { dims: DimVector; what: string }>> =
   voltage: { dims: [1, 0, 0, 0, 0], what: 'a voltage such as "0.45 V"' },
   current: { dims: [0, 1, 0, 0, 0], what: 'a current such as "10 uA"' },
   length: { dims: [0, 0, 1, 0, 0], what: 'a length such as "2 um"' },
+  area: { dims: [0, 0, 2, 0, 0], what: 'an area such as "4 um^2"' },
   temperature: { dims: [0, 0, 0, 1, 0], what: 'a temperature such as "300 K" or "27 C"' },
   kp: { dims: [-2, 1, 0, 0, 0], what: 'a transconductance parameter such as "300 uA/V^2"' },
   avt: { dims: [1, 0, 1, 0, 0], what: 'a threshold matching coefficient such as "5 mV*um"' },
