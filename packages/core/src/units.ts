@@ -14,7 +14,7 @@ export type Dimension =
   | 'voltage'
   | 'current'
   | 'length'
-  /** m^2, e.g. a gate area W L */
+  /** m^2 (a gate or resistor-body area) */
   | 'area'
   | 'temperature'
   /** A/V^2 */
@@ -25,6 +25,8 @@ export type Dimension =
   | 'abeta'
   /** F/m^2 */
   | 'cox'
+  /** ohm */
+  | 'resistance'
   | 'dimensionless';
 
 /** Exponents of V, A, m, K, s, in that order. */
@@ -51,6 +53,7 @@ const UNITS: ReadonlyMap<string, UnitDef> = new Map<string, UnitDef>([
   ['F', { pow10: 0, dims: [-1, 1, 0, 0, 1], prefixable: true }],
   ['S', { pow10: 0, dims: [-1, 1, 0, 0, 0], prefixable: true }],
   ['Ω', { pow10: 0, dims: [1, -1, 0, 0, 0], prefixable: true }],
+  ['ohm', { pow10: 0, dims: [1, -1, 0, 0, 0], prefixable: true }],
   ['%', { pow10: -2, dims: NONE, prefixable: false }],
 ]);
 
@@ -94,6 +97,7 @@ const EXPECTED: Readonly<Record<Dimension, { dims: DimVector; what: string }>> =
   avt: { dims: [1, 0, 1, 0, 0], what: 'a threshold matching coefficient such as "5 mV*um"' },
   abeta: { dims: [0, 0, 1, 0, 0], what: 'a current-factor matching coefficient such as "1 %*um"' },
   cox: { dims: [-1, 1, -2, 0, 1], what: 'a capacitance per area such as "8.6 fF/um^2"' },
+  resistance: { dims: [1, -1, 0, 0, 0], what: 'a resistance such as "20 kohm"' },
   dimensionless: { dims: NONE, what: 'a plain number such as "1.3"' },
 };
 

@@ -58,6 +58,7 @@ function example(f: SweepField): string {
   switch (f.dimension) {
     case 'length': return '2um';
     case 'area': return '4um^2';
+    case 'resistance': return '20kohm';
     case 'current': return '10uA';
     case 'temperature': return '"27 C"';
     case 'voltage': return '10mV';

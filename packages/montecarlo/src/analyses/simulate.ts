@@ -1,4 +1,4 @@
-import { compileStage, InputError, type Design } from '@twinfet/core';
+import { compileStage, InputError, specLimit, type Design, type FigureDefinition, type RandomVariable } from '@twinfet/core';
 import { linearisedSummary, type LinearisedSummary } from './linearisedSummary.js';
 import { clopperPearson } from '../stats/clopperPearson.js';
 import { binWidth, createHistogram, exactQuantile, mergeHistograms, quantileFromHistogram, type Histogram } from '../stats/histogram.js';
@@ -26,6 +26,17 @@ export const AGREEMENT_Z = 4;
 export const FEW_FAILURES = 10;
 /** From this many evaluated samples the sigma interval is Bonett's; below, the chi-square one (too few for a kurtosis). */
 export const BONETT_FROM = 10;
+
+/**
+ * Limits of the run options, checked here and quoted by the command line (one place for each
+ * rule; this project's limits, no source): sample counts, worker threads, and how many samples
+ * may keep every draw (memory: dimension x 8 bytes each).
+ */
+export const RUN_LIMITS = {
+  samples: [2, 1e12],
+  workers: [1, 256],
+  keptDraws: 2e7,
+} as const;
 
 /** Interval method for the yield. */
 export type IntervalMethod = 'clopper-pearson' | 'wilson';
@@ -120,6 +131,11 @@ export interface RunReport {
   readonly seconds: number;
   readonly samplesPerSecond: number;
   readonly warnings: readonly string[];
+  /**
+   * What the statistics above describe: the stage's figure (`offset` in volts for the
+   * differential stages). The `offset` block holds that figure's statistics whatever its name.
+   */
+  readonly figure: { readonly name: string; readonly label: string; readonly symbol: string; readonly unit: string; readonly sided: 'two' | 'one' };
 }
 
 /** A run's report together with the kept samples. */
@@ -130,15 +146,20 @@ export interface RunOutcome {
   /** Every sample's standard-normal draws, `dimension` per sample, when kept. */
   readonly draws?: Float64Array;
   readonly dimension: number;
-  readonly variables: readonly { device: string; role: string; parameter: string; sigma: number; rho: number }[];
+  /** The stage's random variables, in sample order. */
+  readonly variables: readonly RandomVariable[];
+  /** What each sample's figure is (name, unit, sidedness). */
+  readonly figure: FigureDefinition;
 }
 
 function checkOptions(o: SimulateOptions): void {
-  if (o.samples !== undefined && !(Number.isInteger(o.samples) && o.samples >= 2 && o.samples <= 1e12)) {
-    throw new InputError('samples', `expected a whole number from 2 to 1e12, got ${String(o.samples)}`);
+  const [sLo, sHi] = RUN_LIMITS.samples;
+  if (o.samples !== undefined && !(Number.isInteger(o.samples) && o.samples >= sLo && o.samples <= sHi)) {
+    throw new InputError('samples', `expected a whole number from ${sLo} to 1e12, got ${String(o.samples)}`);
   }
-  if (o.workers !== undefined && !(Number.isInteger(o.workers) && o.workers >= 1 && o.workers <= 256)) {
-    throw new InputError('workers', `expected a whole number from 1 to 256, got ${String(o.workers)}`);
+  const [wLo, wHi] = RUN_LIMITS.workers;
+  if (o.workers !== undefined && !(Number.isInteger(o.workers) && o.workers >= wLo && o.workers <= wHi)) {
+    throw new InputError('workers', `expected a whole number from ${wLo} to ${wHi}, got ${String(o.workers)}`);
   }
   if (o.confidence !== undefined && !(o.confidence > 0 && o.confidence < 1)) {
     throw new InputError('confidence', `expected a level strictly between 0 and 1 such as 0.95, got ${String(o.confidence)}`);
@@ -149,7 +170,7 @@ function checkOptions(o: SimulateOptions): void {
   if (o.interval !== undefined && o.interval !== 'clopper-pearson' && o.interval !== 'wilson') {
     throw new InputError('interval', `expected "clopper-pearson" or "wilson", got ${JSON.stringify(o.interval)}`);
   }
-  if (o.keepDraws === true && o.samples !== undefined && o.samples > 2e7) {
+  if (o.keepDraws === true && o.samples !== undefined && o.samples > RUN_LIMITS.keptDraws) {
     throw new InputError('keepDraws', `keeping every draw of ${o.samples} samples needs too much memory; use at most 2e7 samples`);
   }
 }
@@ -197,7 +218,8 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
   const seed = seedText(options.seed);
   const confidence = options.confidence ?? 0.95;
   const method = options.interval ?? 'clopper-pearson';
-  const spec = options.spec ?? design.spec.offset;
+  const spec = options.spec ?? specLimit(stage.design);
+  const fig = stage.definition.figure;
   const keepOffsets = options.keepOffsets ?? (samples <= KEEP_LIMIT || options.keepDraws === true);
   const keepDraws = options.keepDraws ?? false;
   const analytic = linearisedSummary(stage, spec);
@@ -280,7 +302,7 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
   const y = 1 - failures / n;
   const yLo = 1 - failInterval[1];
   const yHi = 1 - failInterval[0];
-  const m = design.spec.instances;
+  const m = stage.design.spec.instances;
   const chip = (v: number): number => Math.exp(m * Math.log(v));
 
   let quantileMethod: 'exact' | 'histogram' = 'histogram';
@@ -366,6 +388,7 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
     seconds,
     samplesPerSecond: n / seconds,
     warnings,
+    figure: { name: fig.name, label: fig.label, symbol: fig.symbol, unit: fig.unit, sided: fig.sided },
   };
   return {
     report,
@@ -373,5 +396,6 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
     ...(draws === undefined ? {} : { draws: partial ? draws.subarray(0, done * stage.dimension) : draws }),
     dimension: stage.dimension,
     variables: stage.variables,
+    figure: stage.definition.figure,
   };
 }
