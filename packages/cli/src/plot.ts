@@ -1,6 +1,7 @@
 import * as vega from 'vega';
 import { compile } from 'vega-lite';
 import type { TopLevelSpec } from 'vega-lite';
+import type { HistogramInput, SweepInput, SweepPoint } from './plotInput.js';
 
 /** Most bars a histogram draws; finer input is merged into groups of adjacent bins. */
 export const MAX_DISPLAY_BINS = 200;
@@ -18,71 +19,7 @@ const GREEN = '#2a9d5c';
 const ORANGE = '#e08a1e';
 const GREY = '#555555';
 
-/** Histogram of sampled input-referred offsets, all values in volts. */
-export interface HistogramInput {
-  /** Plot title. */
-  title: string;
-  /** Bin edges in volts, increasing, length `counts.length + 1`. */
-  binEdges: readonly number[];
-  /** Samples in each bin. */
-  counts: readonly number[];
-  /** Total Monte Carlo samples (including any that fell outside the bins). */
-  samples: number;
-  /** Sample mean of the offset, volts. */
-  mean: number;
-  /** Sample standard deviation of the offset, volts (> 0). */
-  sigma: number;
-  /** Offset specification in volts (> 0): rules are drawn at -spec and +spec. */
-  spec: number;
-  /** Extra line under the title (the sample statistics line is always shown). */
-  subtitle?: string;
-}
-
-/** One point of a parameter sweep; sigmas in volts, yields and probabilities as fractions. */
-export interface SweepPoint {
-  /** Swept value in the field's base unit (for example metres). */
-  x: number;
-  /** Offset sigma from the linearised mismatch model, volts. */
-  analyticSigma: number;
-  /** Monte Carlo offset sigma, volts. */
-  mcSigma?: number;
-  /** Lower end of the Monte Carlo sigma's confidence interval, volts. */
-  mcSigmaLo?: number;
-  /** Upper end of the Monte Carlo sigma's confidence interval, volts. */
-  mcSigmaHi?: number;
-  /** Monte Carlo yield, the fraction of samples within spec. */
-  yield?: number;
-  /** Lower end of the yield's confidence interval. */
-  yieldLo?: number;
-  /** Upper end of the yield's confidence interval. */
-  yieldHi?: number;
-  /** Failure probability estimated by importance sampling of the tails. */
-  tailFailure?: number;
-  /** Lower end of the tail estimate's confidence interval. */
-  tailLo?: number;
-  /** Upper end of the tail estimate's confidence interval. */
-  tailHi?: number;
-}
-
-/** A sweep of one design field: offset sigma and failure probability against its value. */
-export interface SweepInput {
-  /** Plot title. */
-  title: string;
-  /** Design-file path of the swept field, for example "input.w". */
-  field: string;
-  /** Display unit of the swept field ("um", "uA", "K"; "" for none). */
-  fieldUnit: string;
-  /** Factor from the field's base unit to the display unit, for example 1e6 for m to um. */
-  xScale: number;
-  /** Draw the swept field on a log axis. */
-  log: boolean;
-  /** The swept points. */
-  points: readonly SweepPoint[];
-  /** Offset sigma target in volts: drawn as a horizontal rule. */
-  sigmaTarget?: number;
-  /** Yield target as a fraction: 1 - yieldTarget is drawn as the failure target. */
-  yieldTarget?: number;
-}
+export type { HistogramInput, SweepInput, SweepPoint } from './plotInput.js';
 
 /** A histogram's bins after merging, edges in volts. */
 export interface Bins {
