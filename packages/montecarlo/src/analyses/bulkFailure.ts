@@ -8,7 +8,7 @@
 import type { Design } from '@twinfet/core';
 import type { MonteCarloResult, MonteCarloTask } from '../engine/messages.js';
 import { createExecutor, type Executor } from '../engine/pool.js';
-import { CHUNK_SIZE, runChunks } from '../engine/schedule.js';
+import { CHUNK_SIZE, runChunks, taskList } from '../engine/schedule.js';
 import { clopperPearson } from '../stats/clopperPearson.js';
 
 /** A spec whose nearer failure point is closer than this many sigmas lies in the bulk (this project's rule). */
@@ -98,7 +98,7 @@ export async function bulkFailure(design: Design, o: BulkOptions): Promise<BulkC
       planned += count;
     }
     const before = drawn;
-    await runChunks(executor, tasks, (r) => consume(r as MonteCarloResult), {
+    await runChunks(executor, taskList(tasks), consume, {
       signal: o.signal,
       onProgress: o.onProgress === undefined ? undefined : (d) => o.onProgress!(before + d, total),
     });

@@ -3,7 +3,7 @@ import { findDesignPoint, type DesignPoint } from './designPoint.js';
 import type { ImportanceResult, ImportanceTask } from '../engine/messages.js';
 import { normalQuantile, sigmaLevel, sigmaLevelOfTails } from '../stats/normal.js';
 import { createExecutor, defaultWorkers, inThreadExecutor, type Executor } from '../engine/pool.js';
-import { runChunks } from '../engine/schedule.js';
+import { runChunks, taskList } from '../engine/schedule.js';
 import { seedText } from '../random/seed.js';
 import { chipFailure, chipYieldFromFailure } from '../stats/yield.js';
 import { BULK_DISTANCE, BULK_FAILURE, bulkFailure } from './bulkFailure.js';
@@ -264,7 +264,7 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
         tasks.push({ kind: 'importance', design, seed, chunk: chunk++, count, spec, shifts: points.map((p) => p.u), logScale });
         planned += count;
       }
-      await runChunks(executor, tasks, (r) => consume(r as ImportanceResult), {
+      await runChunks(executor, taskList(tasks), consume, {
         signal: options.signal,
         onProgress: options.onProgress === undefined ? undefined : (d) => options.onProgress!(n + d, maxSamples),
       });
