@@ -9,8 +9,8 @@ export { fillStandardNormals, standardNormal } from './random/ziggurat.js';
 // stats/: estimators and intervals
 export { clopperPearson, oneSidedUpper } from './stats/clopperPearson.js';
 export { wilson } from './stats/wilson.js';
-export { sigmaInterval } from './stats/sigmaInterval.js';
-export { addSamples, emptyMoments, mergeMoments, stdDev, variance, type Moments } from './stats/moments.js';
+export { sigmaIntervalBonett, sigmaIntervalChiSquare } from './stats/sigmaInterval.js';
+export { addSamples, emptyMoments, kurtosis, mergeMoments, stdDev, variance, type Moments } from './stats/moments.js';
 export { createHistogram, exactQuantile, quantileFromHistogram, type Histogram } from './stats/histogram.js';
 export {
   logNormalUpperTail,

@@ -31,7 +31,7 @@ export function inspectDesign(design: Design): InspectReport {
 /** The operating-point table (shared by the commands that print it). */
 export function renderOperatingPoint(ops: Stage['operatingPoint']): string {
   const hasCap = ops.some((o) => o.gateCapacitance !== undefined);
-  const header = ['device', 'role', 'W', 'L', 'I_D', 'IC', 'region', 'gm/I_D', 'V_GS-V_T0', 'W*L', 'sigma dV_T', 'sigma dB/B'];
+  const header = ['device', 'role', 'W', 'L', 'I_D', 'IC', 'region', 'gm/I_D', 'V_GS-V_T0', 'W*L', 'sigma dV_T', 'sigma dbeta/beta'];
   if (hasCap) header.push('C_gate');
   const rows = ops.map((o) => {
     const r = [
@@ -109,10 +109,19 @@ export function yieldDigits(y: number): number {
   return f <= 0 ? 15 : Math.min(15, Math.max(4, Math.ceil(-Math.log10(f)) + 2));
 }
 
-/** A yield printed with enough nines to see the tail (`digits` to align several). */
+/**
+ * A computed yield printed with enough nines to see the tail (`digits` to align several); a
+ * yield below 0.1 to 4 significant figures (scientific below 1e-3), since fixed decimals would print 8e-8 as 0.0000.
+ */
 export function yieldText(y: number, digits = yieldDigits(y)): string {
   if (1 - y <= 0) return '1 (failure below double precision)';
+  if (y < 0.1) return sci(y, 4);
   return y.toFixed(digits);
+}
+
+/** An estimated yield or an interval end: exactly 1 prints as 1 (no failures seen, or the end of an interval). */
+export function yieldBound(y: number, digits: number): string {
+  return y === 1 ? '1' : yieldText(y, digits);
 }
 
 /** A yield given by its failure probability: `1 - 5.16e-33` once the nines stop being readable. */

@@ -11,7 +11,7 @@ import { assertFinite, printJson, type Io } from '../output.js';
 import { withInterrupt } from '../interrupt.js';
 import { renderPairs } from '../table.js';
 import { textHistogram } from '../textHistogram.js';
-import { renderBudget, yieldDigits, yieldFromFailure, yieldText } from './inspect.js';
+import { renderBudget, yieldBound, yieldDigits, yieldFromFailure } from './inspect.js';
 import { renderTail } from './tail.js';
 import { writeOutputFile } from '../files.js';
 
@@ -90,10 +90,16 @@ function histogramRowLabel(f: FigureText): (v: number) => string {
 }
 
 const range = (iv: readonly [number, number], f: (v: number) => string): string => `[${f(iv[0])}, ${f(iv[1])}]`;
-/** A yield, its interval and the method, printed with one number of decimals. */
-const yieldWithInterval = (y: number, iv: readonly [number, number], c: string): string => {
-  const digits = yieldDigits(Math.min(y, iv[0]) === 1 ? y : Math.max(y, iv[1]));
-  return `${yieldText(y, digits)}   ${c} ${range(iv, (v) => yieldText(v, digits))}`;
+/**
+ * A yield estimated from `failures` in `samples`, and its interval, printed with one number of
+ * decimals: enough to show the failure part of the largest value below 1 (with no failures,
+ * of the lower end) to three figures.
+ */
+const yieldWithInterval = (y: number, iv: readonly [number, number], c: string, failures: number, samples: number): string => {
+  const below1 = [y, iv[1]].filter((v) => v < 1);
+  const digits = yieldDigits(below1.length > 0 ? Math.max(...below1) : iv[0]);
+  const estimate = failures === 0 ? `1 (no failures in ${samples} samples)` : yieldBound(y, digits);
+  return `${estimate}   ${c} ${range(iv, (v) => yieldBound(v, digits))}`;
 };
 
 /** Text form of the run report. */
@@ -114,7 +120,8 @@ export function renderRun(r: RunReport, design: Design): string {
     '',
     renderPairs([
       [`${f.label} mean`, `${mv(r.offset.mean)}   ${c} ${range(r.offset.meanInterval, mv)}`],
-      [`${f.label} sigma`, `${mv(r.offset.sigma)}   ${c} ${range(r.offset.sigmaInterval, mv)} (chi-square)`],
+      [`${f.label} sigma`, `${mv(r.offset.sigma)}   ${c} ${range(r.offset.sigmaInterval, mv)} (${r.offset.sigmaIntervalMethod === 'bonett' ? `Bonett, valid for a non-Gaussian ${f.label}` : 'chi-square'})`],
+      [`${f.label} kurtosis`, `${r.offset.kurtosis.toFixed(3)}   (3 for a Gaussian ${f.label}; above 3, heavier tails)`],
       ['linearised sigma', `${mv(r.analytic.sigma)}   Monte Carlo differs by ${pct(agree.relativeDifference, 2)} (${agree.standardErrors.toFixed(1)} standard errors)${agree.consistent ? '' : `  <- more than sampling error allows: the ${f.label} is not linear in the mismatch here`}`],
       ['min / max', `${mv(r.offset.min)} / ${mv(r.offset.max)}`],
     ]),
@@ -130,10 +137,13 @@ export function renderRun(r: RunReport, design: Design): string {
     '',
     renderPairs([
       [`spec ${f.magnitude} <=`, mv(r.yield.spec)],
-      ['failures', `${r.yield.failures} of ${r.evaluated} ${r.figure.sided === 'two' ? ` (${r.yield.failuresHigh} above +spec, ${r.yield.failuresLow} below -spec)` : ' (above the spec)'}`],
-      ['instance yield', `${yieldWithInterval(r.yield.estimate, r.yield.interval, c)} (${r.yield.method})`],
+      [
+        'failures',
+        `${r.yield.failures} of ${r.evaluated}${r.figure.sided === 'two' ? ` (${r.yield.failuresHigh} above +spec, ${r.yield.failuresLow} below -spec)` : ' (above the spec)'}${r.yield.failures === 0 ? `; failure probability at most ${sci(r.yield.failure.interval[1], 4)} (upper end of the ${c} interval)` : ''}`,
+      ],
+      ['instance yield', `${yieldWithInterval(r.yield.estimate, r.yield.interval, c, r.yield.failures, r.evaluated)} (${r.yield.method})`],
       ['Gaussian estimate', `${yieldFromFailure(r.analytic.gaussian.failure)}   from the linearised sigma`],
-      [`chip yield (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, yieldWithInterval(r.chip.estimate, r.chip.interval, c)],
+      [`chip yield (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, yieldWithInterval(r.chip.estimate, r.chip.interval, c, r.yield.failures, r.evaluated)],
     ]),
   ];
   if (r.yield.limitedBySamples) {
@@ -192,7 +202,11 @@ export function registerRun(program: Command, io: Io, setExit: (code: number) =>
     if (flags.samplesOut !== undefined) await writeSamplesCsv(flags.samplesOut, outcome);
     if (flags.plot !== undefined) await writeOutputFile(flags.plot, '--plot', await runPlot(report, `${design.name}: ${report.figure.label} distribution`));
     if (flags.json === true) printJson(io, figureJson(report));
-    else io.out(renderRun(report, design));
+    else {
+      io.out(renderRun(report, design));
+      if (flags.samplesOut !== undefined) io.out(`wrote ${flags.samplesOut}`);
+      if (flags.plot !== undefined) io.out(`wrote ${flags.plot}`);
+    }
     setExit(report.partial ? 130 : 0);
   });
 }

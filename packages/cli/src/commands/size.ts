@@ -11,7 +11,7 @@ import { parseCount, parseFraction } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
 import { withInterrupt } from '../interrupt.js';
 import { renderPairs, renderTable } from '../table.js';
-import { yieldText } from './inspect.js';
+import { yieldBound, yieldDigits, yieldText } from './inspect.js';
 
 interface SizeFlags extends CommonFlags {
   sigma?: string;
@@ -111,7 +111,7 @@ function figure(c: Confirmation, r: SizeReport, mv: (x: number) => string): stri
 }
 
 /** A yield or interval end: exactly 1 prints as 1 (an interval end or an estimate from no failures). */
-const bound = (y: number): string => (y === 1 ? '1' : y < 1e-3 ? sci(y, 4) : yieldText(y));
+const bound = (y: number): string => yieldBound(y, yieldDigits(y));
 
 /** Text form of a sizing report. */
 export function renderSize(r: SizeReport, source: string, design: Design): string {

@@ -15,7 +15,23 @@ interface TailFlags extends CommonFlags {
   samples?: string;
 }
 
-const sig = (x: number | null): string => (x === null ? 'unbounded' : x.toFixed(3));
+/** A sigma level: 3 decimals, or 3 significant figures below 0.1 (a spec inside the bulk). */
+const sig = (x: number | null): string => (x === null ? 'unbounded' : x > 0 && x < 0.1 ? x.toPrecision(3) : x.toFixed(3));
+
+/** A probability, or near 1 as 1 - q (4 significant figures would round 0.99998 to 1). */
+const prob = (p: number, complement = p > 0.999): string => (p === 1 ? '1' : complement ? `1 - ${sci(1 - p, 4)}` : sci(p, 4));
+
+/** An estimate and its interval in one form: all as 1 - q when any of them is above 0.999. */
+function probWithInterval(p: number, iv: readonly [number, number], c: string): string {
+  const complement = [p, iv[0], iv[1]].some((v) => v > 0.999);
+  return `${prob(p, complement)}   ${c} [${prob(iv[0], complement)}, ${prob(iv[1], complement)}]`;
+}
+
+/** A chip yield (1 - p)^M; below the doubles' range as a power of ten from M log10(1 - p). */
+function chipYieldText(chipYield: number, failure: number, instances: number): string {
+  if (chipYield >= 1e-300) return sci(chipYield, 4);
+  return failure >= 1 ? '0 (every instance fails)' : `10^${((instances * Math.log1p(-failure)) / Math.LN10).toFixed(0)}`;
+}
 
 /** Text form of a high-sigma estimate of the design's figure (also used inside `run --method importance`). */
 export function renderTail(r: HighSigmaReport, design: Pick<Design, 'topology'>): string {
@@ -43,16 +59,30 @@ export function renderTail(r: HighSigmaReport, design: Pick<Design, 'topology'>)
       renderTable(['side', 'distance', 'FORM p', 'found by', 'dominant mismatch'], pts, ['left', 'right', 'right', 'left', 'left']),
     ].join('\n');
   }
+  const plain = r.method === 'monte-carlo';
+  const instances = `${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'}`;
+  // When nearly every chip fails, 1 - 1e-80 would print as 1: show the chip yield instead.
+  const chip: [string, string] =
+    r.chip.failure > 0.5
+      ? [
+          `chip yield (${instances})`,
+          `${chipYieldText(r.chip.yield, r.failureProbability, r.chip.instances)}   ${c} [${chipYieldText(r.chip.yieldInterval[0], r.interval[1], r.chip.instances)}, ${chipYieldText(r.chip.yieldInterval[1], r.interval[0], r.chip.instances)}]`,
+        ]
+      : [`chip failure (${instances})`, `${sci(r.chip.failure, 4)}   ${c} [${sci(r.chip.interval[0], 4)}, ${sci(r.chip.interval[1], 4)}]`];
+  const halfWidth = r.relativeHalfWidth === null ? 'n/a' : `${Number((r.relativeHalfWidth * 100).toPrecision(3))}%`;
   return [
     renderPairs([
+      ...(plain ? [['method', `plain Monte Carlo with a Clopper-Pearson interval: ${r.methodReason ?? ''}. For the whole distribution use \`twinfet run\``] as [string, string]] : []),
       [`spec ${f.magnitude} <=`, f.format(r.spec)],
-      ['failure probability', `${sci(r.failureProbability, 4)}   ${c} [${sci(r.interval[0], 4)}, ${sci(r.interval[1], 4)}]`],
+      ['failure probability', `${probWithInterval(r.failureProbability, r.interval, c)}${plain ? ' (Clopper-Pearson)' : ''}`],
       ['equivalent sigma level', `${sig(r.sigmaLevel)}   ${c} [${sig(r.sigmaLevelInterval[0])}, ${sig(r.sigmaLevelInterval[1])}] (two-sided)`],
       ['by side', `+spec ${sci(r.high, 4)}, -spec ${sci(r.low, 4)}`],
-      ['FORM estimate', `${sci(r.form.failureProbability, 4)} (${r.form.sigmaLevel.toFixed(3)} sigma)`],
-      [`chip failure (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, `${sci(r.chip.failure, 4)}   ${c} [${sci(r.chip.interval[0], 4)}, ${sci(r.chip.interval[1], 4)}]`],
-      ['samples', `${r.samples} (${r.hits} failing; stop rule ${r.stopRule}; relative half-width ${r.relativeHalfWidth === null ? 'n/a' : (r.relativeHalfWidth * 100).toFixed(2) + '%'})`],
-      ['figure of merit', `relative variance per sample ${r.relativeVariancePerSample === null ? 'n/a' : r.relativeVariancePerSample.toFixed(2)}; plain Monte Carlo would need ${r.equivalentPlainSamples === null ? 'n/a' : sci(r.equivalentPlainSamples, 3)} samples for the same interval`],
+      ['FORM estimate', `${prob(r.form.failureProbability)} (${sig(r.form.sigmaLevel)} sigma)`],
+      chip,
+      ['samples', `${r.samples} (${r.hits} failing; stop rule ${r.stopRule}; relative half-width ${halfWidth})`],
+      ...(plain
+        ? []
+        : [['figure of merit', `relative variance per sample ${r.relativeVariancePerSample === null ? 'n/a' : r.relativeVariancePerSample.toFixed(2)}; plain Monte Carlo would need ${r.equivalentPlainSamples === null ? 'n/a' : sci(r.equivalentPlainSamples, 3)} samples for the same interval`] as [string, string]]),
       ['time', `${r.seconds.toFixed(3)} s, seed ${r.seed}`],
     ]),
     '',
@@ -120,7 +150,7 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
     assertFinite(report);
     if (flags.json === true) printJson(io, { design: designSummary(design), figure: figureSummary(design), ...figureNamed(report, design) });
     else {
-      io.out(`${headerLine(design, { withTemperature: false })}\nimportance sampling on the exact model\n\n${renderTail(report, design)}`);
+      io.out(`${headerLine(design)}\n${report.method === 'monte-carlo' ? 'plain Monte Carlo' : 'importance sampling'} on the exact model\n\n${renderTail(report, design)}`);
     }
     setExit(0);
   });

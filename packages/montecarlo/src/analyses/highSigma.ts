@@ -5,7 +5,8 @@ import { normalQuantile, sigmaLevel, sigmaLevelOfTails } from '../stats/normal.j
 import { createExecutor, defaultWorkers, inThreadExecutor, type Executor } from '../engine/pool.js';
 import { runChunks, taskList } from '../engine/schedule.js';
 import { seedText } from '../random/seed.js';
-import { chipFailure } from '../stats/yield.js';
+import { chipFailure, chipYieldFromFailure } from '../stats/yield.js';
+import { BULK_DISTANCE, BULK_FAILURE, bulkFailure } from './bulkFailure.js';
 
 /** Importance-sampling chunk size: small, so the stop rule can act after a few thousand samples. */
 export const IMPORTANCE_CHUNK = 4096;
@@ -53,6 +54,15 @@ export interface ReportedDesignPoint {
 /** The high-sigma failure estimate. */
 export interface HighSigmaReport {
   readonly spec: number;
+  /**
+   * How the failure probability was estimated: importance sampling, or plain Monte Carlo with a
+   * Clopper-Pearson interval when the spec lies inside the bulk of the distribution (a failure
+   * point closer than 1.5 sigma, or a failure probability above 0.1), where importance sampling
+   * gains nothing and its normal interval degenerates near p = 1.
+   */
+  readonly method: 'importance-sampling' | 'monte-carlo';
+  /** Why plain Monte Carlo was used (null for importance sampling). */
+  readonly methodReason: string | null;
   readonly failureProbability: number;
   readonly standardError: number;
   readonly interval: readonly [number, number];
@@ -77,13 +87,23 @@ export interface HighSigmaReport {
    * `sigmaLevel` and `form.sigmaLevel` come from the design points' distances.
    */
   readonly belowDoubleRange: boolean;
-  /** Relative variance per sample, var(w 1{fail}) / p^2: the figure of merit. */
+  /** Relative variance per sample, var(w 1{fail}) / p^2: the figure of merit ((1 - p) / p for plain Monte Carlo). */
   readonly relativeVariancePerSample: number | null;
-  /** Plain Monte Carlo samples for the same relative half-width h: z^2 (1 - p) / (p h^2). */
+  /** Plain Monte Carlo samples for the same relative half-width h: z^2 (1 - p) / (p h^2) (null when this is plain Monte Carlo). */
   readonly equivalentPlainSamples: number | null;
   readonly designPoints: readonly ReportedDesignPoint[];
   readonly form: { readonly failureProbability: number; readonly sigmaLevel: number };
-  readonly chip: { readonly instances: number; readonly failure: number; readonly interval: readonly [number, number] };
+  /**
+   * Chip failure 1 - (1 - p)^M over M instances and its interval; the chip yield (1 - p)^M and
+   * its interval, computed directly so that a chip yield of 1e-80 is not lost as 1 - failure.
+   */
+  readonly chip: {
+    readonly instances: number;
+    readonly failure: number;
+    readonly interval: readonly [number, number];
+    readonly yield: number;
+    readonly yieldInterval: readonly [number, number];
+  };
   readonly seconds: number;
 }
 
@@ -177,9 +197,60 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
     return { ps, ses: Math.sqrt(variance / n), variance };
   };
   const formTails = points.reduce((acc, p) => acc + p.form, 0);
-  const belowDoubleRange = formTails < 1e-300 && Math.exp(-logScale) === 0;
+  const nearest = Math.min(...points.map((p) => p.distance));
+  const inBulk = nearest < BULK_DISTANCE || formTails > BULK_FAILURE;
+  const belowDoubleRange = !inBulk && formTails < 1e-300 && Math.exp(-logScale) === 0;
   if (belowDoubleRange) stopRule = 'below-double-range';
+  const instances = stage.design.spec.instances;
+  const plain = async (reason: string): Promise<HighSigmaReport> => {
+    const b = await bulkFailure(design, {
+      spec,
+      seed,
+      confidence,
+      relError,
+      samples: fixed,
+      maxSamples,
+      executor,
+      mayOpenPool: ownExecutor,
+      workers: wantedWorkers,
+      signal: options.signal,
+      onProgress: options.onProgress,
+    });
+    executor = b.executor;
+    const p = b.failures / b.samples;
+    const [lo, hi] = b.interval;
+    return {
+      spec,
+      method: 'monte-carlo',
+      methodReason: reason,
+      failureProbability: p,
+      standardError: Math.sqrt((p * (1 - p)) / b.samples),
+      interval: [lo, hi],
+      confidence,
+      sigmaLevel: p > 0 ? sigmaLevel(p) : null,
+      sigmaLevelInterval: [hi > 0 ? sigmaLevel(hi) : null, lo > 0 ? sigmaLevel(lo) : null],
+      relativeHalfWidth: p > 0 ? (hi - lo) / 2 / p : null,
+      high: b.failuresHigh / b.samples,
+      low: b.failuresLow / b.samples,
+      samples: b.samples,
+      hits: b.failures,
+      nonConverged: b.nonConverged,
+      seed,
+      stopRule: b.stopRule,
+      belowDoubleRange: false,
+      relativeVariancePerSample: p > 0 ? (1 - p) / p : null,
+      equivalentPlainSamples: null,
+      designPoints: points.map((pt) => describePoint(stage, pt)),
+      form: { failureProbability: formTails, sigmaLevel: sigmaLevelOfTails(points.map((pt) => pt.distance)) },
+      chip: chipFigures(p, lo, hi, instances),
+      seconds: (performance.now() - started) / 1000,
+    };
+  };
   try {
+    if (inBulk) {
+      const why = nearest < BULK_DISTANCE ? `a failure point is ${nearest.toPrecision(3)} sigma from the origin` : `the FORM failure probability is ${formTails.toPrecision(3)}`;
+      return await plain(`the spec lies inside the bulk of the offset distribution (${why}; below ${BULK_DISTANCE} sigma or above ${BULK_FAILURE} importance sampling gains nothing)`);
+    }
     let round = 1;
     while (!belowDoubleRange) {
       const remaining = maxSamples - n;
@@ -207,6 +278,10 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
       if (n >= maxSamples && fixed === undefined) stopRule = 'max-samples';
       round = Math.min(round * 2, 64);
     }
+    if (n > 0 && (sum / n) * unscale > BULK_FAILURE) {
+      // The failure points looked far enough, but the estimate says the spec is in the bulk.
+      return await plain(`the importance-sampling estimate ${((sum / n) * unscale).toPrecision(3)} is above ${BULK_FAILURE}: the spec lies inside the bulk of the offset distribution`);
+    }
   } finally {
     if (ownExecutor) await executor.close();
   }
@@ -218,12 +293,13 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
   const lo = Math.max(0, p - z * se);
   const hi = Math.min(1, p + z * se);
   const formP = formTails;
-  const instances = stage.design.spec.instances;
   const has = ps > 0;
   const relHalf = has ? (z * ses) / ps : null;
   const formLevel = sigmaLevelOfTails(points.map((p) => p.distance));
   return {
     spec,
+    method: 'importance-sampling',
+    methodReason: null,
     failureProbability: p,
     standardError: se,
     interval: [lo, hi],
@@ -244,11 +320,17 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
     designPoints: points.map((pt) => describePoint(stage, pt)),
     // From the distances, not from formP: beyond ~38 sigma formP underflows to 0 and its level would be Infinity.
     form: { failureProbability: formP, sigmaLevel: formLevel },
-    chip: {
-      instances,
-      failure: chipFailure(p, instances),
-      interval: [chipFailure(lo, instances), chipFailure(hi, instances)],
-    },
+    chip: chipFigures(p, lo, hi, instances),
     seconds: (performance.now() - started) / 1000,
+  };
+}
+
+function chipFigures(p: number, lo: number, hi: number, instances: number): HighSigmaReport['chip'] {
+  return {
+    instances,
+    failure: chipFailure(p, instances),
+    interval: [chipFailure(lo, instances), chipFailure(hi, instances)],
+    yield: chipYieldFromFailure(p, instances),
+    yieldInterval: [chipYieldFromFailure(hi, instances), chipYieldFromFailure(lo, instances)],
   };
 }

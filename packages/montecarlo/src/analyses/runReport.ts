@@ -1,14 +1,14 @@
 /**
- * The report of a Monte Carlo run, assembled from the merged chunk results: the figure's moments
- * and sigma interval, exact or histogram quantiles, the yield with its interval, the chip yield,
+ * The report of a Monte Carlo run, assembled from the merged chunk results: the figure's moments,
+ * kurtosis and sigma interval (Bonett's, which holds for non-Gaussian figures), exact or histogram quantiles, the yield with its interval, the chip yield,
  * and the linearised picture beside it.
  */
 import type { Stage } from '@twinfet/core';
 import { clopperPearson } from '../stats/clopperPearson.js';
 import { binWidth, createHistogram, exactQuantile, quantileFromHistogram, type Histogram } from '../stats/histogram.js';
-import type { Moments } from '../stats/moments.js';
+import { kurtosis, type Moments } from '../stats/moments.js';
 import { normalQuantile } from '../stats/normal.js';
-import { sigmaInterval } from '../stats/sigmaInterval.js';
+import { sigmaIntervalBonett, sigmaIntervalChiSquare } from '../stats/sigmaInterval.js';
 import { wilson } from '../stats/wilson.js';
 import { CHUNK_SIZE } from '../engine/schedule.js';
 import type { HighSigmaReport } from './highSigma.js';
@@ -20,6 +20,8 @@ export const QUANTILE_LEVELS = [0.001, 0.01, 0.5, 0.99, 0.999] as const;
 export const AGREEMENT_Z = 4;
 /** Fewer failures than this make the yield estimate sample-limited. */
 export const FEW_FAILURES = 10;
+/** From this many evaluated samples the sigma interval is Bonett's; below, the chi-square one (too few for a kurtosis). */
+export const BONETT_FROM = 10;
 
 /** Interval method for the yield. */
 export type IntervalMethod = 'clopper-pearson' | 'wilson';
@@ -45,7 +47,16 @@ export interface RunReport {
     readonly mean: number;
     readonly meanInterval: readonly [number, number];
     readonly sigma: number;
+    /**
+     * Interval on sigma by `sigmaIntervalMethod`: Bonett's (2006), which holds for
+     * non-Gaussian offsets, from 10 evaluated samples on; chi-square below.
+     */
     readonly sigmaInterval: readonly [number, number];
+    readonly sigmaIntervalMethod: 'bonett' | 'chi-square';
+    /** The chi-square interval (exact for Gaussian offsets only), for comparison. */
+    readonly sigmaIntervalChiSquare: readonly [number, number];
+    /** Sample kurtosis n M4 / M2^2 of the offset (3 for a Gaussian; larger means heavier tails). */
+    readonly kurtosis: number;
     readonly min: number;
     readonly max: number;
     readonly quantileMethod: 'exact' | 'histogram';
@@ -158,7 +169,12 @@ export function assembleRunReport(stage: Stage, t: RunTally): RunReport {
     absolute = histogramQuantiles(folded(histogram));
   }
 
-  const se = sigma / Math.sqrt(2 * (n - 1));
+  const k = kurtosis(moments);
+  const chiSquare = sigmaIntervalChiSquare(sigma, n, confidence);
+  const bonett = n >= BONETT_FROM;
+  // Standard error of s by the delta method on Var(ln s^2) = (kurtosis - (n-3)/n) / (n-1)
+  // (Bonett 2006): sigma / sqrt(2 (n-1)) for a Gaussian, wider for heavy tails.
+  const se = 0.5 * sigma * Math.sqrt(Math.max(0, k - (n - 3) / n) / (n - 1));
   const standardErrors = (sigma - analytic.sigma) / se;
   const warnings = [...stage.warnings];
   if (nonConverged > 0) warnings.push(`${nonConverged} sample(s) whose balance solve did not converge were left out of every statistic`);
@@ -178,7 +194,10 @@ export function assembleRunReport(stage: Stage, t: RunTally): RunReport {
       mean: moments.mean,
       meanInterval: [moments.mean - (z * sigma) / Math.sqrt(n), moments.mean + (z * sigma) / Math.sqrt(n)],
       sigma,
-      sigmaInterval: sigmaInterval(sigma, n, confidence),
+      sigmaInterval: bonett ? sigmaIntervalBonett(sigma, n, k, confidence) : chiSquare,
+      sigmaIntervalMethod: bonett ? 'bonett' : 'chi-square',
+      sigmaIntervalChiSquare: chiSquare,
+      kurtosis: k,
       min: moments.min,
       max: moments.max,
       quantileMethod,

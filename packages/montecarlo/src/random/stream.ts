@@ -1,7 +1,16 @@
 import seedrandom from 'seedrandom';
 
-/** The generator every chunk uses: seedrandom's xorwow (Marsaglia, J. Stat. Software 8(14), 2003). */
-export type ChunkRng = seedrandom.PRNG;
+/**
+ * The generator every chunk uses: seedrandom's xorwow (Marsaglia, J. Stat. Software 8(14), 2003),
+ * seen through the two calls the samplers make. Declared here rather than as seedrandom's own
+ * type, so the published types need no @types/seedrandom.
+ */
+export interface ChunkRng {
+  /** 32 random bits as a signed 32-bit integer. */
+  int32(): number;
+  /** A uniform double in [0, 1) with 53 random bits. */
+  double(): number;
+}
 
 /** Independent purposes draw from disjoint stream families. */
 export type StreamKind = 'montecarlo' | 'importance' | 'coverage';
@@ -43,7 +52,7 @@ export function chunkRng(seed: string, kind: StreamKind, chunk: number): ChunkRn
   }
   if ((words[0]! | words[1]! | words[2]! | words[3]! | words[4]!) === 0) words[0] = 0x1234567;
   const state = { x: words[0]!, y: words[1]!, z: words[2]!, w: words[3]!, v: words[4]!, d: words[5]! };
-  const rng = seedrandom.xorwow('', { state }) as ChunkRng;
+  const rng: ChunkRng = seedrandom.xorwow('', { state });
   for (let i = 0; i < 32; i++) rng.int32();
   return rng;
 }

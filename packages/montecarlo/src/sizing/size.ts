@@ -94,7 +94,7 @@ export interface Confirmation {
   readonly seed: string;
   readonly samples: number;
   readonly point: SizedPoint;
-  /** Monte Carlo offset sigma and its chi-square interval, volts (null for importance sampling). */
+  /** Monte Carlo offset sigma and its interval (Bonett 2006, allowing for non-Gaussian offsets), volts (null for importance sampling). */
   readonly sigma: number | null;
   readonly sigmaInterval: readonly [number, number] | null;
   /** Instance failure probability at the spec and its interval. */
@@ -296,7 +296,7 @@ function plan(design: Design, o: SizeOptions, spec: number, confidence: number):
       allowed: null,
       method: 'monte-carlo',
       samples: o.samples ?? SIZE_SAMPLES,
-      rule: `upper end of the ${c} chi-square interval of the Monte Carlo sigma <= target`,
+      rule: `upper end of the ${c} Bonett interval of the Monte Carlo sigma <= target`,
     };
   }
   const instances = design.spec.instances;
