@@ -1,7 +1,8 @@
 import { compileStage, InputError, type Design } from '@twinfet/core';
 import { linearisedSummary, type LinearisedSummary } from './linearisedSummary.js';
 import { clopperPearson } from '../stats/clopperPearson.js';
-import { binWidth, createHistogram, exactQuantile, mergeHistograms, quantileFromHistogram, type Histogram } from '../stats/histogram.js';
+import { binWidth, createHistogram, mergeHistograms, quantileFromHistogram, type Histogram } from '../stats/histogram.js';
+import { selectQuantiles, withoutNaN } from '../stats/selectQuantiles.js';
 import type { InjectedFault, MonteCarloResult, MonteCarloTask } from '../engine/messages.js';
 import { emptyMoments, mergeMoments, type Moments } from '../stats/moments.js';
 import { normalQuantile } from '../stats/normal.js';
@@ -143,8 +144,10 @@ function checkOptions(o: SimulateOptions): void {
   }
 }
 
-function quantiles(sorted: Float64Array): QuantileValue[] {
-  return QUANTILE_LEVELS.map((p) => ({ p, value: exactQuantile(sorted, p) }));
+/** Exact quantiles of the kept offsets (of |Vos| with `absolute`), as a full sort would give them. */
+function quantiles(kept: Float64Array, absolute: boolean): QuantileValue[] {
+  const values = selectQuantiles(kept, QUANTILE_LEVELS, { absolute });
+  return QUANTILE_LEVELS.map((p, i) => ({ p, value: values[i]! }));
 }
 
 function histogramQuantiles(h: Histogram): QuantileValue[] {
@@ -277,11 +280,10 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
   let absolute: QuantileValue[];
   if (offsets !== undefined) {
     quantileMethod = 'exact';
-    const kept = offsets.subarray(0, done).filter((x) => x === x);
-    const sorted = Float64Array.from(kept).sort();
-    signed = quantiles(sorted);
-    const abs = kept.map(Math.abs).sort();
-    absolute = quantiles(abs);
+    // The non-converged samples (NaN, already counted) are left out of the quantiles.
+    const kept = withoutNaN(offsets.subarray(0, done));
+    signed = quantiles(kept, false);
+    absolute = quantiles(kept, true);
   } else {
     signed = histogramQuantiles(histogram);
     absolute = histogramQuantiles(folded(histogram));
