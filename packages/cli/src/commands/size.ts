@@ -1,4 +1,3 @@
-import { readFileSync } from 'node:fs';
 import { formatQuantity, InputError, isInputError, parseQuantity, type Design } from '@twinfet/core';
 import { SIZE_VARIATIONS, sizeDesign, type Confirmation, type SizedPoint, type SizeReport, type SizeTarget, type SizeVary } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
@@ -13,6 +12,7 @@ import { assertFinite, printJson, type Io } from '../output.js';
 import { withInterrupt } from '../interrupt.js';
 import { renderPairs, renderTable } from '../table.js';
 import { yieldText } from './inspect.js';
+import { VERSION } from '../version.js';
 
 interface SizeFlags extends CommonFlags {
   sigma?: string;
@@ -22,8 +22,6 @@ interface SizeFlags extends CommonFlags {
   samples?: string;
   write?: string;
 }
-
-const version = (JSON.parse(readFileSync(new URL('../../package.json', import.meta.url), 'utf8')) as { version: string }).version;
 
 /** Library option names as the command line spells them. */
 const OPTION_OF: Readonly<Record<string, string>> = {
@@ -172,7 +170,7 @@ function fileHeader(r: SizeReport, source: string): string[] {
     ? `sigma ${mv(c.sigma)}, ${conf(r.confidence)} [${mv(c.sigmaInterval[0])}, ${mv(c.sigmaInterval[1])}]`
     : `failure ${sci(c.failure, 4)}, ${conf(r.confidence)} [${sci(c.failureInterval[0], 4)}, ${sci(c.failureInterval[1], 4)}]`;
   return [
-    `Sized by twinfet ${version} from ${source} for ${targetText(r)}, varying ${r.vary}.`,
+    `Sized by twinfet ${VERSION} from ${source} for ${targetText(r)}, varying ${r.vary}.`,
     `Confirmed on the exact model: ${fig} (${method}).`,
     `Linearised sigma ${mv(r.result.sigmaLinearised)}. Process parameters and bias are copied unchanged from ${source}.`,
   ];
