@@ -1,7 +1,9 @@
 /**
  * Speed and memory benchmark (`pnpm bench`): ns/sample of the chunk function in one thread,
  * samples/s of whole runs with 1 and with all workers, peak memory of a 1e8-sample run that
- * keeps no samples, and the wall time of a 6-sigma high-sigma estimate through the CLI.
+ * keeps no samples, the wall time of a 6-sigma high-sigma estimate through the CLI, and the
+ * command line's start-up. `pnpm bench --peer` instead times whole `twinfet run` processes
+ * against a numpy script of the same model (bench/peer.ts), then the start-up.
  * It prints figures; it asserts nothing (targets are checked by reading them).
  */
 import { execFileSync } from 'node:child_process';
@@ -10,7 +12,10 @@ import { fileURLToPath } from 'node:url';
 import { compileStage, linearisedSigma, type Design } from '@twinfet/core';
 import { createExecutor, defaultWorkers, simulate } from '@twinfet/montecarlo';
 import { runChunk } from '../src/engine/chunk.js';
+import { poolExecutor } from '../src/engine/pool.js';
 import { loadDesign } from '../../cli/dist/designFile.js';
+import { peerComparison } from './peer.js';
+import { startupFigures } from './startup.js';
 
 const root = fileURLToPath(new URL('../../../', import.meta.url));
 const examples = ['weak-inversion-wta', 'sense-amp-pmos', 'comparator-demo'];
@@ -58,10 +63,23 @@ async function runNs(design: Design, workers: number, samples: number): Promise<
   }
 }
 
+/** From creating a pool to its first chunk's result (a job waits for none of it: see startingPoolExecutor). */
 async function poolStartMs(design: Design): Promise<number> {
   const t = performance.now();
-  await simulate(design, { samples: 131_072, workers: defaultWorkers(), keepOffsets: false });
-  return performance.now() - t;
+  const pool = poolExecutor(defaultWorkers());
+  try {
+    await pool.run({ kind: 'montecarlo', design, seed: 'start', chunk: 0, count: 65_536, spec: design.spec.offset, histogram: { lo: -0.1, hi: 0.1, bins: 2000 }, keepOffsets: false, keepDraws: false });
+    return performance.now() - t;
+  } finally {
+    await pool.close();
+  }
+}
+
+if (process.argv.includes('--peer')) {
+  await peerComparison();
+  console.log('');
+  startupFigures();
+  process.exit(0);
 }
 
 const line = (cells: (string | number)[]): string => cells.map((c, i) => String(c).padStart(i === 0 ? 20 : 12)).join('');
@@ -80,7 +98,7 @@ for (const name of examples) {
 }
 console.log('  chunk ns: one 65536-sample chunk in this thread (draws, exact offsets, statistics).');
 console.log('  run ns: wall time of simulate() per sample (3e7 simple, 8e6 mirror samples; best of 3) on a warm pool.');
-console.log(`  pool start-up plus one 131072-sample run with ${defaultWorkers()} workers: ${(await poolStartMs(await loadDesign(`${root}examples/comparator-demo.yaml`))).toFixed(0)} ms.`);
+console.log(`  a fresh pool of ${defaultWorkers()} threads returns its first 65536-sample chunk after ${(await poolStartMs(await loadDesign(`${root}examples/comparator-demo.yaml`))).toFixed(0)} ms (chunks run in this thread meanwhile).`);
 
 // Peak memory of a long run that keeps no samples: it must stay flat in the sample count.
 {
@@ -114,3 +132,6 @@ console.log(`  pool start-up plus one 131072-sample run with ${defaultWorkers()}
   console.log('');
   console.log(`tail: 6 sigma (spec ${spec}) on comparator-demo: p = ${r.failureProbability.toExponential(3)} +-${(r.relativeHalfWidth * 100).toFixed(1)}% from ${r.samples} samples; wall ${times[0]!.toFixed(0)}-${times[times.length - 1]!.toFixed(0)} ms (median ${times[2]!.toFixed(0)} ms) including Node start-up; plain Monte Carlo would need ${r.equivalentPlainSamples.toExponential(2)} samples`);
 }
+
+console.log('');
+startupFigures();
