@@ -66,7 +66,7 @@ describe('standard-normal generator (ziggurat, Marsaglia & Tsang 2000)', () => {
     expect(Math.abs(r / m)).toBeLessThan(4 / Math.sqrt(m));
   });
 
-  it('never sticks: an empty seed still gives a varying stream (STACK.md xor128 trap)', () => {
+  it('never sticks: an empty seed still gives a varying stream (an all-zero xorshift state repeats 0)', () => {
     const rng = chunkRng('', 'montecarlo', 0);
     const seen = new Set<number>();
     for (let i = 0; i < 100; i++) seen.add(rng.int32());

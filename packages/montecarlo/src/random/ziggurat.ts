@@ -32,6 +32,9 @@ const FN = new Float64Array(128);
   }
 }
 const INV_R = 1 / R;
+// The same thresholds as int32 (each is below 2^31), so the fast path's test is two integer
+// comparisons: |hz| < KN[iz] exactly when -k < hz < k (hz = -2^31 fails both ways).
+const KI = Int32Array.from(KN);
 
 /** The rare path: outside the rectangles (about 1.2% of draws). */
 function slow(rng: ChunkRng, first: number): number {
@@ -62,14 +65,52 @@ export function standardNormal(rng: ChunkRng): number {
   return Math.abs(hz) < KN[iz]! ? hz * WN[iz]! : slow(rng, hz);
 }
 
-/** Fills out[start..end) with independent standard-normal deviates. */
+/**
+ * Fills out[start..end) with independent standard-normal deviates: the same numbers as calling
+ * `standardNormal` end - start times. The generator's state is kept in locals (its int32 step
+ * written out) and handed back to `rng` around the rare slow path, which draws from it too.
+ */
 export function fillStandardNormals(rng: ChunkRng, out: Float64Array, start: number, end: number): void {
-  // seedrandom's int32 is the generator's own step function, bound to its state by closure,
-  // so it can be called unbound: one property load per block instead of per draw.
-  const int32 = rng.int32;
+  let x = rng.x;
+  let y = rng.y;
+  let z = rng.z;
+  let w = rng.w;
+  let v = rng.v;
+  let d = rng.d;
   for (let i = start; i < end; i++) {
-    const hz = int32();
+    // xorwow's step, as ChunkRng.int32.
+    const t = x ^ (x >>> 2);
+    x = y;
+    y = z;
+    z = w;
+    w = v;
+    v = v ^ (v << 4) ^ (t ^ (t << 1));
+    d = (d + 362437) | 0;
+    const hz = (d + v) | 0;
     const iz = hz & 127;
-    out[i] = Math.abs(hz) < KN[iz]! ? hz * WN[iz]! : slow(rng, hz);
+    const k = KI[iz]!;
+    if (hz < k && hz > -k) {
+      out[i] = hz * WN[iz]!;
+    } else {
+      rng.x = x;
+      rng.y = y;
+      rng.z = z;
+      rng.w = w;
+      rng.v = v;
+      rng.d = d;
+      out[i] = slow(rng, hz);
+      x = rng.x;
+      y = rng.y;
+      z = rng.z;
+      w = rng.w;
+      v = rng.v;
+      d = rng.d;
+    }
   }
+  rng.x = x;
+  rng.y = y;
+  rng.z = z;
+  rng.w = w;
+  rng.v = v;
+  rng.d = d;
 }
