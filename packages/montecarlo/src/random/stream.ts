@@ -24,15 +24,16 @@ export class ChunkRng {
 
   /** The next 32 random bits, as a signed integer. */
   int32(): number {
-    const x = this.x;
+    const x = this.x | 0;
     const t = x ^ (x >>> 2);
     this.x = this.y;
     this.y = this.z;
     this.z = this.w;
-    this.w = this.v;
-    const v = this.v ^ (this.v << 4) ^ (t ^ (t << 1));
+    const v0 = this.v | 0;
+    this.w = v0;
+    const v = v0 ^ (v0 << 4) ^ (t ^ (t << 1));
     this.v = v;
-    const d = (this.d + 362437) | 0;
+    const d = ((this.d | 0) + 362437) | 0;
     this.d = d;
     return (d + v) | 0;
   }
