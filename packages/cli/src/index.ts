@@ -1,5 +1,4 @@
 export { main, buildProgram, EXIT } from './main.js';
-export { loadDesign, parseDesign } from './designFile.js';
+export { loadDesign } from './designFile.js';
 export { histogramSvg, sweepSvg } from './plot.js';
-export { designToYaml } from './designYaml.js';
-export { SWEEP_FIELDS, sweepField, withField, sweepValues } from './sweepField.js';
+export { SWEEP_FIELDS, sweepFields, sweepField, fieldValue, withField, sweepValues } from './sweepField.js';

@@ -9,7 +9,7 @@
 import { execFileSync } from 'node:child_process';
 import { availableParallelism } from 'node:os';
 import { fileURLToPath } from 'node:url';
-import { compileStage, linearisedSigma, type Design } from '@twinfet/core';
+import { compileStage, linearisedSigma, specLimit, type Design } from '@twinfet/core';
 import { createExecutor, defaultWorkers, simulate } from '@twinfet/montecarlo';
 import { runChunk } from '../src/engine/chunk.js';
 import { poolExecutor } from '../src/engine/pool.js';
@@ -28,7 +28,7 @@ function chunkNs(design: Design): number {
     seed: 'bench',
     chunk: 0,
     count: 65_536,
-    spec: design.spec.offset,
+    spec: design.spec.offset!,
     histogram: { lo: -0.1, hi: 0.1, bins: 2000 },
     keepOffsets: false,
     keepDraws: false,
@@ -68,7 +68,7 @@ async function poolStartMs(design: Design): Promise<number> {
   const t = performance.now();
   const pool = poolExecutor(defaultWorkers());
   try {
-    await pool.run({ kind: 'montecarlo', design, seed: 'start', chunk: 0, count: 65_536, spec: design.spec.offset, histogram: { lo: -0.1, hi: 0.1, bins: 2000 }, keepOffsets: false, keepDraws: false });
+    await pool.run({ kind: 'montecarlo', design, seed: 'start', chunk: 0, count: 65_536, spec: specLimit(design), histogram: { lo: -0.1, hi: 0.1, bins: 2000 }, keepOffsets: false, keepDraws: false });
     return performance.now() - t;
   } finally {
     await pool.close();

@@ -6,7 +6,7 @@
  */
 import { spawnSync } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
-import { compileStage, type Design, type Stage } from '@twinfet/core';
+import { compileStage, specLimit, type Design, type Stage } from '@twinfet/core';
 import { defaultWorkers, linearisedSummary } from '@twinfet/montecarlo';
 import { loadDesign } from '../../cli/dist/designFile.js';
 import { HISTOGRAM_BINS, HISTOGRAM_SIGMAS } from '../src/analyses/simulate.js';
@@ -18,39 +18,38 @@ const bin = `${root}packages/cli/bin/twinfet.js`;
 /** The constants peer.py needs, read off the compiled stage (no model code is repeated here). */
 function peerModel(design: Design, stage: Stage): Record<string, number | string> {
   const ut = stage.thermalVoltage;
-  const process = (role: 'input' | 'load') => {
-    const geometry = role === 'input' ? design.input : design.load!;
-    return design.process[geometry.polarity]!;
-  };
   const op = stage.operatingPoint;
+  const slope = (k: number): number => design.process[op[k]!.polarity]!.slope;
   const device = (k: number) => {
     const o = op[k]!;
     const rho = stage.variables[2 * k]!.rho;
     return { o, betaFromVt: o.sigmaBeta * rho, betaOwn: o.sigmaBeta * Math.sqrt(1 - rho * rho) };
   };
+  const spec = specLimit(design);
   const sigma = linearisedSummary(stage).sigma;
   const common = {
     topology: stage.topology,
     dimension: stage.dimension,
-    spec: design.spec.offset,
-    range: Math.max(HISTOGRAM_SIGMAS * sigma, 1.2 * design.spec.offset),
+    spec,
+    range: Math.max(HISTOGRAM_SIGMAS * sigma, 1.2 * spec),
     bins: HISTOGRAM_BINS,
-    sign: design.input.polarity === 'n' ? 1 : -1,
-    nut: process('input').slope * ut,
+    sign: op[0]!.polarity === 'n' ? 1 : -1,
+    nut: slope(0) * ut,
     sigmaVt: op[0]!.sigmaVt,
     betaFromVt: device(0).betaFromVt,
     betaOwn: device(0).betaOwn,
   };
   if (stage.topology === 'simple') return { ...common, s0: Math.sqrt(op[0]!.ic) };
   const load = device(2);
+  const tail = 2 * op[0]!.current;
   return {
     ...common,
     betaFromVtLoad: load.betaFromVt,
     betaOwnLoad: load.betaOwn,
-    a0: load.o.specificCurrent / design.tail,
+    a0: load.o.specificCurrent / tail,
     c0: Math.sqrt(load.o.specificCurrent / op[0]!.specificCurrent),
     gamma: -Math.expm1(-Math.sqrt(load.o.ic)),
-    dScale: load.o.sigmaVt / (process('load').slope * ut),
+    dScale: load.o.sigmaVt / (slope(2) * ut),
   };
 }
 
