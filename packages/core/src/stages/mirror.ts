@@ -1,6 +1,7 @@
 import type { Design } from '../design.js';
 import { ekvInverseOfRoot, lnExpm1OverS, normalisedGmOverId } from '../ekv.js';
 import { deviceBlock, deviceConstants, deviceOperatingPoint, deviceVariables, geometryWarnings, tailCurrent } from '../elements.js';
+import { expSmall } from '../expSmall.js';
 import { thermalVoltage } from '../thermal.js';
 import { INPUT_PAIR, OFFSET_FIGURE, otherPolarity, TAIL_FIELD } from './common.js';
 import type { BlockDefinition, StageDefinition, StageModel } from './definition.js';
@@ -91,10 +92,11 @@ function compileMirrorPair(design: Design): StageModel {
 
   const figures = (u: Float64Array, count: number, out: Float64Array, outBase: number): number => {
     ensure(count);
-    // Pass 1: the load's current factors and e^{-d/2} (three independent exp calls).
+    // Pass 1: the load's current factors (their exponents are a few percent: expSmall's
+    // polynomial) and e^{-d/2} (an exp call; d/2 is often beyond its range).
     for (let i = 0, b = 0; i < count; i++, b += 8) {
-      A3[i] = a0 * Math.exp(bRL * u[b + 4]! + bSL * u[b + 5]!);
-      A4[i] = a0 * Math.exp(bRL * u[b + 6]! + bSL * u[b + 7]!);
+      A3[i] = a0 * expSmall(bRL * u[b + 4]! + bSL * u[b + 5]!);
+      A4[i] = a0 * expSmall(bRL * u[b + 6]! + bSL * u[b + 7]!);
       const hd = 0.5 * dScale * (u[b + 6]! - u[b + 4]!);
       HD[i] = hd;
       DX[i] = Math.exp(-hd);
@@ -186,14 +188,14 @@ function compileMirrorPair(design: Design): StageModel {
     for (let j = 0; j < active; j++) L4[ACTIVE[j]!] = Number.NaN; // not converged: reported as NaN
     // sqrt(IC1) = s sqrt(a3 I_B/I_S1) and sqrt(IC2) = L4 sqrt(a4 I_B/I_S2) (I2 = I4); then
     // v1 - v2 as ekvInverseDifference computes it, its calls spread over passes 7 and 8.
-    // Pass 6: s1 and s2 (two independent exp calls).
+    // Pass 6: s1 and s2 (their exponents are differences of current-factor deviates: expSmall).
     for (let i = 0, b = 0; i < count; i++, b += 8) {
       const z3 = bRL * u[b + 4]! + bSL * u[b + 5]!;
       const z4 = bRL * u[b + 6]! + bSL * u[b + 7]!;
       const q1 = 0.5 * (z3 - (bRIn * u[b]! + bSIn * u[b + 1]!));
       const q2 = 0.5 * (z4 - (bRIn * u[b + 2]! + bSIn * u[b + 3]!));
-      A3[i] = S[i]! * c0 * Math.exp(q1);
-      A4[i] = L4[i]! * c0 * Math.exp(q2);
+      A3[i] = S[i]! * c0 * expSmall(q1);
+      A4[i] = L4[i]! * c0 * expSmall(q2);
       HD[i] = q1;
       DX[i] = q2;
     }
