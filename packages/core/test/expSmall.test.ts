@@ -1,9 +1,10 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { EXP_SMALL_LIMIT, expSmall } from '../src/expSmall.js';
+import { EXP_SMALL_LIMIT, EXPM1_SMALL_LIMIT, expm1Small, expSmall } from '../src/expSmall.js';
 
 // The bound the sampling loops rely on: expSmall is within 2 ulp of Node's Math.exp over its
-// whole polynomial range |x| <= 1/32 (and is Math.exp itself outside). Points: a dense grid,
+// whole polynomial range |x| <= 1/32, expm1Small of Math.expm1 over |x| <= 1/4 (and each is the
+// Math function itself outside). Points: a dense grid,
 // the range's ends and their neighbouring doubles, tiny and subnormal arguments, and a
 // fast-check property with a fixed seed.
 
@@ -59,5 +60,39 @@ describe('expSmall within 2 ulp of Math.exp', () => {
     // Python's decimal module at 40 digits; the nearest double is 1.010050167084168, 0.49 ulp
     // below the true value. expSmall is within 0.54 ulp of the true value, so within 1 ulp of it.
     expect(ulps(expSmall(0.01), 1.010050167084168)).toBeLessThanOrEqual(1);
+  });
+});
+
+describe('expm1Small within 2 ulp of Math.expm1', () => {
+  it('over the whole polynomial range (grid, ends, tiny arguments)', () => {
+    const xs: number[] = [];
+    const grid = 1_000_000;
+    for (let i = 0; i <= grid; i++) xs.push(-EXPM1_SMALL_LIMIT + (2 * EXPM1_SMALL_LIMIT * i) / grid);
+    for (let k = 0; k < 50; k++) xs.push(step(EXPM1_SMALL_LIMIT, -k), -step(EXPM1_SMALL_LIMIT, -k));
+    for (let e = -1074; e <= -3; e += 3) xs.push(2 ** e, -(2 ** e));
+    xs.push(0, -0);
+    let worst = 0;
+    let at = 0;
+    for (const x of xs) {
+      const d = ulps(expm1Small(x), Math.expm1(x));
+      if (d > worst) [worst, at] = [d, x];
+    }
+    if (worst > 2) throw new Error(`${worst} ulp at x = ${at}`);
+    expect(worst).toBeLessThanOrEqual(2);
+  });
+
+  it('property: random arguments in the range (fast-check, fixed seed)', () => {
+    fc.assert(
+      fc.property(fc.double({ min: -EXPM1_SMALL_LIMIT, max: EXPM1_SMALL_LIMIT, noNaN: true }), (x) => ulps(expm1Small(x), Math.expm1(x)) <= 2),
+      { seed: 1433, numRuns: 50_000 },
+    );
+  });
+
+  it('outside the range it is Math.expm1 itself; the sign of zero is kept', () => {
+    for (const x of [step(EXPM1_SMALL_LIMIT, 1), -step(EXPM1_SMALL_LIMIT, 1), 1, -3, 709, -745, Infinity, -Infinity]) {
+      expect(Object.is(expm1Small(x), Math.expm1(x))).toBe(true);
+    }
+    expect(Object.is(expm1Small(-0), -0)).toBe(true);
+    expect(Number.isNaN(expm1Small(Number.NaN))).toBe(true);
   });
 });

@@ -1,7 +1,7 @@
 import type { Design } from '../design.js';
 import { ekvInverseOfRoot, lnExpm1OverS, normalisedGmOverId } from '../ekv.js';
 import { deviceBlock, deviceConstants, deviceOperatingPoint, deviceVariables, geometryWarnings, tailCurrent } from '../elements.js';
-import { expSmall } from '../expSmall.js';
+import { EXPM1_SMALL_LIMIT, expm1Small, expSmall } from '../expSmall.js';
 import { thermalVoltage } from '../thermal.js';
 import { INPUT_PAIR, OFFSET_FIGURE, otherPolarity, TAIL_FIELD } from './common.js';
 import type { BlockDefinition, StageDefinition, StageModel } from './definition.js';
@@ -199,9 +199,11 @@ function compileMirrorPair(design: Design): StageModel {
       HD[i] = q1;
       DX[i] = q2;
     }
-    // Pass 7: each sample's region: both sides at or below s = 1 need the log of s/L4 (pass 8);
-    // both above need expm1(-s1) and expm1(-s2) (independent calls); otherwise (or NaN), v1 - v2
-    // directly.
+    // Pass 7: each sample's region: both sides at or below s = 1 need the log of s/L4 (pass 8).
+    // Both above, with v = 2 ln(e^s - 1): v1 - v2 = 2 log1p(expm1(s1 - s2) (1 + 1/expm1(s2))),
+    // one expm1 call here and, for |s1 - s2| <= 1/4, a polynomial for expm1(s1 - s2) (pass 8);
+    // a wider split keeps ekvInverseDifference's 2 (s1 - s2) + 2 ln(expm1(-s1)/expm1(-s2)).
+    // Otherwise (or NaN), v1 - v2 directly.
     for (let i = 0; i < count; i++) {
       const s1 = A3[i]!;
       const s2 = A4[i]!;
@@ -209,15 +211,21 @@ function compileMirrorPair(design: Design): StageModel {
         KIND[i] = 0;
         X1[i] = S[i]! / L4[i]!;
       } else if (s1 > 1 && s2 > 1) {
-        KIND[i] = 1;
-        X1[i] = Math.expm1(-s1);
-        X2[i] = Math.expm1(-s2);
+        const split = s1 - s2;
+        if (split >= -EXPM1_SMALL_LIMIT && split <= EXPM1_SMALL_LIMIT) {
+          KIND[i] = 1;
+          X1[i] = Math.expm1(s2);
+        } else {
+          KIND[i] = 3;
+          X1[i] = Math.expm1(-s1);
+          X2[i] = Math.expm1(-s2);
+        }
       } else {
         KIND[i] = 2;
         X1[i] = ekvInverseOfRoot(s1) - ekvInverseOfRoot(s2);
       }
     }
-    // Pass 8: the one log, v1 - v2 and Vos.
+    // Pass 8: the one log (or log1p), v1 - v2 and Vos.
     let failed = 0;
     for (let i = 0, b = 0; i < count; i++, b += 8) {
       const kind = KIND[i]!;
@@ -225,7 +233,8 @@ function compileMirrorPair(design: Design): StageModel {
       const s2 = A4[i]!;
       let dv: number;
       if (kind === 0) dv = 2 * (Math.log(X1[i]!) + HD[i]! - DX[i]!) + 2 * (lnExpm1OverS(s1) - lnExpm1OverS(s2));
-      else if (kind === 1) dv = 2 * (s1 - s2) + 2 * Math.log(X1[i]! / X2[i]!);
+      else if (kind === 1) dv = 2 * Math.log1p(expm1Small(s1 - s2) * (1 + 1 / X1[i]!));
+      else if (kind === 3) dv = 2 * (s1 - s2) + 2 * Math.log(X1[i]! / X2[i]!);
       else dv = X1[i]!;
       const vos = sign * (sVtIn * (u[b]! - u[b + 2]!) + nutIn * dv);
       // NaN from a failed solve, or a side whose current underflowed to zero (no finite
