@@ -1,7 +1,8 @@
 import { once } from 'node:events';
 import { availableParallelism } from 'node:os';
 import type { Worker } from 'node:worker_threads';
-import { Piscina } from 'piscina';
+import { createRequire } from 'node:module';
+import type { Piscina as PiscinaPool } from 'piscina';
 import type { ChunkResult, ChunkTask, WorkerReply } from './messages.js';
 import { runChunk } from './chunk.js';
 
@@ -76,6 +77,14 @@ export function inThreadExecutor(): Executor {
   };
 }
 
+// piscina (and worker_threads under it) is loaded with the first pool, not with this module, so a
+// run in one thread, `inspect` or `--version` does not pay for it (about 10 ms of start-up).
+let PiscinaClass: typeof PiscinaPool | undefined;
+function piscinaClass(): typeof PiscinaPool {
+  PiscinaClass ??= (createRequire(import.meta.url)('piscina') as typeof import('piscina')).Piscina;
+  return PiscinaClass;
+}
+
 /**
  * A piscina pool of `workers` threads. Under vitest (sources) the worker is `worker.ts`, loaded
  * through tsx; built, it is `worker.js`.
@@ -83,6 +92,7 @@ export function inThreadExecutor(): Executor {
 export function poolExecutor(workers: number): Executor & { readyThreads(): number } {
   const fromSource = import.meta.url.endsWith('.ts');
   const filename = new URL(fromSource ? './worker.ts' : './worker.js', import.meta.url).href;
+  const Piscina = piscinaClass();
   const pool = new Piscina<ChunkTask, WorkerReply>({
     filename,
     minThreads: workers,
