@@ -89,15 +89,15 @@ console.log('');
 console.log(line(['design', 'topology', 'chunk ns', 'run 1w ns', 'run all ns', 'speed-up', 'samples/s']));
 for (const name of examples) {
   const design = await loadDesign(`${root}examples/${name}.yaml`);
-  // About 2-3 s of work on one thread, so the in-order merge and the last chunk's wait are noise.
-  const runSamples = (design.topology === 'simple' ? 3e7 : 8e6) / (quick ? 10 : 1);
+  // 6e6 samples (92 chunks), the size at which the two-worker speed-up is asked for.
+  const runSamples = 6e6 / (quick ? 10 : 1);
   const c = chunkNs(design);
   const one = await runNs(design, 1, runSamples);
   const all = await runNs(design, defaultWorkers(), runSamples);
   console.log(line([name, design.topology, c.toFixed(1), one.toFixed(1), all.toFixed(1), `${(one / all).toFixed(2)}x`, (1e9 / all).toExponential(2)]));
 }
 console.log('  chunk ns: one 65536-sample chunk in this thread (draws, exact offsets, statistics).');
-console.log('  run ns: wall time of simulate() per sample (3e7 simple, 8e6 mirror samples; best of 3) on a warm pool.');
+console.log('  run ns: wall time of simulate() per sample (6e6 samples, histogram quantiles; best of 3) on a warm pool.');
 console.log(`  a fresh pool of ${defaultWorkers()} threads returns its first 65536-sample chunk after ${(await poolStartMs(await loadDesign(`${root}examples/comparator-demo.yaml`))).toFixed(0)} ms (chunks run in this thread meanwhile).`);
 
 // Peak memory of a long run that keeps no samples: it must stay flat in the sample count.
