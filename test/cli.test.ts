@@ -1,5 +1,5 @@
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -29,6 +29,17 @@ describe('twinfet (end to end, the built CLI)', () => {
     const v = twinfet('--version');
     expect(v.code).toBe(0);
     expect(v.stdout.trim()).toMatch(/^\d+\.\d+\.\d+$/);
+  });
+
+  it('runs from the bundle: it is newer than every build, and its inlined version is the package version', () => {
+    // The bin takes the bundle only when its stamp is at least as new as each tsbuildinfo (the
+    // global set-up has just made it), so every end-to-end test here exercises the bundle.
+    const stamp = statSync(join(root, 'packages/cli/bundle/built')).mtimeMs;
+    for (const p of ['cli', 'core', 'montecarlo']) expect(statSync(join(root, `packages/${p}/dist/tsconfig.tsbuildinfo`)).mtimeMs).toBeLessThanOrEqual(stamp);
+    const bundled = readFileSync(join(root, 'packages/cli/bundle/twinfet.js'), 'utf8');
+    expect(bundled).not.toContain('TWINFET_BUNDLED_VERSION');
+    const pkg = JSON.parse(readFileSync(join(root, 'packages/cli/package.json'), 'utf8')) as { version: string };
+    expect(twinfet('--version').stdout.trim()).toBe(pkg.version);
   });
 
   it('inspect --json gives analytic.sigma equal to the library value and a budget summing to 1', async () => {

@@ -12,6 +12,7 @@ export { wilson } from './stats/wilson.js';
 export { sigmaIntervalBonett, sigmaIntervalChiSquare } from './stats/sigmaInterval.js';
 export { addSamples, emptyMoments, kurtosis, mergeMoments, stdDev, variance, type Moments } from './stats/moments.js';
 export { createHistogram, exactQuantile, quantileFromHistogram, type Histogram } from './stats/histogram.js';
+export { selectQuantiles, withoutNaN } from './stats/selectQuantiles.js';
 export {
   logNormalUpperTail,
   normalCdf,

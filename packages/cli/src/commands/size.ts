@@ -1,5 +1,4 @@
-import { readFileSync } from 'node:fs';
-import { closestWord, formatQuantity, InputError, isInputError, stageDefinition, writeDesign, type Design } from '@twinfet/core';
+import { closestWord, formatQuantity, InputError, isInputError, parseQuantity, stageDefinition, writeDesign, type Design } from '@twinfet/core';
 import { SIZE_VARIATIONS, sizeDesign, type Confirmation, type SizedPoint, type SizeReport, type SizeTarget, type SizeVary } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
 import { readCommon, readSpec, withCommonOptions, type CommonFlags } from '../commonOptions.js';
@@ -12,6 +11,7 @@ import { assertFinite, printJson, type Io } from '../output.js';
 import { withInterrupt } from '../interrupt.js';
 import { renderPairs, renderTable } from '../table.js';
 import { yieldBound, yieldDigits, yieldText } from './inspect.js';
+import { VERSION } from '../version.js';
 
 interface SizeFlags extends CommonFlags {
   sigma?: string;
@@ -21,8 +21,6 @@ interface SizeFlags extends CommonFlags {
   samples?: string;
   write?: string;
 }
-
-const version = (JSON.parse(readFileSync(new URL('../../package.json', import.meta.url), 'utf8')) as { version: string }).version;
 
 /** Library option names as the command line spells them. */
 const OPTION_OF: Readonly<Record<string, string>> = {
@@ -193,7 +191,7 @@ function fileHeader(r: SizeReport, source: string, design: Design): string[] {
     ? `sigma ${mv(c.sigma)}, ${conf(r.confidence)} [${mv(c.sigmaInterval[0])}, ${mv(c.sigmaInterval[1])}]`
     : `failure ${sci(c.failure, 4)}, ${conf(r.confidence)} [${sci(c.failureInterval[0], 4)}, ${sci(c.failureInterval[1], 4)}]`;
   return [
-    `Sized by twinfet ${version} from ${source} for ${targetText(r, f)}, varying ${r.vary}.`,
+    `Sized by twinfet ${VERSION} from ${source} for ${targetText(r, f)}, varying ${r.vary}.`,
     `Confirmed on the exact model: ${fig} (${method}).`,
     `Linearised sigma ${mv(r.result.sigmaLinearised)}. Process parameters and bias are copied unchanged from ${source}.`,
   ];

@@ -5,7 +5,8 @@
  */
 import type { Stage } from '@twinfet/core';
 import { clopperPearson } from '../stats/clopperPearson.js';
-import { binWidth, createHistogram, exactQuantile, quantileFromHistogram, type Histogram } from '../stats/histogram.js';
+import { binWidth, createHistogram, quantileFromHistogram, type Histogram } from '../stats/histogram.js';
+import { selectQuantiles, withoutNaN } from '../stats/selectQuantiles.js';
 import { kurtosis, type Moments } from '../stats/moments.js';
 import { normalQuantile } from '../stats/normal.js';
 import { sigmaIntervalBonett, sigmaIntervalChiSquare } from '../stats/sigmaInterval.js';
@@ -116,8 +117,10 @@ export interface RunTally {
   readonly started: number;
 }
 
-function quantiles(sorted: Float64Array): QuantileValue[] {
-  return QUANTILE_LEVELS.map((p) => ({ p, value: exactQuantile(sorted, p) }));
+/** Exact quantiles of the kept figures (of their magnitudes with `absolute`), as a full sort would give them. */
+function quantiles(kept: Float64Array, absolute: boolean): QuantileValue[] {
+  const values = selectQuantiles(kept, QUANTILE_LEVELS, { absolute });
+  return QUANTILE_LEVELS.map((p, i) => ({ p, value: values[i]! }));
 }
 
 function histogramQuantiles(h: Histogram): QuantileValue[] {
@@ -159,11 +162,10 @@ export function assembleRunReport(stage: Stage, t: RunTally): RunReport {
   let absolute: QuantileValue[];
   if (offsets !== undefined) {
     quantileMethod = 'exact';
-    const kept = offsets.subarray(0, done).filter((x) => x === x);
-    const sorted = Float64Array.from(kept).sort();
-    signed = quantiles(sorted);
-    const abs = kept.map(Math.abs).sort();
-    absolute = quantiles(abs);
+    // The non-converged samples (NaN, already counted) are left out of the quantiles.
+    const kept = withoutNaN(offsets.subarray(0, done));
+    signed = quantiles(kept, false);
+    absolute = quantiles(kept, true);
   } else {
     signed = histogramQuantiles(histogram);
     absolute = histogramQuantiles(folded(histogram));

@@ -145,7 +145,7 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
     }),
   };
   const workers = Math.min(options.workers ?? defaultWorkers(), chunks);
-  const executor = options.executor ?? createExecutor(workers);
+  const executor = options.executor ?? createExecutor(workers, { chunks });
 
   let moments: Moments = emptyMoments();
   let histogram = createHistogram(histogramSpec.lo, histogramSpec.hi, histogramSpec.bins);
