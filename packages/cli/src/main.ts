@@ -8,6 +8,7 @@ import { registerRun } from './commands/run.js';
 import { registerTail } from './commands/tail.js';
 import { registerSize } from './commands/size.js';
 import { registerSweep } from './commands/sweep.js';
+import { registerReport } from './commands/report.js';
 
 const version = (JSON.parse(readFileSync(new URL('../package.json', import.meta.url), 'utf8')) as { version: string }).version;
 
@@ -48,6 +49,7 @@ export function buildProgram(io: Io, setExit: (code: number) => void): Command {
   registerTail(program, io, setExit);
   registerSize(program, io, setExit);
   registerSweep(program, io, setExit);
+  registerReport(program, io, setExit);
   for (const c of program.commands) c.exitOverride().configureOutput(output(io)).allowExcessArguments(true);
   // Name a stray argument ourselves: it is nearly always a unit split off its value (--spec 5 mV).
   program.hook('preAction', (_root, action) => {

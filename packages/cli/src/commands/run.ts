@@ -13,6 +13,8 @@ import { textHistogram } from '../textHistogram.js';
 import { renderBudget, yieldDigits, yieldFromFailure, yieldText } from './inspect.js';
 import { renderTail } from './tail.js';
 import { writeOutputFile } from '../files.js';
+import { chartSvg } from '../chart/chart.js';
+import { runHistogramChart } from '../runHistogram.js';
 
 interface RunFlags extends CommonFlags {
   samples?: string;
@@ -76,16 +78,8 @@ async function writeSamplesCsv(path: string, outcome: RunOutcome): Promise<void>
 }
 
 /** The histogram plot of a run. */
-export async function runPlot(report: RunReport, title: string): Promise<string> {
-  // Loaded on demand: the plotting library takes ~200 ms to import, which other runs should not pay.
-  const { histogramSvg } = await import('../plot.js');
-  const h = report.histogram;
-  const half = Math.max(5 * report.offset.sigma, 1.15 * report.yield.spec);
-  const first = Math.max(0, Math.floor((-half - h.lo) / h.binWidth));
-  const last = Math.min(h.counts.length, Math.ceil((half - h.lo) / h.binWidth));
-  const counts = h.counts.slice(first, last);
-  const edges = Array.from({ length: counts.length + 1 }, (_, i) => h.lo + (first + i) * h.binWidth);
-  return histogramSvg({ title, binEdges: edges, counts, samples: report.evaluated, mean: report.offset.mean, sigma: report.offset.sigma, spec: report.yield.spec, subtitle: `seed ${report.seed}` });
+export function runPlot(report: RunReport, title: string): string {
+  return chartSvg(runHistogramChart(report, { title }));
 }
 
 const mv = (v: number): string => formatQuantity(v, 'V', 4);
@@ -184,7 +178,7 @@ export function registerRun(program: Command, io: Io, setExit: (code: number) =>
     const report = outcome.report;
     assertFinite(report);
     if (flags.samplesOut !== undefined) await writeSamplesCsv(flags.samplesOut, outcome);
-    if (flags.plot !== undefined) await writeOutputFile(flags.plot, '--plot', await runPlot(report, `${design.name}: offset distribution`));
+    if (flags.plot !== undefined) await writeOutputFile(flags.plot, '--plot', runPlot(report, `${design.name}: offset distribution`));
     if (flags.json === true) printJson(io, report);
     else io.out(renderRun(report, design));
     setExit(report.partial ? 130 : 0);

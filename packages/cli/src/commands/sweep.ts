@@ -7,7 +7,7 @@ import { loadDesign } from '../designFile.js';
 import { writeOutputFile } from '../files.js';
 import { parseCount, parseFraction } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
-import type { SweepPoint } from '../plot.js';
+import { sweepSvg, type SweepPoint } from '../plot.js';
 import { withInterrupt } from '../interrupt.js';
 import { renderTable } from '../table.js';
 import { plotAxis, sweepField, sweepValues, withField, type SweepField } from '../sweepField.js';
@@ -263,9 +263,7 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
         yieldHi: p.monteCarlo.yieldInterval[1],
         ...(p.importance === null ? {} : { tailFailure: p.importance.failure, tailLo: p.importance.interval[0], tailHi: p.importance.interval[1] }),
       }));
-      // Loaded on demand: the plotting library takes ~200 ms to import.
-      const { sweepSvg } = await import('../plot.js');
-      const svg = await sweepSvg({
+      const svg = sweepSvg({
         title: `${design.name}: offset against ${f.path}`,
         field: f.path,
         fieldUnit: axis.unit,
