@@ -22,7 +22,7 @@ export function budgetSection(d: ReportData): Section {
     panels: [
       {
         x: linearAxis('share of the variance sigma\u00b2 (%)', [0, ...shares], { zero: true, include: [Math.max(...shares) * 1.45] }),
-        y: categoryAxis('', rows),
+        y: categoryAxis('device and parameter', rows),
         layers: [
           {
             kind: 'hbars',

@@ -46,7 +46,7 @@ export function conditionsSection(d: ReportData, c: ConditionsData): Section {
     panels: [
       {
         x: linearAxis(`sigma of the ${fq.label} (${fq.unit})`, sigmas, { pad: 0.1 }),
-        y: categoryAxis('', names),
+        y: categoryAxis('condition', names),
         layers: [
           { kind: 'intervals', name: 'sigma-interval', legend: 'interval', along: 'x', items: c.rows.map((r, i) => ({ at: i, lo: r.sigmaInterval[0] * s, hi: r.sigmaInterval[1] * s })), stroke: COLOR.main },
           { kind: 'points', name: 'sigma', legend: 'Monte Carlo sigma', points: c.rows.map((r, i) => ({ x: r.sigma * s, y: i })), marker: 'circle', fill: COLOR.main, stroke: OUTLINE, size: 4.5 },

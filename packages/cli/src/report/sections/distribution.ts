@@ -6,7 +6,7 @@ import { shown } from '../../plot.js';
 import { runHistogramChart } from '../../runHistogram.js';
 import type { ReportData } from '../data.js';
 import { esc, figure, num, pairs, table, type Section } from '../html.js';
-import { displayQuantity, percent, plain, q } from '../units.js';
+import { displayQuantity, minus, percent, plain, q } from '../units.js';
 
 /** A tail quantile is called Gaussian when it lies within this many standard errors of the line (common practice, no source). */
 const TAIL_Z = 4;
@@ -64,7 +64,7 @@ export function distributionSection(d: ReportData): Section {
   });
   const tails = d.distribution.tails;
   const heavy = tails.filter((t) => Math.abs(t.standardErrors) > TAIL_Z);
-  const tailText = tails.map((t) => `${plain(t.p * 100, 3)}% quantile ${percent(Math.abs(t.relative), 2)} ${t.relative >= 0 ? 'beyond' : 'inside'} the line (${plain(t.standardErrors, 2)} standard errors)`).join(', ');
+  const tailText = tails.map((t) => `${plain(t.p * 100, 3)}% quantile ${percent(Math.abs(t.relative), 2)} ${t.relative >= 0 ? 'beyond' : 'inside'} the line (${minus(t.standardErrors.toFixed(1))} standard errors)`).join(', ');
   const probReading =
     tails.length === 0
       ? `Points on the line mean Gaussian tails; ${r.evaluated} samples are too few to judge the 0.1% quantiles (at least 10000 are needed).`
@@ -78,7 +78,7 @@ export function distributionSection(d: ReportData): Section {
     ['samples evaluated', `${num(r.evaluated, String(r.evaluated), { path: 'evaluated' })} of ${num(r.samples, String(r.samples), { path: 'samples' })}${r.nonConverged > 0 ? ` (${num(r.nonConverged, String(r.nonConverged), { path: 'nonConverged' })} balance solves did not converge and are left out)` : ''}`],
     ['mean', `${V('offset.mean', o.mean)}   ${interval('offset.meanInterval', o.meanInterval)}`],
     ['sigma', `${V('offset.sigma', o.sigma)}   ${interval('offset.sigmaInterval', o.sigmaInterval)} (chi-square)`],
-    ['linearised sigma', `${V('analytic.sigma', r.analytic.sigma)}; the Monte Carlo sigma differs by ${num(agree.relativeDifference, percent(agree.relativeDifference, 2), { path: 'analytic.agreement.relativeDifference', unit: '%' })} (${plain(agree.standardErrors, 2)} standard errors)${agree.consistent ? '' : ' \u2014 more than sampling error allows: the figure is not linear in the mismatch here'}`],
+    ['linearised sigma', `${V('analytic.sigma', r.analytic.sigma)}; the Monte Carlo sigma differs by ${num(agree.relativeDifference, percent(agree.relativeDifference, 2), { path: 'analytic.agreement.relativeDifference', unit: '%' })} (${minus(agree.standardErrors.toFixed(1))} standard errors)${agree.consistent ? '' : ' \u2014 more than sampling error allows: the figure is not linear in the mismatch here'}`],
     ['kurtosis', `${num(kt.value, plain(kt.value, 4), { key: 'distribution.kurtosis.value' })} \u00b1 ${plain(kt.standardError, 2)} (one standard error; a Gaussian has 3), ${kt.method === 'samples' ? 'from every sample' : 'from the histogram'}`],
     ['min / max', `${V('offset.min', o.min)} / ${V('offset.max', o.max)}`],
   ]);

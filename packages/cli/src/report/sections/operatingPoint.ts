@@ -42,7 +42,7 @@ export function operatingPointSection(d: ReportData): Section {
   const svg = chartSvg({
     id: 'fig-inversion',
     description: `Inversion coefficient of each matched pair on a log axis, with the weak (IC < ${WEAK}), moderate and strong (IC > ${STRONG}) regions.`,
-    panels: [{ x: axis, y: categoryAxis('', names), layers, height: 20 + 60 * n, grid: 'x' }],
+    panels: [{ x: axis, y: categoryAxis('matched pair', names), layers, height: 20 + 60 * n, grid: 'x' }],
   });
   const reading = groups.map((g) => `the ${g[0]!.role} pair ${g.map((o) => o.device).join('/')} works in ${g[0]!.region} inversion (IC ${plain(g[0]!.ic, 3)}, g<sub>m</sub>/I<sub>D</sub> ${plain(g[0]!.gmOverId, 4)} /V, V<sub>GS</sub>\u2212V<sub>T0</sub> ${esc(q(g[0]!.overdrive, 'V', 3))})`).join('; ');
   return {

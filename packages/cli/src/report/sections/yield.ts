@@ -61,7 +61,7 @@ export function yieldSection(d: ReportData): Section {
   const svg = chartSvg({
     id: 'fig-yield',
     description: 'Estimates of the probability that one instance fails the spec, each with its confidence interval, and the failure allowed per instance by the chip-yield target.',
-    panels: [{ x: logAxis('failure probability per instance', values, { pad: 0.08, max: 1 }), y: categoryAxis('', rows), layers, height: 34 * rows.length + 30, grid: 'x' }],
+    panels: [{ x: logAxis('failure probability per instance', values, { pad: 0.08, max: 1 }), y: categoryAxis('estimate', rows), layers, height: 34 * rows.length + 30, grid: 'x' }],
   });
   const mcText = y.failures === 0 ? `no failure in ${r.evaluated} samples (the interval runs from 0, drawn as an arrow)` : `${y.failures} failures in ${r.evaluated} samples`;
   const reading = `Monte Carlo: ${mcText}${is === undefined ? '' : `; importance sampling ${probabilityText(is.failureProbability)} against FORM ${probabilityText(is.form.failureProbability)}`}; the Gaussian estimate from the linearised sigma is ${probabilityText(g.failure)} (spec at ${plain(g.sigmaLevel, 4)} sigma).`;
