@@ -134,11 +134,25 @@ function tickLabels(axis: Axis): readonly string[] {
   return axis.kind === 'category' ? axis.categories : axis.tickLabels;
 }
 
+/**
+ * The y label in lines that fit the panel's height: one line, or two split at the space nearest
+ * the middle when one would run past the plot.
+ */
+function yLabelLines(p: Panel): string[] {
+  const label = p.y.label;
+  if (label === '' || textWidth(label, LABEL_SIZE) <= (p.height ?? 260) - 8) return label === '' ? [] : [label];
+  const spaces = [...label.matchAll(/ /g)].map((m) => m.index);
+  if (spaces.length === 0) return [label];
+  const mid = label.length / 2;
+  const cut = spaces.reduce((a, b) => (Math.abs(b - mid) < Math.abs(a - mid) ? b : a));
+  return [label.slice(0, cut), label.slice(cut + 1)];
+}
+
 /** Space left of the plot: y label, tick labels or category names. */
 function leftMargin(p: Panel, width: number): number {
   const labels = tickLabels(p.y);
   const widest = Math.max(0, ...labels.map((t) => textWidth(t, FONT_SIZE)));
-  const axisLabel = p.y.label === '' ? 0 : LABEL_SIZE + 10;
+  const axisLabel = yLabelLines(p).length * (LABEL_SIZE + 3) + 7;
   return Math.min(0.45 * width, 8 + axisLabel + widest + 10);
 }
 
@@ -219,7 +233,7 @@ function ruleLabels(p: Panel, x0: number, x1: number): { labels: RuleLabels; row
     const w = textWidth(l.label, FONT_SIZE);
     const side = l.side ?? (x - x0 < 0.6 * (x1 - x0) ? 'end' : 'start');
     // After the line when asked and there is room (or no room before it), else before it.
-    const after = side === 'end' ? x + 5 + w <= x1 + RIGHT - 2 : x - 5 - w < 2;
+    const after = side === 'end' ? x + 5 + w <= x1 + RIGHT - 2 : x - 5 - w < x0;
     const lo = after ? x + 5 : x - 5 - w;
     const hi = lo + w;
     let row = 0;
@@ -444,9 +458,11 @@ function renderPanel(chart: Chart, p: Panel, index: number, box: Box, labels: Ru
   out += el('g', { class: 'tick', 'font-size': FONT_SIZE, fill: INK }, ticks);
   // Axis labels.
   out += el('text', { class: 'axis-label x', x: (box.x0 + box.x1) / 2, y: box.y1 + 38, 'text-anchor': 'middle', 'font-size': LABEL_SIZE, fill: INK }, esc(p.x.label));
-  if (p.y.label !== '') {
+  const lines = yLabelLines(p);
+  if (lines.length > 0) {
     const cy = (box.y0 + box.y1) / 2;
-    out += el('text', { class: 'axis-label y', x: 0, y: 0, transform: `translate(${px(8 + LABEL_SIZE - 2)} ${px(cy)}) rotate(-90)`, 'text-anchor': 'middle', 'font-size': LABEL_SIZE, fill: INK }, esc(p.y.label));
+    const body = lines.length === 1 ? esc(lines[0]!) : lines.map((l, i) => el('tspan', { x: 0, dy: i === 0 ? 0 : LABEL_SIZE + 3 }, esc(i === 0 ? `${l} ` : l))).join('');
+    out += el('text', { class: 'axis-label y', x: 0, y: 0, transform: `translate(${px(8 + LABEL_SIZE - 2)} ${px(cy)}) rotate(-90)`, 'text-anchor': 'middle', 'font-size': LABEL_SIZE, fill: INK }, body);
   }
   return el('g', { class: 'panel' }, out);
 }

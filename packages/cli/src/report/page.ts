@@ -32,13 +32,12 @@ function summary(d: ReportData): string {
   const r = d.run;
   const u = d.stage.figure.unit;
   const c = `${plain(r.yield.confidence * 100, 3)}%`;
-  const digits = yieldDigits(Math.min(r.yield.interval[0], r.chip.interval[0]));
-  const yv = (path: string, y: number): string => num(y, y === 1 ? '1' : yieldText(y, digits), { path });
+  const yv = (path: string, y: number, lo: number): string => num(y, y === 1 ? '1' : yieldText(y, yieldDigits(lo)), { path });
   const items: [string, string][] = [
     [`sigma of the ${d.stage.figure.name}`, `${num(r.offset.sigma, q(r.offset.sigma, u), { path: 'offset.sigma', unit: u })} <small>(${c} [${num(r.offset.sigmaInterval[0], q(r.offset.sigmaInterval[0], u), { path: 'offset.sigmaInterval.0', unit: u })}, ${num(r.offset.sigmaInterval[1], q(r.offset.sigmaInterval[1], u), { path: 'offset.sigmaInterval.1', unit: u })}])</small>`],
     ['spec', `${d.stage.figure.sides === 'both' ? '\u00b1' : '\u2264 '}${num(r.yield.spec, q(r.yield.spec, u), { path: 'yield.spec', unit: u })} <small>(${plain(r.analytic.gaussian.sigmaLevel, 3)} sigma)</small>`],
-    ['instance yield', `${yv('yield.estimate', r.yield.estimate)} <small>(Monte Carlo, ${r.yield.failures} failures)</small>`],
-    [`chip yield (${r.chip.instances})`, `${yv('chip.estimate', r.chip.estimate)}`],
+    ['instance yield', `${yv('yield.estimate', r.yield.estimate, r.yield.interval[0])} <small>(Monte Carlo, ${r.yield.failures} failures)</small>`],
+    [`chip yield (${r.chip.instances})`, yv('chip.estimate', r.chip.estimate, r.chip.interval[0])],
   ];
   if (r.importance !== undefined) items.push(['high-sigma failure', `${num(r.importance.failureProbability, plain(r.importance.failureProbability, 4), { path: 'importance.failureProbability' })} <small>(importance sampling)</small>`]);
   const m = d.area.meets;

@@ -64,13 +64,13 @@ export function distributionSection(d: ReportData): Section {
   });
   const tails = d.distribution.tails;
   const heavy = tails.filter((t) => Math.abs(t.standardErrors) > TAIL_Z);
-  const tailText = tails.map((t) => `${plain(t.p * 100, 3)}% quantile ${percent(Math.abs(t.relative), 2)} ${t.relative >= 0 ? 'beyond' : 'inside'} the line (${minus(t.standardErrors.toFixed(1))} standard errors)`).join(', ');
+  const tailText = tails.map((t) => `the ${plain(t.p * 100, 3)}% quantile lies ${percent(Math.abs(t.relative), 2)} ${t.relative >= 0 ? 'beyond' : 'inside'} the line (${minus(t.standardErrors.toFixed(1))} standard errors)`).join(', ');
   const probReading =
     tails.length === 0
       ? `Points on the line mean Gaussian tails; ${r.evaluated} samples are too few to judge the 0.1% quantiles (at least 10000 are needed).`
       : heavy.length === 0
-        ? `The points follow the line out to ${plain(Math.max(-zLo, zHi), 3)} sigma: the tails are Gaussian within sampling error (${tailText}).`
-        : `The tails are not Gaussian: ${tailText}; ${heavy.some((t) => t.relative > 0) ? 'a heavier tail than the Gaussian makes the Gaussian yield estimate optimistic' : 'a lighter tail makes the Gaussian yield estimate pessimistic'}.`;
+        ? `The points follow the line out to ${plain(Math.max(-zLo, zHi), 3)} sigma, so the tails are Gaussian within sampling error: ${tailText}.`
+        : `The tails are not Gaussian: ${tailText}. ${heavy.some((t) => t.relative > 0) ? 'A heavier tail than the Gaussian makes the Gaussian yield estimate optimistic.' : 'A lighter tail makes the Gaussian yield estimate pessimistic.'}`;
 
   const kt = d.distribution.kurtosis;
   const agree = r.analytic.agreement;

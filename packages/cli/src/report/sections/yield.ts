@@ -25,7 +25,9 @@ export function yieldSection(d: ReportData): Section {
   const g = r.analytic.gaussian;
   const is = r.importance;
   const c = `${plain(y.confidence * 100, 3)}%`;
-  const digits = yieldDigits(Math.min(y.interval[0], r.chip.interval[0], g.yield));
+  // Each row gets the decimals that show its own failure part (an interval shares its estimate's).
+  const dInstance = yieldDigits(Math.min(y.interval[0], g.yield));
+  const dChip = yieldDigits(Math.min(r.chip.interval[0], g.chipYield));
   const u = d.stage.figure.unit;
 
   // The forest plot: each estimate of the instance failure probability with its interval.
@@ -68,10 +70,10 @@ export function yieldSection(d: ReportData): Section {
 
   const cells: [string, string][] = [
     ['failures', `${num(y.failures, String(y.failures), { path: 'yield.failures' })} of ${r.evaluated} (${num(y.failuresHigh, String(y.failuresHigh), { path: 'yield.failuresHigh' })} above, ${num(y.failuresLow, String(y.failuresLow), { path: 'yield.failuresLow' })} below the spec)`],
-    ['instance yield', `${yieldNum('yield.estimate', y.estimate, digits)}${y.failures === 0 ? ' (no failures seen)' : ''}   ${c} [${yieldNum('yield.interval.0', y.interval[0], digits)}, ${yieldNum('yield.interval.1', y.interval[1], digits)}] (${esc(y.method)})`],
+    ['instance yield', `${yieldNum('yield.estimate', y.estimate, dInstance)}${y.failures === 0 ? ' (no failures seen)' : ''}   ${c} [${yieldNum('yield.interval.0', y.interval[0], dInstance)}, ${yieldNum('yield.interval.1', y.interval[1], dInstance)}] (${esc(y.method)})`],
     ['failure probability', `${pNum('yield.failure.estimate', y.failure.estimate)}   ${c} [${pNum('yield.failure.interval.0', y.failure.interval[0])}, ${pNum('yield.failure.interval.1', y.failure.interval[1])}]`],
-    ['Gaussian estimate', `${yieldNum('analytic.gaussian.yield', g.yield, digits)} (failure ${pNum('analytic.gaussian.failure', g.failure)}; spec / linearised sigma = ${num(g.sigmaLevel, plain(g.sigmaLevel, 4), { path: 'analytic.gaussian.sigmaLevel' })})`],
-    [`chip yield (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, `${yieldNum('chip.estimate', r.chip.estimate, digits)}   ${c} [${yieldNum('chip.interval.0', r.chip.interval[0], digits)}, ${yieldNum('chip.interval.1', r.chip.interval[1], digits)}]; Gaussian ${yieldNum('analytic.gaussian.chipYield', g.chipYield, digits)}`],
+    ['Gaussian estimate', `${yieldNum('analytic.gaussian.yield', g.yield, yieldDigits(g.yield))} (failure ${pNum('analytic.gaussian.failure', g.failure)}; spec / linearised sigma = ${num(g.sigmaLevel, plain(g.sigmaLevel, 4), { path: 'analytic.gaussian.sigmaLevel' })})`],
+    [`chip yield (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, `${yieldNum('chip.estimate', r.chip.estimate, dChip)}   ${c} [${yieldNum('chip.interval.0', r.chip.interval[0], dChip)}, ${yieldNum('chip.interval.1', r.chip.interval[1], dChip)}]; Gaussian ${yieldNum('analytic.gaussian.chipYield', g.chipYield, dChip)}`],
   ];
   if (y.limitedBySamples && is === undefined) cells.push(['note', `only ${y.failures} failure(s) seen: the Monte Carlo yield is limited by the sample count`]);
   let points3 = '';
