@@ -18,7 +18,7 @@ function transferOf(d: Design) {
 
 describe('the pair solve', () => {
   it('splits the tail equally at t = 0 between equal devices, and mirrors under exchange (identity)', () => {
-    expect(pairShare(0, 0.3, 0.3)).toEqual([0.5, 0.5]);
+    expect(pairShare(0, 0.3, 0.3)).toEqual([0.5, 0.5, 0]);
     fc.assert(
       fc.property(fc.double({ min: -40, max: 40, noNaN: true }), fc.double({ min: 1e-6, max: 1e3, noNaN: true }), fc.double({ min: 1e-6, max: 1e3, noNaN: true }), (t, a1, a2) => {
         const [f, g] = pairShare(t, a1, a2);

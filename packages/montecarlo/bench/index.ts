@@ -1,7 +1,8 @@
 /**
  * Speed and memory benchmark (`pnpm bench`): ns/sample of the chunk function in one thread,
  * samples/s of whole runs with 1 and with all workers, peak memory of a 1e8-sample run that
- * keeps no samples, and the wall time of a 6-sigma high-sigma estimate through the CLI.
+ * keeps no samples, the wall time of a 6-sigma high-sigma estimate through the CLI, and the wall
+ * time of a design-review report at 1e6 samples (../../cli/bench/report.ts).
  * It prints figures; it asserts nothing (targets are checked by reading them).
  */
 import { execFileSync } from 'node:child_process';
@@ -11,6 +12,7 @@ import { compileStage, linearisedSigma, type Design } from '@twinfet/core';
 import { createExecutor, defaultWorkers, simulate } from '@twinfet/montecarlo';
 import { runChunk } from '../src/engine/chunk.js';
 import { loadDesign } from '../../cli/dist/designFile.js';
+import { reportBench } from '../../cli/bench/report.js';
 
 const root = fileURLToPath(new URL('../../../', import.meta.url));
 const examples = ['weak-inversion-wta', 'sense-amp-pmos', 'comparator-demo'];
@@ -114,3 +116,5 @@ console.log(`  pool start-up plus one 131072-sample run with ${defaultWorkers()}
   console.log('');
   console.log(`tail: 6 sigma (spec ${spec}) on comparator-demo: p = ${r.failureProbability.toExponential(3)} +-${(r.relativeHalfWidth * 100).toFixed(1)}% from ${r.samples} samples; wall ${times[0]!.toFixed(0)}-${times[times.length - 1]!.toFixed(0)} ms (median ${times[2]!.toFixed(0)} ms) including Node start-up; plain Monte Carlo would need ${r.equivalentPlainSamples.toExponential(2)} samples`);
 }
+
+reportBench(quick);

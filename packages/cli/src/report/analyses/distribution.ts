@@ -77,8 +77,13 @@ function plotRanks(n: number): number[] {
  * solve failed, are left out as in every other statistic).
  */
 export function distributionFromSamples(report: RunReport, offsets: Float64Array): DistributionStudy {
-  const sorted = Float64Array.from(offsets.filter((x) => x === x)).sort();
-  const n = sorted.length;
+  const kept = new Float64Array(offsets.length);
+  let n = 0;
+  for (let i = 0; i < offsets.length; i++) {
+    const x = offsets[i]!;
+    if (x === x) kept[n++] = x;
+  }
+  const sorted = kept.subarray(0, n).sort();
   let mean = 0;
   for (let i = 0; i < n; i++) mean += sorted[i]!;
   mean /= n;

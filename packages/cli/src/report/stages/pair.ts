@@ -26,32 +26,33 @@ function shares(y: number): [number, number] {
 
 /**
  * The share f = I1 / I_B (and 1 - f) of a pair whose normalised input is t, given
- * a1 = I_S1 / I_B and a2 = I_S2 / I_B. Newton's method on the logit of f, guarded by bisection;
- * it starts from the weak-inversion solution y = t + ln(a1 / a2), which is exact there.
+ * a1 = I_S1 / I_B and a2 = I_S2 / I_B, and the logit y = ln(f / (1 - f)) of the solution (a
+ * good start for a neighbouring t). Newton's method on y, guarded by bisection; it starts from
+ * `start`, or from the weak-inversion solution y = t + ln(a1 / a2), which is exact there.
  * Returns NaN shares when t is beyond what doubles can resolve (|y| > 600).
- * @example pairShare(0, 0.1, 0.1) // [0.5, 0.5]
+ * @example pairShare(0, 0.1, 0.1) // [0.5, 0.5, 0]
  */
-export function pairShare(t: number, a1: number, a2: number): [number, number] {
+export function pairShare(t: number, a1: number, a2: number, start?: number): [number, number, number] {
   let lo = -Y_LIMIT;
   let hi = Y_LIMIT;
-  let y = Math.min(hi, Math.max(lo, t + Math.log(a1 / a2)));
+  let y = Math.min(hi, Math.max(lo, start ?? t + Math.log(a1 / a2)));
   const tol = T_TOLERANCE * Math.max(1, Math.abs(t));
   for (let k = 0; k < 200; k++) {
     const [f, g] = shares(y);
     const v1 = ekvInverse(f / a1);
     const v2 = ekvInverse(g / a2);
     const r = v1 - v2 - t;
-    if (Math.abs(r) <= tol) return [f, g];
+    if (Math.abs(r) <= tol) return [f, g, y];
     if (r > 0) hi = y;
     else lo = y;
     // dt/dy = f g [1 / (a1 F'(v1)) + 1 / (a2 F'(v2))], from dv/d(IC) = 1 / F'(v).
     const slope = f * g * (1 / (a1 * ekvForwardDerivative(v1)) + 1 / (a2 * ekvForwardDerivative(v2)));
     let next = y - r / slope;
     if (!(next > lo && next < hi)) next = 0.5 * (lo + hi);
-    if (next === y || hi - lo < 1e-15 * Math.max(1, Math.abs(y))) return [f, g];
+    if (next === y || hi - lo < 1e-15 * Math.max(1, Math.abs(y))) return [f, g, y];
     y = next;
   }
-  return [Number.NaN, Number.NaN];
+  return [Number.NaN, Number.NaN, Number.NaN];
 }
 
 /** One device's mismatch in one instance: its threshold shift and current-factor exponent. */

@@ -44,9 +44,12 @@ export function pairTransfer(stage: Stage, outputQuantity: Quantity, output: Pai
     const m2 = slots[1]!;
     const a1 = (i1 * m1.specific) / c.tail;
     const a2 = (i1 * m2.specific) / c.tail;
+    // Neighbouring inputs have neighbouring solutions: each solve starts from the last one.
+    let start: number | undefined;
     for (let i = 0; i < xs.length; i++) {
       const t = (c.sign * xs[i]! - (m1.dVt - m2.dVt)) / c.nut;
-      const [f, g] = pairShare(t, a1, a2);
+      const [f, g, y] = pairShare(t, a1, a2, start);
+      start = Number.isFinite(y) ? y : undefined;
       out[i] = Number.isFinite(f) ? output(f, g, slots) : Number.NaN;
     }
   };
