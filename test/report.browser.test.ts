@@ -56,6 +56,20 @@ describe.skipIf(browser === null)('twinfet report in headless Chromium', () => {
       await page.setViewportSize({ width: 380, height: 800 });
       const overflow = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
       expect(overflow).toBeLessThanOrEqual(1);
+      // Print: at the text width of A4 (210 mm less the stylesheet's 2 x 12 mm margins, at 96 px
+      // per inch) nothing runs past the page, and both paper sizes print without error.
+      await page.emulateMedia({ media: 'print' });
+      await page.setViewportSize({ width: Math.floor(((210 - 24) / 25.4) * 96), height: 1000 });
+      const printOverflow = await page.evaluate(() => document.documentElement.scrollWidth - document.documentElement.clientWidth);
+      expect(printOverflow).toBeLessThanOrEqual(1);
+      for (const format of ['A4', 'Letter'] as const) {
+        const pdf = await page.pdf({ format, printBackground: true });
+        const pages = (pdf.toString('latin1').match(/\/Type\s*\/Page[^s]/g) ?? []).length;
+        // Seven sections with nine figures: more than a few pages, far fewer than one per figure and table.
+        expect(pages, `${format} pages`).toBeGreaterThan(4);
+        expect(pages, `${format} pages`).toBeLessThan(25);
+      }
+      await page.emulateMedia({ media: 'screen' });
       await page.setViewportSize({ width: 1100, height: 1400 });
       const png = await page.screenshot({ fullPage: true });
       writeFileSync(join(dir, 'review.png'), png);

@@ -2,6 +2,7 @@ import { describe, expect, it } from 'vitest';
 import { categoryAxis, linearAxis, logAxis, logTickLabel, positioner } from '../src/chart/axis.js';
 import { chartSvg, type Chart } from '../src/chart/chart.js';
 import { esc, px } from '../src/chart/svg.js';
+import { COLOR } from '../src/chart/style.js';
 import { expectWellFormedSvg, layerGroup, markerCentres, plotBox, svgTexts, textsOfClass } from './support/svg.js';
 
 // Axis rules of our own (common practice, no source): the domain is the data's range plus a
@@ -145,5 +146,27 @@ describe('chartSvg', () => {
     expect(a).toContain('id="one-clip-0"');
     expect(b).toContain('id="two-clip-0"');
     expect(() => chartSvg({ ...sampleChart(), id: 'not an id' })).toThrow(/chart id must be a word/);
+  });
+});
+
+/** CIE 1976 L* of an sRGB colour (IEC 61966-2-1 transfer function, D65 luminance weights). */
+function lightness(hex: string): number {
+  const lin = (c: number): number => (c <= 0.04045 ? c / 12.92 : ((c + 0.055) / 1.055) ** 2.4);
+  const [r, g, b] = [1, 3, 5].map((i) => lin(parseInt(hex.slice(i, i + 2), 16) / 255)) as [number, number, number];
+  const y = 0.2126 * r + 0.7152 * g + 0.0722 * b;
+  return y > 216 / 24389 ? 116 * Math.cbrt(y) - 16 : (y * 24389) / 27;
+}
+
+describe('grey-scale print', () => {
+  it('gives the colours the lightness the style documents, within 1 L*', () => {
+    const documented: Record<keyof typeof COLOR, number> = { fill: 76, fillEdge: 52, main: 33, fit: 43, second: 70, limit: 10, bandWide: 89, bandNarrow: 82 };
+    for (const [k, l] of Object.entries(documented)) expect(Math.abs(lightness(COLOR[k as keyof typeof COLOR]) - l), k).toBeLessThan(1);
+  });
+
+  it('keeps the series drawn together apart in grey: data fill against its fit, points against each other', () => {
+    // 15 L* is a clearly visible step in print (common practice, no source).
+    expect(lightness(COLOR.fill) - lightness(COLOR.fit)).toBeGreaterThan(15);
+    expect(lightness(COLOR.second) - lightness(COLOR.main)).toBeGreaterThan(15);
+    expect(lightness(COLOR.bandNarrow) - lightness(COLOR.main)).toBeGreaterThan(15);
   });
 });

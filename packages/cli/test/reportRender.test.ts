@@ -76,4 +76,11 @@ describe('the page renderer', () => {
     expect(html.indexOf(CAUTION)).toBeGreaterThan(0);
     expect(html.indexOf(CAUTION)).toBeLessThan(html.indexOf('<section'));
   });
+
+  it('keeps section 7 for a stage type without a transfer curve, saying why', () => {
+    const d = doc(renderReport({ ...data, transfer: { none: 'the report has no transfer-curve definition for the x stage yet' } }));
+    const s = d.querySelector('section#transfer')!;
+    expect(s.querySelectorAll('figure')).toHaveLength(0);
+    expect(s.textContent).toContain('No transfer curve: the report has no transfer-curve definition for the x stage yet.');
+  });
 });

@@ -3,13 +3,20 @@ import { simulateWithSamples } from '@twinfet/montecarlo';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { mirrorDesign, simpleDesign, demoProcess } from '../../core/test/designs.js';
-import { firstDraws, studyTransfer } from '../src/report/analyses/transfer.js';
+import { firstDraws, studyTransfer, type TransferStudy } from '../src/report/analyses/transfer.js';
 import { pairShare } from '../src/report/stages/pair.js';
 import { reportStageFor } from '../src/report/stages/registry.js';
 
 const pMirror: Design = { ...mirrorDesign, name: 'p-input mirror (invented)', input: { polarity: 'p', w: 6e-6, l: 1e-6 }, load: { polarity: 'n', w: 2e-6, l: 2e-6 } };
 const pSimple: Design = { ...simpleDesign, name: 'p-input simple (invented)', input: { polarity: 'p', w: 24e-6, l: 1.5e-6 } };
 const designs = [simpleDesign, mirrorDesign, pSimple, pMirror];
+
+/** The study, which must have found its instances' balance points. */
+function studied(...args: Parameters<typeof studyTransfer>): TransferStudy {
+  const s = studyTransfer(...args);
+  if ('none' in s) throw new Error(s.none);
+  return s;
+}
 
 function transferOf(d: Design) {
   const stage = compileStage(d);
@@ -38,7 +45,7 @@ describe('transfer curves of the pair stages', () => {
   it('each instance balances exactly where the exact model puts its offset (simple, mirror; n and p inputs)', () => {
     for (const d of designs) {
       const { stage, t } = transferOf(d);
-      const study = studyTransfer(stage, t, 'transfer-check', 60);
+      const study = studied(stage, t, 'transfer-check', 60);
       const draws = firstDraws('transfer-check', stage.dimension, 60);
       study.balances.forEach((x, k) => {
         // Both solves stop at ~1e-15 V; 1e-12 V is a thousand times that (offsets are ~mV).
@@ -61,7 +68,7 @@ describe('transfer curves of the pair stages', () => {
   it('has the slope of one input device at balance: Gm = gm (Razavi, Design of Analog CMOS Integrated Circuits, 2nd ed., 2017, ch. 4 and 5)', () => {
     for (const d of designs) {
       const { stage, t } = transferOf(d);
-      const s = studyTransfer(stage, t, 'slope', 20).slope;
+      const s = studied(stage, t, 'slope', 20).slope;
       // Central difference at 1e-6 of the close-up's width: truncation and rounding below 1e-9 relative.
       expect(Math.abs(Math.abs(s.nominal) / stage.operatingPoint[0]!.gm - 1)).toBeLessThan(1e-6);
     }
@@ -104,5 +111,18 @@ describe('transfer curves of the pair stages', () => {
       expect(Math.min(Math.abs(out[0]!), Math.abs(out[1]!)) / d.tail).toBeGreaterThan(0.98);
       expect(Math.sign(out[0]!)).toBe(-Math.sign(out[1]!));
     }
+  });
+
+  it('says so, rather than drawing, when the instances reach no balance in the span', () => {
+    const { stage, t } = transferOf(simpleDesign);
+    const never = { ...t, evaluate: (_u: Float64Array, _b: number, xs: Float64Array, out: Float64Array) => out.fill(Number.NaN, 0, xs.length) };
+    const s = studyTransfer(stage, never, 'none', 10);
+    expect('none' in s && s.none).toBe('only 0 of 10 sampled instances (and not the nominal stage) reach balance within the drawn input range');
+  });
+
+  it('has a report definition for every stage type the core compiles today, and none for others', () => {
+    expect(reportStageFor('simple')?.figure.unit).toBe('V');
+    expect(reportStageFor('mirror')?.figure.sides).toBe('both');
+    expect(reportStageFor('no-such-stage')).toBeUndefined();
   });
 });

@@ -31,19 +31,19 @@ export const GRID = '#e4e4e4';
 export const COLOR = {
   /** Sampled data drawn as fills (histogram bars, budget bars): light blue, L* 76. */
   fill: '#a7bfdb',
-  /** Outline of those fills: mid blue, L* 50. */
+  /** Outline of those fills: mid blue, L* 52. */
   fillEdge: '#5b7fa8',
   /** The main series (points, nominal curve): dark blue, L* 33. */
   main: '#24507f',
-  /** A fitted or reference curve beside the data: brick red, L* 42. */
+  /** A fitted or reference curve beside the data: brick red, L* 43. */
   fit: '#b0402a',
   /** A second series of points: amber, L* 70 (drawn with a dark outline). */
   second: '#e0a030',
-  /** Limits and targets: near black, always dashed. */
+  /** Limits and targets: near black (L* 10), always dashed. */
   limit: '#1b1b1b',
-  /** Wide percentile band: pale blue, L* 88. */
+  /** Wide percentile band: pale blue, L* 89. */
   bandWide: '#d5e2f0',
-  /** Narrow band or a highlighted range: L* 80. */
+  /** Narrow band or a highlighted range: L* 82. */
   bandNarrow: '#b9cde4',
 } as const;
 

@@ -8,8 +8,6 @@ import { writeOutputFile } from '../files.js';
 import { withInterrupt } from '../interrupt.js';
 import { parseCount, parseFraction } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
-import { collectReport } from '../report/collect.js';
-import { renderReport } from '../report/page.js';
 
 interface ReportFlags extends CommonFlags {
   out?: string;
@@ -42,6 +40,8 @@ export function registerReport(program: Command, io: Io, setExit: (code: number)
     const samples = flags.samples === undefined ? 100_000 : parseCount(flags.samples, '--samples', REPORT_MIN_SAMPLES, 1e12);
     const chipYield = flags.chipYield === undefined ? DEFAULT_CHIP_YIELD : parseFraction(flags.chipYield, '--chip-yield', '0.99');
     const design = await loadDesign(file);
+    // Loaded on demand: the other commands do not pay for the report's modules at start-up.
+    const [{ collectReport }, { renderReport }] = await Promise.all([import('../report/collect.js'), import('../report/page.js')]);
     const seed = common.seed ?? DEFAULT_SEED;
     const command = [
       'twinfet', 'report', file, '--out', flags.out,

@@ -13,8 +13,6 @@ import { textHistogram } from '../textHistogram.js';
 import { renderBudget, yieldDigits, yieldFromFailure, yieldText } from './inspect.js';
 import { renderTail } from './tail.js';
 import { writeOutputFile } from '../files.js';
-import { chartSvg } from '../chart/chart.js';
-import { runHistogramChart } from '../runHistogram.js';
 
 interface RunFlags extends CommonFlags {
   samples?: string;
@@ -78,7 +76,9 @@ async function writeSamplesCsv(path: string, outcome: RunOutcome): Promise<void>
 }
 
 /** The histogram plot of a run. */
-export function runPlot(report: RunReport, title: string): string {
+export async function runPlot(report: RunReport, title: string): Promise<string> {
+  // Loaded on demand, so a run without --plot does not load the plotting code.
+  const [{ chartSvg }, { runHistogramChart }] = await Promise.all([import('../chart/chart.js'), import('../runHistogram.js')]);
   return chartSvg(runHistogramChart(report, { title }));
 }
 
@@ -178,7 +178,7 @@ export function registerRun(program: Command, io: Io, setExit: (code: number) =>
     const report = outcome.report;
     assertFinite(report);
     if (flags.samplesOut !== undefined) await writeSamplesCsv(flags.samplesOut, outcome);
-    if (flags.plot !== undefined) await writeOutputFile(flags.plot, '--plot', runPlot(report, `${design.name}: offset distribution`));
+    if (flags.plot !== undefined) await writeOutputFile(flags.plot, '--plot', await runPlot(report, `${design.name}: offset distribution`));
     if (flags.json === true) printJson(io, report);
     else io.out(renderRun(report, design));
     setExit(report.partial ? 130 : 0);

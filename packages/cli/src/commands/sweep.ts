@@ -7,7 +7,7 @@ import { loadDesign } from '../designFile.js';
 import { writeOutputFile } from '../files.js';
 import { parseCount, parseFraction } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
-import { sweepSvg, type SweepPoint } from '../plot.js';
+import type { SweepPoint } from '../plot.js';
 import { withInterrupt } from '../interrupt.js';
 import { renderTable } from '../table.js';
 import { plotAxis, sweepField, sweepValues, withField, type SweepField } from '../sweepField.js';
@@ -263,6 +263,8 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
         yieldHi: p.monteCarlo.yieldInterval[1],
         ...(p.importance === null ? {} : { tailFailure: p.importance.failure, tailLo: p.importance.interval[0], tailHi: p.importance.interval[1] }),
       }));
+      // Loaded on demand, so a sweep without --plot does not load the plotting code.
+      const { sweepSvg } = await import('../plot.js');
       const svg = sweepSvg({
         title: `${design.name}: offset against ${f.path}`,
         field: f.path,

@@ -90,6 +90,7 @@ export async function collectReport(design: Design, o: CollectOptions): Promise<
       stage: {
         topology: stage.topology,
         description: def === undefined ? null : def.describe(design),
+        // Without a report definition the core Stage's per-sample value is still its offset in volts.
         figure: def?.figure ?? OFFSET_FIGURE,
         variables: stage.variables.map((v) => ({ device: v.device, role: v.role, parameter: v.parameter, sigma: v.sigma, rho: v.rho })),
       },

@@ -55,6 +55,10 @@ footer { margin-top: 3rem; padding-top: 0.5rem; border-top: 1px solid #b5b5b5; c
   p.table-title { break-after: avoid; }
   figure.plot svg { max-width: 100%; max-height: 120mm; }
   .table-wrap { overflow: visible; }
+  table { font-size: 7.5pt; }
+  table.pairs { font-size: 9pt; }
+  th, td { padding: 0.1rem 0.25rem; }
+  thead th { white-space: normal; }
   nav.toc { display: none; }
   a { color: inherit; text-decoration: none; }
   code.command { background: none; border: 1px solid #b5b5b5; }

@@ -147,8 +147,11 @@ export function firstDraws(seed: string, dimension: number, count: number): Floa
   return u;
 }
 
-/** Runs the transfer study of a stage for the run seeded `seed`. */
-export function studyTransfer(stage: Stage, t: StageTransfer, seed: string, count = TRANSFER_INSTANCES): TransferStudy {
+/**
+ * Runs the transfer study of a stage for the run seeded `seed`; when fewer than two instances
+ * have a balance point in the span (a design far outside the model's range), says so instead.
+ */
+export function studyTransfer(stage: Stage, t: StageTransfer, seed: string, count = TRANSFER_INSTANCES): TransferStudy | { readonly none: string } {
   const dim = stage.dimension;
   const draws = firstDraws(seed, dim, count);
   const full = view(t, draws, dim, count, grid(t.span, FULL_POINTS));
@@ -161,6 +164,9 @@ export function studyTransfer(stage: Stage, t: StageTransfer, seed: string, coun
     const x = balancePoint(t, draws, k * dim, t.span[0], t.span[1]);
     balances.push(Number.isFinite(x) ? x : null);
     if (Number.isFinite(x)) slopes.push(slopeAt(t, draws, k * dim, x));
+  }
+  if (slopes.length < 2 || !Number.isFinite(nominalBalance)) {
+    return { none: `only ${slopes.length} of ${count} sampled instances${Number.isFinite(nominalBalance) ? '' : ' (and not the nominal stage)'} reach balance within the drawn input range` };
   }
   const sorted = Float64Array.from(slopes).sort();
   const mean = slopes.reduce((a, b) => a + b, 0) / slopes.length;
