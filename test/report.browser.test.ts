@@ -4,7 +4,7 @@
  * playwright-core. Under CI the browser must be there (.ci/run installs it); elsewhere the test
  * says why it skips.
  */
-import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';

@@ -6,7 +6,7 @@ import { shown } from '../../plot.js';
 import type { TransferStudy, TransferView } from '../analyses/transfer.js';
 import type { ReportData } from '../data.js';
 import { esc, figure, num, pairs, type Section } from '../html.js';
-import { displayQuantity, percent, plain, q } from '../units.js';
+import { displayQuantity, percent, q } from '../units.js';
 
 /** Bins of the slope-spread histogram. */
 const SLOPE_BINS = 24;
