@@ -5,7 +5,7 @@
  * Monte Carlo run and a short importance-sampling run), report its non-converged samples, and
  * stay sensible; values past the design limits must be refused naming the field.
  */
-import { compileStage, DESIGN_LIMITS, InputError, linearisedSigma, type Design, type TopologyName } from '@twinfet/core';
+import { compileStage, DESIGN_LIMITS, InputError, linearisedSigma, type Design, type DeviceGeometry, type TopologyName } from '@twinfet/core';
 import { estimateHighSigma, simulate, type RunReport, type HighSigmaReport } from '@twinfet/montecarlo';
 import { describe, expect, it } from 'vitest';
 import { runCli } from './support/cli.js';
@@ -34,14 +34,14 @@ function withBetaSigma(d: Design, fraction: number): Design {
     ...d,
     process: {
       n: { ...n, abeta: abetaFor(d.input.w, d.input.l) },
-      ...(d.load === undefined ? {} : { p: { ...p, abeta: abetaFor(d.load.w, d.load.l) } }),
+      ...(d.load === undefined ? {} : { p: { ...p, abeta: abetaFor((d.load as DeviceGeometry).w, (d.load as DeviceGeometry).l) } }),
     },
   };
 }
 
 /** Largest per-device sigma(dbeta/beta) of a design, fraction (Pelgrom 1989 per-device convention, DOMAIN.md). */
 function maxBetaSigma(d: Design): number {
-  const devices = d.load === undefined ? [d.input] : [d.input, d.load];
+  const devices = d['load'] === undefined ? [d.input] : [d.input, d['load'] as DeviceGeometry];
   return Math.max(...devices.map((g) => d.process[g.polarity]!.abeta / Math.sqrt(2 * g.w * g.l)));
 }
 
@@ -100,7 +100,7 @@ function expectFiniteAndSensible(d: Design, o: Outcome): void {
     // FORM on a nearly linear boundary: the sigma level is spec / sigma to 2% (Hasofer & Lind
     // 1974; 2% covers the small curvature from the beta term), also where the failure
     // probability itself underflows to 0 (the 1e3 and 1e5 um^2 pairs sit 50 to 600 sigma out).
-    expect(Math.abs(tail.form.sigmaLevel / (d.spec.offset / linear) - 1)).toBeLessThan(0.02);
+    expect(Math.abs(tail.form.sigmaLevel / (d.spec.offset! / linear) - 1)).toBeLessThan(0.02);
   }
 }
 

@@ -166,7 +166,7 @@ describe('the linear design really is linear (the premise of every truth above)'
     for (let j = 0; j < stage.dimension; j++) {
       u.fill(0);
       u[j] = 6;
-      const exact = stage.offset(u, 0);
+      const exact = stage.figure(u, 0);
       const lin = 6 * stage.sensitivities[j]!;
       // vt axes carry the offset; beta axes contribute ~1e-10 sigma, compared in absolute terms.
       expect(Math.abs(exact - lin)).toBeLessThan(1e-9 * sigma);

@@ -14,7 +14,9 @@ import { compileStage, isInputError, linearisedSigma, type Design } from '@twinf
 import { linearisedSummary } from '@twinfet/montecarlo';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { parseDesign } from '../packages/cli/src/designFile.js';
+import { parseDesign as parseText } from '@twinfet/core';
+
+const parseDesign = (text: string, source: string): Design => parseText(text, { source });
 import { nonFinitePaths } from './support/finite.js';
 
 type Data = Record<string, unknown>;
@@ -30,7 +32,7 @@ function mirrorData(): Data {
     load: { polarity: 'p', w: '4 um', l: '2 um' },
     process: {
       n: { vt0: '0.45 V', slope: 1.3, kp: '300 uA/V^2', avt: '5 mV*um', abeta: '1 %*um', rho: 0 },
-      p: { vt0: '0.50 V', slope: 1.35, kp: '90 uA/V^2', avt: '6.5 mV*um', abeta: '1.2 %*um', cox: '8.6 fF/um^2', wmin: '0.22 um', lmin: '0.18 um' },
+      p: { vt0: '0.50 V', slope: 1.35, kp: '90 uA/V^2', avt: '6.5 mV*um', abeta: '1.2 %*um', cox: '8.6 fF/um^2', min_w: '0.22 um', min_l: '0.18 um' },
     },
     spec: { offset: '10 mV', instances: 1 },
   };
@@ -53,7 +55,7 @@ const LEAVES: readonly (readonly string[])[] = [
   ['name'], ['temperature'], ['topology'], ['tail'],
   ['input', 'polarity'], ['input', 'w'], ['input', 'l'],
   ['load', 'polarity'], ['load', 'w'], ['load', 'l'],
-  ...['n', 'p'].flatMap((pol) => ['vt0', 'slope', 'kp', 'avt', 'abeta', 'rho', 'cox', 'wmin', 'lmin'].map((k) => ['process', pol, k])),
+  ...['n', 'p'].flatMap((pol) => ['vt0', 'slope', 'kp', 'avt', 'abeta', 'rho', 'cox', 'min_w', 'min_l'].map((k) => ['process', pol, k])),
   ['spec', 'offset'], ['spec', 'instances'],
   ['input'], ['load'], ['process'], ['process', 'n'], ['spec'],
 ];

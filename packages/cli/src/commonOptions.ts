@@ -1,5 +1,5 @@
 import { InputError, parseQuantity } from '@twinfet/core';
-import { defaultWorkers } from '@twinfet/montecarlo';
+import { defaultWorkers, RUN_LIMITS } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
 import { parseCount, parseFraction, parseSeed } from './options.js';
 
@@ -24,7 +24,7 @@ export function withCommonOptions(c: Command): Command {
 /** The parsed common options. */
 export function readCommon(flags: CommonFlags): { seed?: string; workers: number; confidence: number; spec?: number } {
   const out: { seed?: string; workers: number; confidence: number; spec?: number } = {
-    workers: flags.workers === undefined ? defaultWorkers() : parseCount(flags.workers, '--workers', 1, 256),
+    workers: flags.workers === undefined ? defaultWorkers() : parseCount(flags.workers, '--workers', ...RUN_LIMITS.workers),
     confidence: flags.confidence === undefined ? 0.95 : parseFraction(flags.confidence, '--confidence', '0.95'),
   };
   if (flags.seed !== undefined) out.seed = parseSeed(flags.seed);

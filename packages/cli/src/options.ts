@@ -1,4 +1,5 @@
-import { InputError } from '@twinfet/core';
+import { InputError, isInputError } from '@twinfet/core';
+import { seedText } from '@twinfet/montecarlo';
 
 /**
  * A whole number from the command line: accepts `100000`, `1e6`, `1_000_000`.
@@ -32,8 +33,12 @@ export function parseFraction(text: string, option: string, example: string): nu
   return x;
 }
 
-/** A seed: any non-empty text of at most 200 characters (numbers are taken as their text). */
+/** A seed: the library's rule (`seedText`), reported on `--seed`. */
 export function parseSeed(text: string): string {
-  if (text.length === 0 || text.length > 200) throw new InputError('--seed', `expected 1 to 200 characters, got ${text.length}`);
-  return text;
+  try {
+    return seedText(text);
+  } catch (e) {
+    if (!isInputError(e)) throw e;
+    throw new InputError('--seed', e.message.replace(/^seed: /, ''));
+  }
 }

@@ -40,10 +40,10 @@ export interface HistogramInput {
   mean: number;
   /** Sample standard deviation (> 0). */
   sigma: number;
-  /** Specification limit (> 0): rules at -spec and +spec, or at +spec only when `specSides` is 'upper'; none when absent. */
+  /** Specification limit (> 0): rules at -spec and +spec, or at +spec only when `specSides` is 'one'; none when absent. */
   spec?: number;
-  /** Which limits the spec sets (default both: |figure| <= spec). */
-  specSides?: 'both' | 'upper';
+  /** Which limits the spec sets: 'two' (the default) |figure| <= spec, 'one' figure <= spec. */
+  specSides?: 'two' | 'one';
   /** The figure's name and display unit (default: offset Vos in mV). */
   quantity?: DisplayQuantity;
   /** Extra line under the title (the sample statistics line is always shown). */
@@ -182,7 +182,7 @@ export function histogramChart(input: HistogramInput): Chart {
   // Expected count per bin is samples * width * pdf; with unequal widths (a short last group
   // after rebinning) the mean width is the one the curve is drawn for.
   const binWidth = (last - first) / nBins;
-  const upperOnly = input.specSides === 'upper';
+  const upperOnly = input.specSides === 'one';
   const spec = input.spec;
   const limits = spec === undefined ? [] : upperOnly ? [spec] : [-spec, spec];
   const xLo = Math.min(first, ...limits);

@@ -8,9 +8,9 @@ import type { Chart } from './chart/chart.js';
  * seen and what is allowed, not the histogram's whole +-10 sigma range (an upper-only spec adds
  * no lower line).
  */
-export function runBins(report: RunReport, specSides: 'both' | 'upper' = 'both'): { binEdges: number[]; counts: number[] } {
+export function runBins(report: RunReport, specSides: 'two' | 'one' = 'two'): { binEdges: number[]; counts: number[] } {
   const h = report.histogram;
-  const lo = Math.min(report.offset.min, specSides === 'both' ? -report.yield.spec : report.offset.min);
+  const lo = Math.min(report.offset.min, specSides === 'two' ? -report.yield.spec : report.offset.min);
   const hi = Math.max(report.offset.max, report.yield.spec);
   const first = Math.max(0, Math.floor((lo - h.lo) / h.binWidth));
   const last = Math.min(h.counts.length, Math.max(first + 1, Math.ceil((hi - h.lo) / h.binWidth)));
@@ -20,7 +20,7 @@ export function runBins(report: RunReport, specSides: 'both' | 'upper' = 'both')
 }
 
 /** The histogram chart of a run (the `run --plot` figure and the report's distribution figure). */
-export function runHistogramChart(report: RunReport, options: { title?: string; id?: string; quantity?: DisplayQuantity; specSides?: 'both' | 'upper' } = {}): Chart {
+export function runHistogramChart(report: RunReport, options: { title?: string; id?: string; quantity?: DisplayQuantity; specSides?: 'two' | 'one' } = {}): Chart {
   const input: HistogramInput = {
     ...runBins(report, options.specSides),
     samples: report.evaluated,

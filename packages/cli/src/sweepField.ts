@@ -2,8 +2,7 @@
  * The numeric design fields a sweep can step: their paths as written in a design file, what
  * they measure, how they are shown, and how a design is rebuilt with one of them changed.
  */
-import { InputError, type Design, type Dimension, type Polarity, type ProcessParams } from '@twinfet/core';
-import { closestWord } from './didYouMean.js';
+import { closestWord, InputError, lacksText, STAGES, stageDefinition, type Design, type Dimension, type Polarity, type StageDefinition } from '@twinfet/core';
 
 /** A sweepable field. */
 export interface SweepField {
@@ -18,7 +17,7 @@ export interface SweepField {
   readonly integer: boolean;
 }
 
-const PARAMS: readonly [keyof ProcessParams, Dimension, string, string][] = [
+const PARAMS: readonly [string, Dimension, string, string][] = [
   ['vt0', 'voltage', 'V', 'V'],
   ['slope', 'dimensionless', '', ''],
   ['kp', 'kp', 'A/V^2', 'A/V^2'],
@@ -26,39 +25,54 @@ const PARAMS: readonly [keyof ProcessParams, Dimension, string, string][] = [
   ['abeta', 'abeta', 'm', '%*um'],
   ['rho', 'dimensionless', '', ''],
   ['cox', 'cox', 'F/m^2', 'fF/um^2'],
-  ['wmin', 'length', 'm', 'm'],
-  ['lmin', 'length', 'm', 'm'],
+  ['min_w', 'length', 'm', 'm'],
+  ['min_l', 'length', 'm', 'm'],
 ];
+
+/** The SI field name of a process key (`min_w` is `minW`). */
+const PARAM_FIELD: Readonly<Record<string, string>> = { min_w: 'minW', min_l: 'minL' };
 
 const field = (path: string, dimension: Dimension, siUnit: string, tableUnit: string, integer = false): SweepField => ({ path, dimension, siUnit, tableUnit, integer });
 
-/** Every sweepable field, in the order the help text lists them. */
-export const SWEEP_FIELDS: readonly SweepField[] = [
-  field('input.w', 'length', 'm', 'm'),
-  field('input.l', 'length', 'm', 'm'),
-  field('load.w', 'length', 'm', 'm'),
-  field('load.l', 'length', 'm', 'm'),
-  field('tail', 'current', 'A', 'A'),
-  field('temperature', 'temperature', 'K', 'C'),
-  field('spec.offset', 'voltage', 'V', 'V'),
-  field('spec.instances', 'dimensionless', '', '', true),
-  ...(['n', 'p'] as const).flatMap((pol) => PARAMS.map(([k, d, si, t]) => field(`process.${pol}.${k}`, d, si, t))),
-];
+/** SI unit text of a dimension for CSV headers and tables. */
+const SI_UNIT: Readonly<Record<Dimension, string>> = {
+  voltage: 'V', current: 'A', length: 'm', area: 'm^2', temperature: 'K', kp: 'A/V^2', avt: 'V*m', abeta: 'm', cox: 'F/m^2', resistance: 'ohm', dimensionless: '',
+};
+
+/** The fields a sweep can step for one stage type, in the order the help text lists them. */
+export function sweepFields(def: StageDefinition): SweepField[] {
+  const out: SweepField[] = [];
+  for (const b of def.blocks) {
+    out.push(field(`${b.key}.w`, 'length', 'm', 'm'), field(`${b.key}.l`, 'length', 'm', 'm'), field(`${b.key}.area`, 'area', 'm^2', 'm^2'));
+    for (const f of b.fields) out.push(field(`${b.key}.${f.key}`, f.dimension, f.unit, f.unit, f.integer === true));
+  }
+  for (const f of def.fields) out.push(field(f.key, f.dimension, SI_UNIT[f.dimension], f.dimension === 'temperature' ? 'C' : f.unit, f.integer === true));
+  out.push(field('temperature', 'temperature', 'K', 'C'));
+  const fig = def.figure;
+  out.push(field(`spec.${fig.specKey}`, fig.dimension, SI_UNIT[fig.dimension], fig.unit), field('spec.instances', 'dimensionless', '', '', true));
+  for (const pol of ['n', 'p'] as const) for (const [k, d, si, t] of PARAMS) out.push(field(`process.${pol}.${k}`, d, si, t));
+  if (def.blocks.some((b) => b.kind === 'resistor')) out.push(field('process.resistor.ar', 'abeta', 'm', '%*um'));
+  return out;
+}
+
+/** Every sweepable field of any stage type (each path once). */
+export const SWEEP_FIELDS: readonly SweepField[] = [...new Map(STAGES.flatMap(sweepFields).map((f) => [f.path, f])).values()];
 
 /**
- * The field at `path`, checked against the design (a load field needs a mirror stage, a process
- * field needs that polarity's process).
+ * The field at `path`, checked against the design (a block the stage type has, a process entry
+ * the design has).
  * @throws InputError on `option` naming the accepted fields or the closest spelling
  */
 export function sweepField(path: string, design: Design, option = '--vary'): SweepField {
-  const f = SWEEP_FIELDS.find((x) => x.path === path);
+  const def = stageDefinition(design.topology);
+  const own = sweepFields(def);
+  const f = own.find((x) => x.path === path);
   if (f === undefined) {
-    const guess = closestWord(path, SWEEP_FIELDS.map((x) => x.path));
-    const hint = guess === undefined ? 'expected a numeric design field such as input.w, tail, temperature, spec.offset or process.n.avt' : `did you mean "${guess}"?`;
+    const elsewhere = SWEEP_FIELDS.find((x) => x.path === path);
+    if (elsewhere !== undefined) throw new InputError(option, `${path} needs ${lacksText(def, path.split('.')[0]!)}`);
+    const guess = closestWord(path, own.map((x) => x.path));
+    const hint = guess === undefined ? `expected a numeric design field such as input.w, ${def.fields[0]?.key ?? 'temperature'}, temperature, spec.${def.figure.specKey} or process.n.avt` : `did you mean "${guess}"?`;
     throw new InputError(option, `unknown field "${path}"; ${hint}`);
-  }
-  if (path.startsWith('load.') && design.load === undefined) {
-    throw new InputError(option, `${path} needs a mirror load, but this design is a simple stage (ideal loads)`);
   }
   const pol = /^process\.([np])\./.exec(path)?.[1] as Polarity | undefined;
   if (pol !== undefined && design.process[pol] === undefined) {
@@ -67,30 +81,40 @@ export function sweepField(path: string, design: Design, option = '--vary'): Swe
   return f;
 }
 
+/** The value of the field at `path` in SI units (undefined where the design leaves it out). */
+export function fieldValue(design: Design, path: string): number | undefined {
+  const [head, a, b] = path.split('.') as [string, string | undefined, string | undefined];
+  if (head === 'spec') return design.spec[a!];
+  if (head === 'process') {
+    const entry = (design.process as Record<string, Record<string, number> | undefined>)[a!];
+    return entry?.[PARAM_FIELD[b ?? 'ar'] ?? b ?? 'ar'];
+  }
+  if (a === undefined) return design[head] as number | undefined;
+  const g = (head === 'input' ? design.input : design[head]) as Record<string, number> | undefined;
+  if (g === undefined) return undefined;
+  return a === 'area' ? g['w']! * g['l']! : g[a];
+}
+
 /** The design with the field at `path` set to `valueSi` (SI units); the rest is unchanged. */
 export function withField(design: Design, path: string, valueSi: number): Design {
-  const [head, a, b] = path.split('.');
-  switch (head) {
-    case 'temperature':
-      return { ...design, temperature: valueSi };
-    case 'tail':
-      return { ...design, tail: valueSi };
-    case 'input':
-      return { ...design, input: { ...design.input, [a!]: valueSi } };
-    case 'load':
-      if (design.load === undefined) throw new Error('internal: load field of a simple stage');
-      return { ...design, load: { ...design.load, [a!]: valueSi } };
-    case 'spec':
-      return { ...design, spec: { ...design.spec, [a!]: valueSi } };
-    case 'process': {
-      const pol = a as Polarity;
-      const p = design.process[pol];
-      if (p === undefined) throw new Error(`internal: process.${pol} missing`);
-      return { ...design, process: { ...design.process, [pol]: { ...p, [b!]: valueSi } } };
-    }
-    default:
-      throw new Error(`internal: unknown sweep field ${path}`);
+  const [head, a, b] = path.split('.') as [string, string | undefined, string | undefined];
+  if (head === 'spec') return { ...design, spec: { ...design.spec, [a!]: valueSi } };
+  if (head === 'process') {
+    if (a === 'resistor') return { ...design, process: { ...design.process, resistor: { ar: valueSi } } };
+    const pol = a as Polarity;
+    const p = design.process[pol];
+    if (p === undefined) throw new Error(`internal: process.${pol} missing`);
+    return { ...design, process: { ...design.process, [pol]: { ...p, [PARAM_FIELD[b!] ?? b!]: valueSi } } };
   }
+  if (a === undefined) return { ...design, [head]: valueSi };
+  const g = (head === 'input' ? design.input : design[head]) as Record<string, number> | undefined;
+  if (g === undefined) throw new Error(`internal: block ${head} missing`);
+  if (a === 'area') {
+    // W and L scaled alike, so W/L (and so the inversion level at fixed bias) stays put.
+    const k = Math.sqrt(valueSi / (g['w']! * g['l']!));
+    return { ...design, [head]: { ...g, w: g['w']! * k, l: g['l']! * k } };
+  }
+  return { ...design, [head]: { ...g, [a]: valueSi } };
 }
 
 /**
@@ -115,6 +139,10 @@ export function plotAxis(f: SweepField, values: readonly number[]): { unit: stri
   switch (f.dimension) {
     case 'length':
       return { unit: 'um', scale: 1e6 };
+    case 'area':
+      return { unit: 'um^2', scale: 1e12 };
+    case 'resistance':
+      return big < 1e3 ? { unit: 'ohm', scale: 1 } : big < 1e6 ? { unit: 'kohm', scale: 1e-3 } : { unit: 'Mohm', scale: 1e-6 };
     case 'current':
       return big < 1e-6 ? { unit: 'nA', scale: 1e9 } : big < 1e-3 ? { unit: 'uA', scale: 1e6 } : { unit: 'mA', scale: 1e3 };
     case 'voltage':

@@ -4,10 +4,12 @@ import { mkdtemp, rm, writeFile, chmod } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { InputError, isInputError, validateDesign } from '@twinfet/core';
-import type { Design } from '@twinfet/core';
-import { loadDesign, parseDesign } from '../src/designFile.js';
-import { closestWord, editDistance } from '../src/didYouMean.js';
+import { closestWord, editDistance, InputError, isInputError, parseDesign as parseText, validateDesign } from '@twinfet/core';
+import type { Design, DeviceGeometry } from '@twinfet/core';
+import { loadDesign } from '../src/designFile.js';
+
+/** The library's reader with a source name, as the CLI calls it. */
+const parseDesign = (text: string, source: string): Design => parseText(text, { source });
 
 const EXAMPLES = fileURLToPath(new URL('../../../examples/', import.meta.url));
 
@@ -90,7 +92,7 @@ function balanceIc(d: Design): number {
   if (proc === undefined) throw new Error('test design lacks its process entry');
   const ut = (K_B * d.temperature) / Q_E;
   const is = 2 * proc.slope * proc.kp * (d.input.w / d.input.l) * ut * ut;
-  return d.tail / 2 / is;
+  return d.tail! / 2 / is;
 }
 
 describe('examples parse to the stated SI values', () => {
@@ -101,13 +103,14 @@ describe('examples parse to the stated SI values', () => {
     expect(d.name).toBe('Comparator front end (demo)');
     expect(d.topology).toBe('mirror');
     expect(Math.abs(d.temperature - 300.15)).toBeLessThanOrEqual(1e-9);
-    expectRelClose(d.tail, 1e-5, 1e-15);
+    expectRelClose(d.tail!, 1e-5, 1e-15);
     expect(d.input.polarity).toBe('n');
     expectRelClose(d.input.w, 2e-6, 1e-15);
     expectRelClose(d.input.l, 1e-6, 1e-15);
-    expect(d.load?.polarity).toBe('p');
-    expectRelClose(d.load?.w, 4e-6, 1e-15);
-    expectRelClose(d.load?.l, 2e-6, 1e-15);
+    const load = d['load'] as DeviceGeometry;
+    expect(load.polarity).toBe('p');
+    expectRelClose(load.w, 4e-6, 1e-15);
+    expectRelClose(load.l, 2e-6, 1e-15);
     expectRelClose(d.process.n?.vt0, 0.45, 1e-15);
     expectRelClose(d.process.n?.slope, 1.3, 1e-15);
     expectRelClose(d.process.n?.kp, 3e-4, 1e-15);
@@ -119,21 +122,21 @@ describe('examples parse to the stated SI values', () => {
     expectRelClose(d.process.p?.avt, 6.5e-9, 1e-15);
     expectRelClose(d.process.p?.abeta, 1.2e-8, 1e-15);
     expect(d.process.p?.rho).toBe(0); // default when absent
-    expectRelClose(d.spec.offset, 0.01, 1e-15);
+    expectRelClose(d.spec.offset!, 0.01, 1e-15);
     expect(d.spec.instances).toBe(1);
     // Absent optional keys are omitted, not set to undefined (exactOptionalPropertyTypes).
     expect(Object.keys(d.process.n ?? {})).not.toContain('cox');
-    expect(Object.keys(d.process.n ?? {})).not.toContain('wmin');
+    expect(Object.keys(d.process.n ?? {})).not.toContain('minW');
   });
 
   it('weak-inversion-wta.yaml (simple, n pair, weak inversion, 64 instances)', async () => {
     const d = await loadDesign(join(EXAMPLES, 'weak-inversion-wta.yaml'));
     expect(d.topology).toBe('simple');
     expect(d.temperature).toBe(300); // bare number is kelvin; exact
-    expectRelClose(d.tail, 2e-8, 1e-15);
+    expectRelClose(d.tail!, 2e-8, 1e-15);
     expectRelClose(d.input.w, 4e-6, 1e-15);
     expectRelClose(d.input.l, 4e-6, 1e-15);
-    expectRelClose(d.spec.offset, 0.005, 1e-15);
+    expectRelClose(d.spec.offset!, 0.005, 1e-15);
     expect(d.spec.instances).toBe(64);
     expect('load' in d).toBe(false);
     expect(d.process.p).toBeUndefined();
@@ -149,13 +152,13 @@ describe('examples parse to the stated SI values', () => {
     expect(d.topology).toBe('simple');
     expect(d.input.polarity).toBe('p');
     expect(Math.abs(d.temperature - 358.15)).toBeLessThanOrEqual(1e-9);
-    expectRelClose(d.tail, 5e-6, 1e-15);
+    expectRelClose(d.tail!, 5e-6, 1e-15);
     expectRelClose(d.input.w, 24e-6, 1e-15);
     expectRelClose(d.input.l, 1.5e-6, 1e-15);
     expectRelClose(d.process.p?.cox, 8.6e-3, 1e-15);
-    expectRelClose(d.process.p?.wmin, 2.2e-7, 1e-15);
-    expectRelClose(d.process.p?.lmin, 1.8e-7, 1e-15);
-    expectRelClose(d.spec.offset, 5e-3, 1e-15);
+    expectRelClose(d.process.p?.minW, 2.2e-7, 1e-15);
+    expectRelClose(d.process.p?.minL, 1.8e-7, 1e-15);
+    expectRelClose(d.spec.offset!, 5e-3, 1e-15);
     expect(d.spec.instances).toBe(1024);
     // Computed from the same EKV I_S: U_T(358.15 K) = 30.863 mV, I_S = 2*1.35*90e-6*16*U_T^2
     // = 3.703 uA, IC = 2.5 uA / 3.703 uA = 0.675; moderate is 0.1..10 (common practice).
@@ -318,14 +321,14 @@ describe('field problems (each one line, naming the field and the bad value)', (
     ['input.w', (d: Data) => (d.input.w = '-2 um'), '"-2 um"'],
     ['input.l', (d: Data) => (d.input.l = '0 um'), '"0 um"'],
     ['load.w', (d: Data) => (d.load.w = 0), 'got 0'],
-    ['tail', (d: Data) => (d.tail = '-10 uA'), '"-10 uA"'],
+    ['tail', (d: Data) => (d.tail! = '-10 uA'), '"-10 uA"'],
     ['process.n.kp', (d: Data) => (d.process.n.kp = '-1 uA/V^2'), '"-1 uA/V^2"'],
     ['process.n.avt', (d: Data) => (d.process.n.avt = '0 mV*um'), '"0 mV*um"'],
     ['process.n.abeta', (d: Data) => (d.process.n.abeta = '-1 %*um'), '"-1 %*um"'],
     ['process.n.cox', (d: Data) => (d.process.n.cox = '-8.6 fF/um^2'), '"-8.6 fF/um^2"'],
-    ['process.n.wmin', (d: Data) => (d.process.n.wmin = '0 um'), '"0 um"'],
-    ['process.p.lmin', (d: Data) => (d.process.p.lmin = -1e-7), 'got -1e-7'],
-    ['spec.offset', (d: Data) => (d.spec.offset = '0 mV'), '"0 mV"'],
+    ['process.n.min_w', (d: Data) => (d.process.n.min_w = '0 um'), '"0 um"'],
+    ['process.p.min_l', (d: Data) => (d.process.p.min_l = -1e-7), 'got -1e-7'],
+    ['spec.offset', (d: Data) => (d.spec.offset! = '0 mV'), '"0 mV"'],
   ])('%s must be > 0', (field, change, got) => {
     expectInputError(() => parseWith(change), field, `${field}: must be greater than 0`, got);
   });
@@ -344,7 +347,7 @@ describe('field problems (each one line, naming the field and the bad value)', (
     ['input.polarity', (d: Data) => (d.input.polarity = 'q'), 'expected n or p', 'got "q"'],
     ['input.polarity', (d: Data) => (d.input.polarity = 'N'), 'expected n or p', 'did you mean "n"?'],
     ['input.polarity', (d: Data) => (d.input.polarity = false), 'expected n or p', 'got false'],
-    ['topology', (d: Data) => (d.topology = 'cascode'), 'expected simple or mirror', 'got "cascode"'],
+    ['topology', (d: Data) => (d.topology = 'cascode'), 'expected simple, mirror or resistor', 'got "cascode"'],
     ['topology', (d: Data) => (d.topology = 'miror'), 'did you mean "mirror"?'],
     ['process.p.vt0', (d: Data) => (d.process.p.vt0 = '-0.5 V'), 'magnitudes', '"-0.5 V"'],
     ['process.n.vt0', (d: Data) => (d.process.n.vt0 = '0.45 A'), 'expected a voltage', '"0.45 A"'],
@@ -352,8 +355,8 @@ describe('field problems (each one line, naming the field and the bad value)', (
     ['process.n.avt', (d: Data) => (d.process.n.avt = '5 mV'), 'such as "5 mV*um"', '"5 mV"'],
     ['process.n.abeta', (d: Data) => (d.process.n.abeta = '1 %'), 'such as "1 %*um"', '"1 %"'],
     ['process.n.cox', (d: Data) => (d.process.n.cox = '8.6 fF'), 'such as "8.6 fF/um^2"', '"8.6 fF"'],
-    ['tail', (d: Data) => (d.tail = '10 uV'), 'expected a current such as "10 uA"', '"10 uV"'],
-    ['spec.offset', (d: Data) => (d.spec.offset = '10 mA'), 'expected a voltage', '"10 mA"'],
+    ['tail', (d: Data) => (d.tail! = '10 uV'), 'expected a current such as "10 uA"', '"10 uV"'],
+    ['spec.offset', (d: Data) => (d.spec.offset! = '10 mA'), 'expected a voltage', '"10 mA"'],
     ['name', (d: Data) => (d.name = 42), 'expected text', 'got 42', 'put it in quotes'],
     ['name', (d: Data) => (d.name = '  '), 'must not be empty'],
     ['input.w', (d: Data) => (d.input.w = { value: 2 }), 'expected a length', 'got an object'],
@@ -402,6 +405,11 @@ describe('field problems (each one line, naming the field and the bad value)', (
     expect(parseDesign(yaml('2 um'), 'ok.yaml').input.w).toBeCloseTo(2e-6, 18); // control: valid as written
     expectInputError(() => parseDesign(yaml('.nan'), 'n.yaml'), 'input.w', 'got NaN');
     expectInputError(() => parseDesign(yaml('.inf'), 'n.yaml'), 'input.w', 'got Infinity');
+  });
+
+  it('the old spellings wmin/lmin point to min_w/min_l (renamed: compact-model binning keys mean something else)', () => {
+    expectInputError(() => parseWith((d) => (d.process.n.wmin = '0.22 um')), 'process.n.wmin', 'did you mean "min_w"?');
+    expectInputError(() => parseWith((d) => (d.process.p.lmin = '0.18 um')), 'process.p.lmin', 'did you mean "min_l"?');
   });
 
   it('a prototype key is refused, never merged', () => {
@@ -544,7 +552,7 @@ describe('property: parseDesign returns a valid design or throws InputError, nev
     ['input', 'l'], ['load'], ['load', 'polarity'], ['load', 'w'], ['load', 'l'], ['process'], ['process', 'n'],
     ['process', 'p'], ['process', 'n', 'vt0'], ['process', 'n', 'slope'], ['process', 'n', 'kp'],
     ['process', 'n', 'avt'], ['process', 'n', 'abeta'], ['process', 'n', 'rho'], ['process', 'n', 'cox'],
-    ['process', 'p', 'wmin'], ['process', 'p', 'lmin'], ['spec'], ['spec', 'offset'], ['spec', 'instances'],
+    ['process', 'p', 'min_w'], ['process', 'p', 'min_l'], ['spec'], ['spec', 'offset'], ['spec', 'instances'],
   ];
   const plausible = fc.oneof(
     fc.constantFrom('2 um', '10 uA', '0.45 V', '5 mV*um', '1 %*um', '8.6 fF/um^2', '300 uA/V^2', '27 C', 'n', 'p', 'simple', 'mirror', '2 mA', '-1 um', ''),

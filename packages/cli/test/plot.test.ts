@@ -150,7 +150,7 @@ describe('histogramChart', () => {
   it('draws no spec line without a spec, and one line for an upper-only spec', () => {
     const { spec: _s, ...noSpec } = gaussianHistogram(40);
     expect(histogramChart(noSpec).panels[0]!.layers.filter((l) => l.kind === 'rule')).toHaveLength(0);
-    const upper = histogramChart({ ...gaussianHistogram(40), specSides: 'upper' });
+    const upper = histogramChart({ ...gaussianHistogram(40), specSides: 'one' });
     expect(upper.panels[0]!.layers.filter((l) => l.kind === 'rule').map((l) => (l as RuleLayer).value)).toEqual([5]);
   });
 

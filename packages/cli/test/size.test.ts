@@ -3,12 +3,13 @@ import { mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { compileStage, linearisedSigma, parseQuantity, type Design } from '@twinfet/core';
+import { compileStage, linearisedSigma, parseDesign as parseText, parseQuantity, shiftedDecimal, writeDesign as designToYaml, type Design } from '@twinfet/core';
 import { simulate } from '@twinfet/montecarlo';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { loadDesign, parseDesign } from '../src/designFile.js';
-import { designToYaml, shiftedDecimal } from '../src/designYaml.js';
+import { loadDesign } from '../src/designFile.js';
+
+const parseDesign = (text: string, source: string): Design => parseText(text, { source });
 
 const root = fileURLToPath(new URL('../../../', import.meta.url));
 const bin = join(root, 'packages/cli/bin/twinfet.js');
@@ -130,6 +131,6 @@ describe('twinfet size (end to end, the built CLI)', () => {
     }
     const simple = twinfet('size', senseAmp, '--sigma', '1mV', '--vary', 'load.area');
     expect(simple.code).toBe(2);
-    expect(simple.stderr.trimEnd()).toMatch(/^twinfet: --vary: load\.area needs a mirror load, but this design is a simple stage/);
+    expect(simple.stderr.trimEnd()).toMatch(/^twinfet: --vary: load\.area needs a load \(the mirror or resistor stages have one\), but this design is a simple stage/);
   });
 });

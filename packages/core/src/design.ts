@@ -1,15 +1,20 @@
 /**
- * A validated design in SI base units. The CLI's design-file loader produces it; library users
- * may build one directly and pass it to `compileStage` (which checks it again at the edge).
+ * A design in SI base units. `parseDesign` produces one from design-file text; library users may
+ * build one directly and pass it to `compileStage`, which checks it at the edge (`validateDesign`)
+ * with exactly the rules the design-file reader applies.
+ *
+ * The keys common to every stage type are typed here; the blocks a stage type owns (`load`,
+ * `sources`, `output`, `cells`, ...) are described by its definition in `stages/` and read
+ * through it, so adding a stage type changes nothing in this file.
  */
 
 /** Device polarity; a p-device is described by magnitudes (|V_T0|, |V_GS|). */
 export type Polarity = 'n' | 'p';
 
-/** `simple`: ideal equal loads. `mirror`: five-transistor stage with a current-mirror load. */
-export type TopologyName = 'simple' | 'mirror';
+/** The name of a stage type, as listed by the stage registry (`simple`, `mirror`, ...). */
+export type TopologyName = string;
 
-/** Process parameters of one polarity, SI units. */
+/** Process parameters of one MOS polarity, SI units. */
 export interface ProcessParams {
   /** Threshold voltage magnitude |V_T0|, volts. */
   readonly vt0: number;
@@ -21,31 +26,58 @@ export interface ProcessParams {
   readonly avt: number;
   /** Pelgrom current-factor matching coefficient A_beta, m (1 %*um = 0.01 * 1e-6 m = 1e-8 m). */
   readonly abeta: number;
-  /** Correlation between one device's dV_T and dbeta/beta draws, in [-1, 1]. */
-  readonly rho: number;
+  /** Correlation between one device's dV_T and dbeta/beta draws, in [-1, 1] (default 0). */
+  readonly rho?: number;
   /** Optional gate capacitance per area Cox, F/m^2 (for input capacitance). */
   readonly cox?: number;
-  /** Optional minimum drawn width of the process, m (for the small-device warning). */
-  readonly wmin?: number;
-  /** Optional minimum drawn length of the process, m (for the small-device warning). */
-  readonly lmin?: number;
+  /** Optional smallest drawn width of the process, m (design-file key `min_w`). */
+  readonly minW?: number;
+  /** Optional smallest drawn length of the process, m (design-file key `min_l`). */
+  readonly minL?: number;
 }
 
-/** One matched pair's geometry. */
+/** Matching of resistor bodies: per-resistor sigma(dR/R) = A_R / sqrt(2 W L). */
+export interface ResistorProcess {
+  /** A_R as fraction*m (0.5 %*um = 5e-9 m). */
+  readonly ar: number;
+}
+
+/** The process: one entry per MOS polarity used, and resistor matching where a stage has resistors. */
+export interface ProcessSet {
+  readonly n?: ProcessParams;
+  readonly p?: ProcessParams;
+  readonly resistor?: ResistorProcess;
+}
+
+/** The geometry of a matched pair (or of every cell) of MOS devices. */
 export interface DeviceGeometry {
   readonly polarity: Polarity;
   /** Gate width, m. */
   readonly w: number;
   /** Gate length, m. */
   readonly l: number;
+  /** Nominal drain current of each device, A, for blocks that set their own bias. */
+  readonly current?: number;
 }
 
-/** The offset limit and how many instances one chip holds. */
-export interface OffsetSpec {
-  /** |Vos| limit, volts. */
-  readonly offset: number;
+/** The body of a matched pair of resistors. */
+export interface ResistorGeometry {
+  /** Body width, m. */
+  readonly w: number;
+  /** Body length, m. */
+  readonly l: number;
+  /** Nominal resistance, ohms (optional: the offset depends only on the ratio). */
+  readonly r?: number;
+}
+
+/**
+ * The spec: the limit on the stage's figure under the figure's own key (`offset` for the
+ * differential stages, volts) and how many independent instances one chip holds.
+ */
+export interface Spec {
   /** Independent instances per chip (whole number >= 1). */
   readonly instances: number;
+  readonly [limit: string]: number;
 }
 
 /** A complete design in SI base units. */
@@ -54,13 +86,13 @@ export interface Design {
   /** Temperature, kelvin. */
   readonly temperature: number;
   readonly topology: TopologyName;
-  /** Tail current, amperes. */
-  readonly tail: number;
-  /** The input pair M1/M2. */
+  /** Tail current, amperes, for the stages that have one. */
+  readonly tail?: number;
+  /** The input devices (M1/M2 of a pair). Every stage type has them. */
   readonly input: DeviceGeometry;
-  /** The mirror load M3/M4: present exactly when topology is `mirror`. */
-  readonly load?: DeviceGeometry;
-  /** Process parameters per polarity; each polarity used by a device must be present. */
-  readonly process: { readonly n?: ProcessParams; readonly p?: ProcessParams };
-  readonly spec: OffsetSpec;
+  /** Process parameters; each polarity used by a device must be present. */
+  readonly process: ProcessSet;
+  readonly spec: Spec;
+  /** Blocks owned by the stage type, by design-file key (see the stage's definition). */
+  readonly [block: string]: unknown;
 }

@@ -1,9 +1,9 @@
-import type { Stage } from './stage.js';
-import type { DeviceName, DeviceRole, MismatchParameter } from './variables.js';
+import type { Stage } from './stages/definition.js';
+import type { MismatchParameter } from './variables.js';
 
 /**
- * First-order offset sigma from the sensitivities dVos/du (independent unit normals):
- * sigma^2 = sum_j (dVos/du_j)^2, volts.
+ * First-order sigma of the stage's figure from the sensitivities d(figure)/du (independent unit
+ * normals): sigma^2 = sum_j (d figure/du_j)^2, in the figure's unit.
  */
 export function linearisedSigma(stage: Stage): number {
   let s = 0;
@@ -13,8 +13,9 @@ export function linearisedSigma(stage: Stage): number {
 
 /** One line of the variance budget. */
 export interface BudgetEntry {
-  readonly device: DeviceName;
-  readonly role: DeviceRole;
+  readonly device: string;
+  /** The block the element belongs to (`input`, `load`). */
+  readonly role: string;
   readonly parameter: MismatchParameter;
   /** Contribution to sigma^2(Vos), V^2. */
   readonly variance: number;
@@ -35,9 +36,9 @@ export function varianceBudget(stage: Stage): BudgetEntry[] {
   });
 }
 
-/** The budget summed per (role, parameter): input vt, input beta, load vt, load beta. */
-export function groupedBudget(stage: Stage): { role: DeviceRole; parameter: MismatchParameter; variance: number; share: number }[] {
-  const out: { role: DeviceRole; parameter: MismatchParameter; variance: number; share: number }[] = [];
+/** The budget summed per (block, parameter): input vt, input beta, load vt, load beta, ... */
+export function groupedBudget(stage: Stage): { role: string; parameter: MismatchParameter; variance: number; share: number }[] {
+  const out: { role: string; parameter: MismatchParameter; variance: number; share: number }[] = [];
   for (const e of varianceBudget(stage)) {
     const g = out.find((o) => o.role === e.role && o.parameter === e.parameter);
     if (g === undefined) out.push({ role: e.role, parameter: e.parameter, variance: e.variance, share: e.share });

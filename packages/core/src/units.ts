@@ -14,6 +14,8 @@ export type Dimension =
   | 'voltage'
   | 'current'
   | 'length'
+  /** m^2 (a gate or resistor-body area) */
+  | 'area'
   | 'temperature'
   /** A/V^2 */
   | 'kp'
@@ -23,6 +25,8 @@ export type Dimension =
   | 'abeta'
   /** F/m^2 */
   | 'cox'
+  /** ohm */
+  | 'resistance'
   | 'dimensionless';
 
 /** Exponents of V, A, m, K, s, in that order. */
@@ -49,6 +53,7 @@ const UNITS: ReadonlyMap<string, UnitDef> = new Map<string, UnitDef>([
   ['F', { pow10: 0, dims: [-1, 1, 0, 0, 1], prefixable: true }],
   ['S', { pow10: 0, dims: [-1, 1, 0, 0, 0], prefixable: true }],
   ['Ω', { pow10: 0, dims: [1, -1, 0, 0, 0], prefixable: true }],
+  ['ohm', { pow10: 0, dims: [1, -1, 0, 0, 0], prefixable: true }],
   ['%', { pow10: -2, dims: NONE, prefixable: false }],
 ]);
 
@@ -86,11 +91,13 @@ const EXPECTED: Readonly<Record<Dimension, { dims: DimVector; what: string }>> =
   voltage: { dims: [1, 0, 0, 0, 0], what: 'a voltage such as "0.45 V"' },
   current: { dims: [0, 1, 0, 0, 0], what: 'a current such as "10 uA"' },
   length: { dims: [0, 0, 1, 0, 0], what: 'a length such as "2 um"' },
+  area: { dims: [0, 0, 2, 0, 0], what: 'an area such as "4 um^2"' },
   temperature: { dims: [0, 0, 0, 1, 0], what: 'a temperature such as "300 K" or "27 C"' },
   kp: { dims: [-2, 1, 0, 0, 0], what: 'a transconductance parameter such as "300 uA/V^2"' },
   avt: { dims: [1, 0, 1, 0, 0], what: 'a threshold matching coefficient such as "5 mV*um"' },
   abeta: { dims: [0, 0, 1, 0, 0], what: 'a current-factor matching coefficient such as "1 %*um"' },
   cox: { dims: [-1, 1, -2, 0, 1], what: 'a capacitance per area such as "8.6 fF/um^2"' },
+  resistance: { dims: [1, -1, 0, 0, 0], what: 'a resistance such as "20 kohm"' },
   dimensionless: { dims: NONE, what: 'a plain number such as "1.3"' },
 };
 

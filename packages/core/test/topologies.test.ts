@@ -6,7 +6,7 @@ import { ekvForward, ekvInverse } from '../src/ekv.js';
 import { InputError } from '../src/errors.js';
 import { groupedBudget, linearisedSigma, mirrorStageSigma, simpleStageSigma, varianceBudget } from '../src/linearised.js';
 import { pairSigma } from '../src/pelgrom.js';
-import type { Stage } from '../src/stage.js';
+import type { DeviceGeometry, Stage } from '../src/index.js';
 import { demoProcess, mirrorDesign, simpleDesign, withChanges } from './designs.js';
 
 const rel = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
@@ -47,14 +47,14 @@ describe('linearised sigma against the closed forms (reference values)', () => {
     if (d.topology === 'simple') {
       expected = simpleStageSigma(vtIn, bIn, 1 / m1!.gmOverId);
     } else {
-      const pl = d.process[d.load!.polarity]!;
+      const pl = d.process[(d.load as DeviceGeometry).polarity]!;
       expected = mirrorStageSigma(
         vtIn, bIn, 1 / m1!.gmOverId,
-        pairSigma(pl.avt, d.load!.w, d.load!.l), pairSigma(pl.abeta, d.load!.w, d.load!.l),
+        pairSigma(pl.avt, (d.load as DeviceGeometry).w, (d.load as DeviceGeometry).l), pairSigma(pl.abeta, (d.load as DeviceGeometry).w, (d.load as DeviceGeometry).l),
         m3!.gm / m1!.gm,
       );
     }
-    if (pi.rho === 0 && (d.load === undefined || d.process[d.load.polarity]!.rho === 0)) {
+    if (pi.rho === 0 && (d.load === undefined || d.process[(d.load as DeviceGeometry).polarity]!.rho === 0)) {
       expect(rel(linearisedSigma(st), expected)).toBeLessThan(1e-12);
     } else {
       // With rho != 0 the closed form (independent draws) no longer holds; the sensitivities
@@ -70,9 +70,9 @@ describe('linearised sigma against the closed forms (reference values)', () => {
     for (let j = 0; j < st.dimension; j++) {
       u.fill(0);
       u[j] = h;
-      const up = st.offset(u, 0);
+      const up = st.figure(u, 0);
       u[j] = -h;
-      const dn = st.offset(u, 0);
+      const dn = st.figure(u, 0);
       const fd = (up - dn) / (2 * h);
       // Central difference error ~ h^2 Vos'''/6 relative (~1e-8 at h = 1e-4 for sigmas of a few
       // percent) plus rounding ~1e-16 V / 1e-4: bound 1e-6 relative, or 1e-13 V absolute.
@@ -103,7 +103,7 @@ describe('offset properties (fast-check)', () => {
   it.each(all)('%s: zero mismatch gives zero offset', (_name, d) => {
     const st = compileStage(d);
     // Rounding only: the two sides compute identical expressions.
-    expect(Math.abs(st.offset(new Float64Array(st.dimension), 0))).toBeLessThan(1e-15);
+    expect(Math.abs(st.figure(new Float64Array(st.dimension), 0))).toBeLessThan(1e-15);
   });
 
   it.each(all)('%s: swapping the input devices\' draws negates the offset (load draws zero)', (_name, d) => {
@@ -112,9 +112,9 @@ describe('offset properties (fast-check)', () => {
       fc.property(unit, unit, unit, unit, (a, b, c, e) => {
         const u = new Float64Array(st.dimension);
         u.set([a, b, c, e]);
-        const x = st.offset(u, 0);
+        const x = st.figure(u, 0);
         u.set([c, e, a, b]);
-        const y = st.offset(u, 0);
+        const y = st.figure(u, 0);
         // Rounding of the balance solve (1e-12 relative on currents) ~ 1e-13 V.
         return Math.abs(x + y) <= 1e-12 + 1e-12 * Math.abs(x);
       }),
@@ -129,7 +129,7 @@ describe('offset properties (fast-check)', () => {
         const scaled: Design = {
           ...d,
           input: { ...d.input, w: d.input.w * r, l: d.input.l * r },
-          ...(d.load ? { load: { ...d.load, w: d.load.w * r, l: d.load.l * r } } : {}),
+          ...(d.load ? { load: { ...d.load, w: (d.load as DeviceGeometry).w * r, l: (d.load as DeviceGeometry).l * r } } : {}),
         };
         const ratio = linearisedSigma(compileStage(scaled)) / linearisedSigma(compileStage(d));
         // W/L kept, so IC and gm/I_D are unchanged: exact up to rounding (1e-12).
@@ -152,7 +152,7 @@ describe('offset properties (fast-check)', () => {
         const is2 = m1!.specificCurrent * Math.exp(m1!.sigmaBeta * e);
         const ut = st.thermalVoltage;
         const want = vt1 - vt2 + p.slope * ut * (ekvInverse(5e-6 / is1) - ekvInverse(5e-6 / is2));
-        return Math.abs(st.offset(u, 0) - want) < 1e-15 + 1e-12 * Math.abs(want);
+        return Math.abs(st.figure(u, 0) - want) < 1e-15 + 1e-12 * Math.abs(want);
       }),
       { seed: 3, numRuns: 500 },
     );
@@ -164,7 +164,7 @@ function mirrorReference(st: Stage, u: Float64Array): number {
   const d = st.design;
   const [m1, , m3] = st.operatingPoint;
   const ut = st.thermalVoltage;
-  const pl = d.process[d.load!.polarity]!;
+  const pl = d.process[(d.load as DeviceGeometry).polarity]!;
   const pi = d.process[d.input.polarity]!;
   const vt3 = m3!.sigmaVt * u[4]!;
   const vt4 = m3!.sigmaVt * u[6]!;
@@ -172,10 +172,10 @@ function mirrorReference(st: Stage, u: Float64Array): number {
   const is4 = m3!.specificCurrent * Math.exp(m3!.sigmaBeta * u[7]!);
   const i4 = (i1: number): number => is4 * ekvForward(ekvInverse(i1 / is3) - (vt4 - vt3) / (pl.slope * ut));
   let lo = 0;
-  let hi = d.tail;
+  let hi = d.tail!;
   for (let k = 0; k < 300 && hi - lo > 0; k++) {
     const mid = 0.5 * (lo + hi);
-    if (mid + i4(mid) < d.tail) lo = mid;
+    if (mid + i4(mid) < d.tail!) lo = mid;
     else hi = mid;
     if (mid === lo && mid === hi) break;
   }
@@ -183,7 +183,7 @@ function mirrorReference(st: Stage, u: Float64Array): number {
   const is1 = m1!.specificCurrent * Math.exp(m1!.sigmaBeta * u[1]!);
   const is2 = m1!.specificCurrent * Math.exp(m1!.sigmaBeta * u[3]!);
   const sign = d.input.polarity === 'n' ? 1 : -1;
-  return sign * (m1!.sigmaVt * (u[0]! - u[2]!) + pi.slope * ut * (ekvInverse(i1 / is1) - ekvInverse((d.tail - i1) / is2)));
+  return sign * (m1!.sigmaVt * (u[0]! - u[2]!) + pi.slope * ut * (ekvInverse(i1 / is1) - ekvInverse((d.tail! - i1) / is2)));
 }
 
 describe('mirror balance solve', () => {
@@ -194,7 +194,7 @@ describe('mirror balance solve', () => {
         fc.property(fc.array(unit, { minLength: 8, maxLength: 8 }), (arr) => {
           const u = Float64Array.from(arr);
           // Both solves stop at ~1e-12 relative current; dVos ~ n U_T * 2e-12 ~ 1e-13 V.
-          return Math.abs(st.offset(u, 0) - mirrorReference(st, u)) < 1e-11;
+          return Math.abs(st.figure(u, 0) - mirrorReference(st, u)) < 1e-11;
         }),
         { seed: 5, numRuns: 200 },
       );
@@ -215,7 +215,7 @@ describe('mirror balance solve', () => {
     const u = new Float64Array(n * 8);
     for (let i = 0; i < u.length; i++) u[i] = ((i * 7919) % 17) - 8; // deterministic values in [-8, 8]
     const out = new Float64Array(n);
-    expect(st.offsets(u, n, out, 0)).toBe(0);
+    expect(st.figures(u, n, out, 0)).toBe(0);
     for (const x of out) expect(Number.isFinite(x)).toBe(true);
   });
 });
@@ -225,7 +225,7 @@ describe('current-factor rule on a tiny device (sigma(dbeta/beta) = 30%)', () =>
     const side = Math.sqrt((1e-8 / 0.3) ** 2 / 2);
     const st = compileStage(withChanges(simpleDesign, { input: { polarity: 'n', w: side, l: side } }));
     for (const z of [-10, -5, 5, 10]) {
-      const x = st.offset(Float64Array.of(0, z, 0, 0), 0);
+      const x = st.figure(Float64Array.of(0, z, 0, 0), 0);
       expect(Number.isFinite(x)).toBe(true);
       // Log-normal rule: I_S1 = I_S exp(0.3 z) > 0; sign: a larger beta1 needs less V_G1.
       expect(Math.sign(x)).toBe(-Math.sign(z));

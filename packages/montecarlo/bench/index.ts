@@ -25,7 +25,7 @@ function chunkNs(design: Design): number {
     seed: 'bench',
     chunk: 0,
     count: 65_536,
-    spec: design.spec.offset,
+    spec: design.spec.offset!,
     histogram: { lo: -0.1, hi: 0.1, bins: 2000 },
     keepOffsets: false,
     keepDraws: false,

@@ -35,6 +35,7 @@ export {
   simulate,
   simulateWithSamples,
   QUANTILE_LEVELS,
+  RUN_LIMITS,
   KEEP_LIMIT,
   type IntervalMethod,
   type QuantileValue,

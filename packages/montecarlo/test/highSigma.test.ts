@@ -14,7 +14,7 @@ describe('design points (FORM)', () => {
   it('for a linear offset the design point is at distance spec/sigma along the sensitivities', () => {
     const st = compileStage(at(5));
     for (const side of [1, -1]) {
-      const p = findDesignPoint(st, side * 5 * sigmaLin);
+      const p = findDesignPoint(st, st.failureComponents(5 * sigmaLin)[side > 0 ? 0 : 1]!);
       expect(p.method).toBe('hl-rf');
       // Linear boundary: beta = spec/sigma exactly (Hasofer & Lind 1974); solve tolerance 1e-9.
       expect(Math.abs(p.distance - 5)).toBeLessThan(1e-6);
@@ -24,7 +24,7 @@ describe('design points (FORM)', () => {
   it('on the mirror stage the point lies on the exact boundary and FORM is near the Gaussian', () => {
     const st = compileStage(bigMirror);
     const spec = 5 * linearisedSigma(st);
-    const p = findDesignPoint(st, spec);
+    const p = findDesignPoint(st, st.failureComponents(spec)[0]!);
     expect(Math.abs(p.offset - spec)).toBeLessThan(1e-9 * spec);
     // Small mismatch: the boundary is close to linear, so the distance is within 2% of 5.
     expect(Math.abs(p.distance - 5)).toBeLessThan(0.1);

@@ -30,7 +30,7 @@ describe('Monte Carlo against the linearised model (small mismatch)', () => {
 
   it('yield agrees with 2 Phi(-spec/sigma) within 4 binomial standard errors (DOMAIN.md)', async () => {
     const r = await simulate(bigSimple, { samples: 200_000, seed: 12, workers: 1 });
-    const p = twoSidedTail(bigSimple.spec.offset / linearisedSigma(compileStage(bigSimple)));
+    const p = twoSidedTail(bigSimple.spec.offset! / linearisedSigma(compileStage(bigSimple)));
     const se = Math.sqrt((p * (1 - p)) / r.evaluated);
     expect(Math.abs(r.yield.failure.estimate - p)).toBeLessThan(4 * se);
     // Failure interval contains the estimate; yield interval is its mirror image.

@@ -1,4 +1,4 @@
-import { compileStage, InputError, linearisedSigma, type Design } from '@twinfet/core';
+import { compileStage, InputError, linearisedSigma, type Design, type DeviceGeometry } from '@twinfet/core';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
 import { equalScalingFamily, optimalSplitFamily } from '../src/sizing/areaSplit.js';
@@ -93,14 +93,14 @@ describe('size for a sigma target against the closed-form inverse (Pelgrom 1989)
     const r = await sizeDesign(bigSimple, { target: { kind: 'sigma', sigma: target }, vary: 'input.area', executor });
     const p = testProcess.n;
     const { w, l } = bigSimple.input;
-    const ic = icOf(bigSimple.tail / 2, p.slope, p.kp, w, l, bigSimple.temperature); // kept by area scaling
+    const ic = icOf(bigSimple.tail! / 2, p.slope, p.kp, w, l, bigSimple.temperature); // kept by area scaling
     const idOverGm = 1 / gmOverIdEkv(ic, p.slope, bigSimple.temperature);
     const needed = (p.avt ** 2 + (idOverGm * p.abeta) ** 2) / target ** 2;
     const area = r.linearised.pairs[0]!.gateArea;
     expect(area).toBeGreaterThanOrEqual(needed * (1 - 1e-9));
     expect(area).toBeLessThanOrEqual(needed * ROUNDING * (1 + 1e-9));
     // The inversion coefficient is unchanged by scaling W and L together (to the 4-digit rounding).
-    expect(Math.abs(r.result.pairs[0]!.ic / ic - 1)).toBeLessThan(2e-3);
+    expect(Math.abs(r.result.pairs[0]!.ic! / ic - 1)).toBeLessThan(2e-3);
   });
 
   it('changing W alone at fixed bias moves IC by W0/W and the beta term with it (EKV 1995)', async () => {
@@ -108,8 +108,8 @@ describe('size for a sigma target against the closed-form inverse (Pelgrom 1989)
     const r = await sizeDesign(bigSimple, { target: { kind: 'sigma', sigma: target }, vary: 'input.w', executor });
     const p = testProcess.n;
     const g = r.linearised.pairs[0]!;
-    const ic = icOf(bigSimple.tail / 2, p.slope, p.kp, g.w, g.l, bigSimple.temperature);
-    expect(Math.abs(g.ic / ic - 1)).toBeLessThan(1e-12); // same formula, rounding only
+    const ic = icOf(bigSimple.tail! / 2, p.slope, p.kp, g.w, g.l, bigSimple.temperature);
+    expect(Math.abs(g.ic! / ic - 1)).toBeLessThan(1e-12); // same formula, rounding only
     // sigma at the solution from the closed form of the simple stage: <= target, within 0.1% of it
     // (one 4-digit step of W moves sigma by at most 0.05%).
     const wl = g.w * g.l;
@@ -126,8 +126,8 @@ describe('size --vary both: the area split (Kinget 2005 variance budget, Lagrang
   /** Per-device areas (a_in, a_load) of the design scaled so each pair's area is given, W/L kept. */
   const scaled = (d: Design, aIn: number, aLoad: number): Design => {
     const ri = Math.sqrt(aIn / (d.input.w * d.input.l));
-    const rl = Math.sqrt(aLoad / (d.load!.w * d.load!.l));
-    return { ...d, input: { ...d.input, w: d.input.w * ri, l: d.input.l * ri }, load: { ...d.load!, w: d.load!.w * rl, l: d.load!.l * rl } };
+    const rl = Math.sqrt(aLoad / ((d.load as DeviceGeometry).w * (d.load as DeviceGeometry).l));
+    return { ...d, input: { ...d.input, w: d.input.w * ri, l: d.input.l * ri }, load: { ...d.load!, w: (d.load as DeviceGeometry).w * rl, l: (d.load as DeviceGeometry).l * rl } };
   };
 
   it('the optimum total area matches a brute-force scan over splits and beats equal scaling', async () => {
@@ -152,7 +152,7 @@ describe('size --vary both: the area split (Kinget 2005 variance budget, Lagrang
     // Equal scaling of both pairs: every term scales by one factor, so the factor is
     // (sigma0 / target)^2 (area law) and the total that much times the original.
     const s0 = linearisedSigma(compileStage(bigMirror));
-    const a0 = bigMirror.input.w * bigMirror.input.l + bigMirror.load!.w * bigMirror.load!.l;
+    const a0 = bigMirror.input.w * bigMirror.input.l + (bigMirror.load as DeviceGeometry).w * (bigMirror.load as DeviceGeometry).l;
     // The factor is the smallest whose rounded-up design meets the target: at most the exact
     // factor, at least the exact factor less one 4-digit rounding step.
     expect(split.equal.factor).toBeLessThanOrEqual((s0 / target) ** 2 * (1 + 1e-9));
@@ -163,7 +163,7 @@ describe('size --vary both: the area split (Kinget 2005 variance budget, Lagrang
     // from the coefficients: the reported saving agrees to the rounding of the two solutions.
     const { inputCoefficient: A, loadCoefficient: B } = split;
     const ai = bigMirror.input.w * bigMirror.input.l;
-    const al = bigMirror.load!.w * bigMirror.load!.l;
+    const al = (bigMirror.load as DeviceGeometry).w * (bigMirror.load as DeviceGeometry).l;
     const saving = 1 - (Math.sqrt(A) + Math.sqrt(B)) ** 2 / ((A / ai + B / al) * (ai + al));
     expect(saving).toBeGreaterThan(0.01); // this design's split is far from the optimum
     expect(Math.abs(split.saving - saving)).toBeLessThan(3e-3);
@@ -176,7 +176,7 @@ describe('size --vary both: the area split (Kinget 2005 variance budget, Lagrang
       const opt = solveLinearised(optimalSplitFamily(bigMirror), sigma);
       const eq = solveLinearised(equalScalingFamily(bigMirror), sigma);
       if (!opt.reached || !eq.reached) throw new Error('unreachable in test');
-      const tot = (d: Design): number => d.input.w * d.input.l + d.load!.w * d.load!.l;
+      const tot = (d: Design): number => d.input.w * d.input.l + (d.load as DeviceGeometry).w * (d.load as DeviceGeometry).l;
       expect(tot(opt.design)).toBeLessThanOrEqual(tot(eq.design) * ROUNDING);
     }
   });
@@ -196,8 +196,8 @@ describe('size refuses targets that cannot be met, naming the limiting term', ()
     const t = mirror.temperature;
     const wMax = floor.floor.design.input.w;
     expect(wMax).toBe(1e-2);
-    const gmIn = gmOverIdEkv(icOf(mirror.tail / 2, n.slope, n.kp, wMax, 1e-6, t), n.slope, t);
-    const gmLoad = gmOverIdEkv(icOf(mirror.tail / 2, p.slope, p.kp, 4e-6, 2e-6, t), p.slope, t);
+    const gmIn = gmOverIdEkv(icOf(mirror.tail! / 2, n.slope, n.kp, wMax, 1e-6, t), n.slope, t);
+    const gmLoad = gmOverIdEkv(icOf(mirror.tail! / 2, p.slope, p.kp, 4e-6, 2e-6, t), p.slope, t);
     const wlIn = wMax * 1e-6;
     const wlLoad = 8e-12;
     const hand = Math.sqrt(
@@ -240,7 +240,7 @@ describe('size refuses targets that cannot be met, naming the limiting term', ()
   });
 
   it('load sizing of a simple stage, and bad targets, are refused naming the option', async () => {
-    expectInputError(await refusal(sizeDesign(bigSimple, { target: { kind: 'sigma', sigma: 1e-3 }, vary: 'load.w' })), 'vary', 'needs a mirror load');
+    expectInputError(await refusal(sizeDesign(bigSimple, { target: { kind: 'sigma', sigma: 1e-3 }, vary: 'load.w' })), 'vary', 'needs a load (the mirror or resistor stages have one)');
     expectInputError(await refusal(sizeDesign(bigSimple, { target: { kind: 'sigma', sigma: 1e-3 }, vary: 'both' })), 'vary', 'simple stage');
     expectInputError(await refusal(sizeDesign(bigSimple, { target: { kind: 'sigma', sigma: -1 } })), 'sigma', 'positive');
     expectInputError(await refusal(sizeDesign(bigSimple, { target: { kind: 'yield', yield: 1 } })), 'yield', 'strictly between 0 and 1');
@@ -300,11 +300,11 @@ describe('size shrinks devices for a loose target, floored at the process minimu
     const d: Design = {
       ...bigSimple,
       input: { polarity: 'p', w: 24e-6, l: 1.5e-6 },
-      process: { p: { ...testProcess.p, wmin: 0.22e-6, lmin: 0.18e-6, cox: 8.6e-3 } },
+      process: { p: { ...testProcess.p, minW: 0.22e-6, minL: 0.18e-6, cox: 8.6e-3 } },
     };
     const r = await sizeDesign(d, { target: { kind: 'sigma', sigma: 50e-3 }, vary: 'input.area', workers: 1 });
     const g = r.result.pairs[0]!;
-    // W/L = 16 kept: the length reaches lmin first (0.18/1.5 = 0.12 > 0.22/24).
+    // W/L = 16 kept: the length reaches min_l first (0.18/1.5 = 0.12 > 0.22/24).
     expect(g.l).toBe(0.18e-6);
     expect(g.w).toBe(2.88e-6);
     // Cox W L (DOMAIN.md trade-offs): 8.6 fF/um^2 x 0.5184 um^2 = 4.458 fF, exact to rounding.

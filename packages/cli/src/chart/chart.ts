@@ -141,7 +141,15 @@ function tickLabels(axis: Axis): readonly string[] {
 function yLabelLines(p: Panel): string[] {
   const label = p.y.label;
   if (label === '' || textWidth(label, LABEL_SIZE) <= (p.height ?? 260) - 8) return label === '' ? [] : [label];
-  const spaces = [...label.matchAll(/ /g)].map((m) => m.index);
+  // Split at a space outside brackets, so a symbol such as "(I1 R1 - I2 R2)/R" stays whole.
+  const spaces: number[] = [];
+  let depth = 0;
+  for (let i = 0; i < label.length; i++) {
+    const ch = label[i];
+    if (ch === '(') depth++;
+    else if (ch === ')') depth--;
+    else if (ch === ' ' && depth === 0) spaces.push(i);
+  }
   if (spaces.length === 0) return [label];
   const mid = label.length / 2;
   const cut = spaces.reduce((a, b) => (Math.abs(b - mid) < Math.abs(a - mid) ? b : a));

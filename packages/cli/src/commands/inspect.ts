@@ -1,12 +1,14 @@
 import { compileStage, formatQuantity, type Design, type Stage } from '@twinfet/core';
 import { linearisedSummary, chipFailure, type LinearisedSummary } from '@twinfet/montecarlo';
 import { renderPairs, renderTable } from '../table.js';
-import { designSummary, pct, sci, shareLabel } from '../describe.js';
+import { designSummary, headerLine, pct, sci, shareLabel } from '../describe.js';
 
 /** The inspect report: operating point and the linearised offset picture. */
 export interface InspectReport {
   readonly design: ReturnType<typeof designSummary>;
   readonly operatingPoint: Stage['operatingPoint'];
+  /** Resistor rows, for stages that have resistors. */
+  readonly resistors?: NonNullable<Stage['resistors']>;
   readonly analytic: LinearisedSummary;
   readonly warnings: readonly string[];
 }
@@ -17,6 +19,7 @@ export function inspectDesign(design: Design): InspectReport {
   return {
     design: designSummary(design),
     operatingPoint: stage.operatingPoint,
+    ...(stage.resistors === undefined ? {} : { resistors: stage.resistors }),
     analytic: linearisedSummary(stage),
     warnings: stage.warnings,
   };
@@ -48,6 +51,23 @@ export function renderOperatingPoint(ops: Stage['operatingPoint']): string {
   return renderTable(header, rows, header.map((_, c) => (c <= 1 || c === 6 ? 'left' : 'right')));
 }
 
+/** The resistor table (stages with load resistors). */
+export function renderResistors(rows: NonNullable<Stage['resistors']>): string {
+  const header = ['resistor', 'role', 'W', 'L', 'W*L', 'R', 'current', 'sigma dR/R', 'gain gm*R'];
+  const body = rows.map((r) => [
+    r.device,
+    r.role,
+    formatQuantity(r.w, 'm', 3),
+    formatQuantity(r.l, 'm', 3),
+    `${(r.area * 1e12).toPrecision(4)} um^2`,
+    r.resistance === undefined ? '-' : formatQuantity(r.resistance, 'ohm', 4),
+    formatQuantity(r.current, 'A', 4),
+    pct(r.sigmaR, 3),
+    r.voltageGain === undefined ? '-' : `${r.voltageGain.toPrecision(4)} V/V`,
+  ]);
+  return renderTable(header, body, header.map((_, c) => (c <= 1 ? 'left' : 'right')));
+}
+
 /** The variance-budget table. */
 export function renderBudget(a: LinearisedSummary): string {
   const rows = a.grouped.map((g) => [shareLabel(g.role, g.parameter), pct(g.share, 3), formatQuantity(Math.sqrt(g.variance), 'V', 4)]);
@@ -59,9 +79,10 @@ export function renderInspect(r: InspectReport): string {
   const a = r.analytic;
   const g = a.gaussian;
   const parts = [
-    `${r.design.name}  (${r.design.topology}, ${formatQuantity(r.design.tail, 'A')} tail, ${r.design.temperatureC.toFixed(1)} C)`,
+    headerLine(r.design, { stageWord: false }),
     '',
     renderOperatingPoint(r.operatingPoint),
+    ...(r.resistors === undefined ? [] : ['', renderResistors(r.resistors)]),
     '',
     renderPairs([
       ['offset sigma (linearised)', formatQuantity(a.sigma, 'V', 4)],

@@ -3,7 +3,9 @@ import { InputError } from '@twinfet/core';
 import { DEFAULT_SEED } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
 import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
+import { figureJson } from '../describe.js';
 import { loadDesign } from '../designFile.js';
+import { warnUnitSlips } from '../unitWarnings.js';
 import { writeOutputFile } from '../files.js';
 import { withInterrupt } from '../interrupt.js';
 import { parseCount, parseFraction } from '../options.js';
@@ -40,6 +42,7 @@ export function registerReport(program: Command, io: Io, setExit: (code: number)
     const samples = flags.samples === undefined ? 100_000 : parseCount(flags.samples, '--samples', REPORT_MIN_SAMPLES, 1e12);
     const chipYield = flags.chipYield === undefined ? DEFAULT_CHIP_YIELD : parseFraction(flags.chipYield, '--chip-yield', '0.99');
     const design = await loadDesign(file);
+    warnUnitSlips(io, design, common.spec);
     // Loaded on demand: the other commands do not pay for the report's modules at start-up.
     const [{ collectReport }, { renderReport }] = await Promise.all([import('../report/collect.js'), import('../report/page.js')]);
     const seed = common.seed ?? DEFAULT_SEED;
@@ -73,7 +76,8 @@ export function registerReport(program: Command, io: Io, setExit: (code: number)
     assertFinite(data);
     const html = renderReport(data);
     await writeOutputFile(flags.out, '--out', html);
-    if (flags.json === true) printJson(io, data);
+    // The run under the figure's own name, as `twinfet run --json` prints it.
+    if (flags.json === true) printJson(io, { ...data, run: figureJson(data.run) });
     else {
       const sections = (html.match(/<section id=/g) ?? []).length;
       const figures = (html.match(/<figure class="plot"/g) ?? []).length;

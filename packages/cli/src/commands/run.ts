@@ -1,10 +1,11 @@
 import { createWriteStream } from 'node:fs';
-import { currentFactorDeviation, formatQuantity, InputError, type Design } from '@twinfet/core';
-import { simulateWithSamples, type RunOutcome, type RunReport } from '@twinfet/montecarlo';
+import { formatQuantity, InputError, MISMATCH_PARAMETERS, variableDeviation, type Design } from '@twinfet/core';
+import { RUN_LIMITS, simulateWithSamples, type RunOutcome, type RunReport } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
 import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
-import { designSummary, pct, sci } from '../describe.js';
+import { figureJson, figureText, headerLine, pct, sci } from '../describe.js';
 import { loadDesign } from '../designFile.js';
+import { warnUnitSlips } from '../unitWarnings.js';
 import { parseCount } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
 import { withInterrupt } from '../interrupt.js';
@@ -23,11 +24,10 @@ interface RunFlags extends CommonFlags {
 }
 
 /** Largest run whose every draw may be written to --samples-out. */
-const SAMPLES_OUT_LIMIT = 2e7;
 
 function parseRunFlags(flags: RunFlags) {
   const common = readCommon(flags);
-  const samples = flags.samples === undefined ? 100_000 : parseCount(flags.samples, '--samples', 2, 1e12);
+  const samples = flags.samples === undefined ? 100_000 : parseCount(flags.samples, '--samples', ...RUN_LIMITS.samples);
   const interval = flags.interval ?? 'clopper-pearson';
   if (interval !== 'clopper-pearson' && interval !== 'wilson') {
     throw new InputError('--interval', `expected clopper-pearson or wilson, got "${interval}"`);
@@ -36,7 +36,7 @@ function parseRunFlags(flags: RunFlags) {
   if (method !== 'plain' && method !== 'importance') throw new InputError('--method', `expected plain or importance, got "${method}"`);
   if (flags.samplesOut !== undefined) {
     if (!flags.samplesOut.toLowerCase().endsWith('.csv')) throw new InputError('--samples-out', `expected a file name ending in .csv, got "${flags.samplesOut}"`);
-    if (samples > SAMPLES_OUT_LIMIT) throw new InputError('--samples-out', `writing every sample is limited to ${SAMPLES_OUT_LIMIT.toExponential(0)} samples; got ${samples}`);
+    if (samples > RUN_LIMITS.keptDraws) throw new InputError('--samples-out', `writing every sample is limited to ${RUN_LIMITS.keptDraws.toExponential(0)} samples; got ${samples}`);
   }
   if (flags.plot !== undefined && !flags.plot.toLowerCase().endsWith('.svg')) {
     throw new InputError('--plot', `expected a file name ending in .svg, got "${flags.plot}"`);
@@ -48,7 +48,8 @@ function parseRunFlags(flags: RunFlags) {
 async function writeSamplesCsv(path: string, outcome: RunOutcome): Promise<void> {
   const { offsets, draws, dimension, variables } = outcome;
   if (offsets === undefined || draws === undefined) throw new Error('internal: samples were not kept');
-  const header = ['sample', 'offset_V', ...variables.map((v) => (v.parameter === 'vt' ? `${v.device}_dVT_V` : `${v.device}_dbeta_rel`))];
+  const fig = outcome.figure;
+  const header = ['sample', `${fig.name}_${fig.unit === '' ? 'rel' : fig.unit}`, ...variables.map((v) => `${v.device}_${MISMATCH_PARAMETERS[v.parameter].column}`)];
   const stream = createWriteStream(path);
   const done = new Promise<void>((resolve, reject) => {
     stream.on('error', (e) => reject(new InputError('--samples-out', `cannot write "${path}": ${e.message}`)));
@@ -58,13 +59,7 @@ async function writeSamplesCsv(path: string, outcome: RunOutcome): Promise<void>
   let chunk = '';
   for (let i = 0; i < offsets.length; i++) {
     const row: string[] = [String(i), Number.isNaN(offsets[i]!) ? 'NaN' : offsets[i]!.toPrecision(9)];
-    for (let j = 0; j < dimension; j++) {
-      const v = variables[j]!;
-      const u = draws[i * dimension + j]!;
-      // A beta variable follows its device's vt variable in the layout.
-      const deviation = v.parameter === 'vt' ? v.sigma * u : currentFactorDeviation(v.sigma, v.rho, draws[i * dimension + j - 1]!, u);
-      row.push(deviation.toPrecision(9));
-    }
+    for (let j = 0; j < dimension; j++) row.push(variableDeviation(variables, draws, i * dimension, j).toPrecision(9));
     chunk += `${row.join(',')}\n`;
     if (chunk.length > 1 << 20) {
       if (!stream.write(chunk)) await new Promise<void>((r) => stream.once('drain', () => r()));
@@ -78,11 +73,12 @@ async function writeSamplesCsv(path: string, outcome: RunOutcome): Promise<void>
 /** The histogram plot of a run. */
 export async function runPlot(report: RunReport, title: string): Promise<string> {
   // Loaded on demand, so a run without --plot does not load the plotting code.
-  const [{ chartSvg }, { runHistogramChart }] = await Promise.all([import('../chart/chart.js'), import('../runHistogram.js')]);
-  return chartSvg(runHistogramChart(report, { title }));
+  const [{ chartSvg }, { runHistogramChart }, { displayQuantity }] = await Promise.all([import('../chart/chart.js'), import('../runHistogram.js'), import('../displayQuantity.js')]);
+  const f = report.figure;
+  const quantity = displayQuantity({ name: f.label, symbol: f.symbol, unit: f.unit === '' ? '%' : f.unit }, Math.max(report.offset.sigma, report.yield.spec));
+  return chartSvg(runHistogramChart(report, { title, quantity, specSides: f.sided }));
 }
 
-const mv = (v: number): string => formatQuantity(v, 'V', 4);
 const range = (iv: readonly [number, number], f: (v: number) => string): string => `[${f(iv[0])}, ${f(iv[1])}]`;
 /** A yield, its interval and the method, printed with one number of decimals. */
 const yieldWithInterval = (y: number, iv: readonly [number, number], c: string): string => {
@@ -92,35 +88,36 @@ const yieldWithInterval = (y: number, iv: readonly [number, number], c: string):
 
 /** Text form of the run report. */
 export function renderRun(r: RunReport, design: Design): string {
-  const d = designSummary(design);
+  const f = figureText(r.figure);
+  const mv = f.format;
   const c = `${Math.round(r.yield.confidence * 1000) / 10}%`;
   const q = r.offset.quantiles;
   const qHead = q.signed.map((x) => `${x.p * 100}%`.padStart(11)).join('');
   const qRow = (xs: typeof q.signed): string => xs.map((x) => (x.value === null ? 'beyond' : mv(x.value)).padStart(11)).join('');
   const agree = r.analytic.agreement;
   const lines = [
-    `${d.name}  (${d.topology} stage, ${formatQuantity(d.tail, 'A')} tail, ${d.temperatureC.toFixed(1)} C)`,
+    headerLine(design),
     `Monte Carlo on the exact model: ${r.evaluated} samples${r.partial ? ' (PARTIAL: interrupted, finished chunks only)' : ''}, seed ${r.seed}, ${r.workers} worker(s), ${r.seconds.toFixed(2)} s, ${sci(r.samplesPerSecond, 3)} samples/s`,
     '',
     renderPairs([
-      ['offset mean', `${mv(r.offset.mean)}   ${c} ${range(r.offset.meanInterval, mv)}`],
-      ['offset sigma', `${mv(r.offset.sigma)}   ${c} ${range(r.offset.sigmaInterval, mv)} (chi-square)`],
-      ['linearised sigma', `${mv(r.analytic.sigma)}   Monte Carlo differs by ${pct(agree.relativeDifference, 2)} (${agree.standardErrors.toFixed(1)} standard errors)${agree.consistent ? '' : '  <- more than sampling error allows: the offset is not linear in the mismatch here'}`],
+      [`${f.label} mean`, `${mv(r.offset.mean)}   ${c} ${range(r.offset.meanInterval, mv)}`],
+      [`${f.label} sigma`, `${mv(r.offset.sigma)}   ${c} ${range(r.offset.sigmaInterval, mv)} (chi-square)`],
+      ['linearised sigma', `${mv(r.analytic.sigma)}   Monte Carlo differs by ${pct(agree.relativeDifference, 2)} (${agree.standardErrors.toFixed(1)} standard errors)${agree.consistent ? '' : '  <- more than sampling error allows: the ${f.label} is not linear in the mismatch here'}`],
       ['min / max', `${mv(r.offset.min)} / ${mv(r.offset.max)}`],
     ]),
     '',
     `quantiles (${r.offset.quantileMethod === 'exact' ? 'exact, from every sample' : 'from the histogram, within one bin width'})`,
     `${'p'.padEnd(8)}${qHead}`,
-    `${'Vos'.padEnd(8)}${qRow(q.signed)}`,
-    `${'|Vos|'.padEnd(8)}${qRow(q.absolute)}`,
+    `${f.symbol.padEnd(8)}${qRow(q.signed)}`,
+    `${f.magnitude.padEnd(8)}${qRow(q.absolute)}`,
     '',
     textHistogram(r.histogram, Math.max(4 * r.offset.sigma, 1.1 * r.yield.spec), r.yield.spec),
     '',
     renderBudget(r.analytic),
     '',
     renderPairs([
-      ['spec |Vos| <=', mv(r.yield.spec)],
-      ['failures', `${r.yield.failures} of ${r.evaluated} (${r.yield.failuresHigh} above +spec, ${r.yield.failuresLow} below -spec)`],
+      [`spec ${f.magnitude} <=`, mv(r.yield.spec)],
+      ['failures', `${r.yield.failures} of ${r.evaluated} ${r.figure.sided === 'two' ? ` (${r.yield.failuresHigh} above +spec, ${r.yield.failuresLow} below -spec)` : ' (above the spec)'}`],
       ['instance yield', `${yieldWithInterval(r.yield.estimate, r.yield.interval, c)} (${r.yield.method})`],
       ['Gaussian estimate', `${yieldFromFailure(r.analytic.gaussian.failure)}   from the linearised sigma`],
       [`chip yield (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, yieldWithInterval(r.chip.estimate, r.chip.interval, c)],
@@ -153,6 +150,7 @@ export function registerRun(program: Command, io: Io, setExit: (code: number) =>
   ).action(async (file: string, flags: RunFlags) => {
     const o = parseRunFlags(flags);
     const design = await loadDesign(file);
+    warnUnitSlips(io, design, o.spec);
     const done = await withInterrupt(io, 'run', (signal, onProgress) =>
       simulateWithSamples(design, {
         samples: o.samples,
@@ -178,8 +176,8 @@ export function registerRun(program: Command, io: Io, setExit: (code: number) =>
     const report = outcome.report;
     assertFinite(report);
     if (flags.samplesOut !== undefined) await writeSamplesCsv(flags.samplesOut, outcome);
-    if (flags.plot !== undefined) await writeOutputFile(flags.plot, '--plot', await runPlot(report, `${design.name}: offset distribution`));
-    if (flags.json === true) printJson(io, report);
+    if (flags.plot !== undefined) await writeOutputFile(flags.plot, '--plot', await runPlot(report, `${design.name}: ${report.figure.label} distribution`));
+    if (flags.json === true) printJson(io, figureJson(report));
     else io.out(renderRun(report, design));
     setExit(report.partial ? 130 : 0);
   });

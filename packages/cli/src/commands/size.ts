@@ -1,12 +1,11 @@
 import { readFileSync } from 'node:fs';
-import { formatQuantity, InputError, isInputError, parseQuantity, type Design } from '@twinfet/core';
+import { closestWord, formatQuantity, InputError, isInputError, parseQuantity, writeDesign, type Design } from '@twinfet/core';
 import { SIZE_VARIATIONS, sizeDesign, type Confirmation, type SizedPoint, type SizeReport, type SizeTarget, type SizeVary } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
 import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
-import { designSummary, pct, sci } from '../describe.js';
+import { headerLine, pct, sci } from '../describe.js';
 import { loadDesign } from '../designFile.js';
-import { designToYaml } from '../designYaml.js';
-import { closestWord } from '../didYouMean.js';
+import { warnUnitSlips } from '../unitWarnings.js';
 import { writeOutputFile } from '../files.js';
 import { parseCount, parseFraction } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
@@ -84,9 +83,9 @@ function pairRows(label: string, p: SizedPoint): string[][] {
     formatQuantity(x.w, 'm', 4),
     formatQuantity(x.l, 'm', 4),
     um2(x.gateArea),
-    sci(x.ic, 3),
-    x.region,
-    `${x.gmOverId.toPrecision(4)} /V`,
+    x.ic === null ? '-' : sci(x.ic, 3),
+    x.region ?? 'resistor',
+    x.gmOverId === null ? '-' : `${x.gmOverId.toPrecision(4)} /V`,
     x.gateCapacitance === null ? '-' : formatQuantity(x.gateCapacitance, 'F', 3),
   ]);
 }
@@ -104,7 +103,6 @@ const bound = (y: number): string => (y === 1 ? '1' : y < 1e-3 ? sci(y, 4) : yie
 
 /** Text form of a sizing report. */
 export function renderSize(r: SizeReport, source: string, design: Design): string {
-  const d = designSummary(design);
   const c = r.confirmed;
   const cl = conf(r.confidence);
   const header = ['pair', 'design', 'W', 'L', 'W*L', 'IC', 'region', 'gm/I_D', 'C_gate'];
@@ -145,7 +143,7 @@ export function renderSize(r: SizeReport, source: string, design: Design): strin
     x.met ? 'yes' : 'no',
   ]);
   const lines = [
-    `${d.name}  (${d.topology} stage, ${formatQuantity(d.tail, 'A')} tail, ${d.temperatureC.toFixed(1)} C) from ${source}`,
+    `${headerLine(design)} from ${source}`,
     '',
     renderPairs([
       ['target', targetText(r)],
@@ -201,6 +199,7 @@ export function registerSize(program: Command, io: Io, setExit: (code: number) =
       throw new InputError('--write', `expected a file name ending in .yaml, got "${flags.write}"`);
     }
     const design = await loadDesign(file);
+    warnUnitSlips(io, design, common.spec);
     let done: Awaited<ReturnType<typeof withInterrupt<SizeReport>>>;
     try {
       done = await withInterrupt(io, 'size', (signal) =>
@@ -230,7 +229,7 @@ export function registerSize(program: Command, io: Io, setExit: (code: number) =
     const sized: Design = { ...report.design, name: `${design.name}, sized` };
     const out = { source: file, ...report, design: sized, written: flags.write ?? null };
     assertFinite(out);
-    if (flags.write !== undefined) await writeOutputFile(flags.write, '--write', designToYaml(sized, fileHeader(report, file)));
+    if (flags.write !== undefined) await writeOutputFile(flags.write, '--write', writeDesign(sized, fileHeader(report, file)));
     if (flags.json === true) printJson(io, out);
     else {
       io.out(renderSize(report, file, design));

@@ -1,9 +1,10 @@
-import { formatQuantity, InputError } from '@twinfet/core';
+import { formatQuantity, InputError, MISMATCH_PARAMETERS, type MismatchParameter } from '@twinfet/core';
 import { estimateHighSigma, type HighSigmaReport } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
 import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
-import { designSummary, sci } from '../describe.js';
+import { designSummary, headerLine, sci } from '../describe.js';
 import { loadDesign } from '../designFile.js';
+import { warnUnitSlips } from '../unitWarnings.js';
 import { parseCount, parseFraction } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
 import { withInterrupt } from '../interrupt.js';
@@ -26,7 +27,7 @@ export function renderTail(r: HighSigmaReport): string {
       p.distance.toFixed(4),
       sci(p.form, 4),
       p.method,
-      top.map((t) => `${t.device} ${t.parameter === 'vt' ? `dV_T ${formatQuantity(t.deviation, 'V', 3)}` : `dbeta/beta ${(t.deviation * 100).toPrecision(3)}%`} (${t.u.toFixed(2)} sigma)`).join(', '),
+      top.map((t) => `${t.device} ${t.parameter === 'vt' ? `dV_T ${formatQuantity(t.deviation, 'V', 3)}` : `${MISMATCH_PARAMETERS[t.parameter as MismatchParameter].label} ${(t.deviation * 100).toPrecision(3)}%`} (${t.u.toFixed(2)} sigma)`).join(', '),
     ];
   });
   if (r.belowDoubleRange) {
@@ -78,6 +79,7 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
     const relError = flags.relError === undefined ? undefined : parseFraction(flags.relError, '--rel-error', '0.05');
     const samples = flags.samples === undefined ? undefined : parseCount(flags.samples, '--samples', 100, 1e10);
     const design = await loadDesign(file);
+    warnUnitSlips(io, design, common.spec);
     const done = await withInterrupt(io, 'tail', (signal, onProgress) =>
       estimateHighSigma(design, {
         workers: common.workers,
@@ -100,8 +102,7 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
     assertFinite(report);
     if (flags.json === true) printJson(io, { design: designSummary(design), ...report });
     else {
-      const d = designSummary(design);
-      io.out(`${d.name}  (${d.topology} stage, ${formatQuantity(d.tail, 'A')} tail)\nimportance sampling on the exact model\n\n${renderTail(report)}`);
+      io.out(`${headerLine(design, { withTemperature: false })}\nimportance sampling on the exact model\n\n${renderTail(report)}`);
     }
     setExit(0);
   });

@@ -5,14 +5,13 @@
  */
 import { createHash } from 'node:crypto';
 import { readFile } from 'node:fs/promises';
-import { compileStage, type Design } from '@twinfet/core';
+import { compileStage, specLimit, type Design } from '@twinfet/core';
 import { createExecutor, estimateHighSigma, simulateWithSamples, type RunReport } from '@twinfet/montecarlo';
 import { studyArea } from './analyses/area.js';
 import { distributionFromHistogram, distributionFromSamples } from './analyses/distribution.js';
 import { studyTransfer } from './analyses/transfer.js';
 import type { ReportData } from './data.js';
 import { reportStageFor } from './stages/registry.js';
-import { OFFSET_FIGURE } from './stages/pairTransfer.js';
 
 /**
  * The high-sigma estimate runs when the Monte Carlo failure probability is below this: there
@@ -44,7 +43,7 @@ export async function collectReport(design: Design, o: CollectOptions): Promise<
   const started = performance.now();
   const stage = compileStage(design);
   const def = reportStageFor(stage.topology);
-  const spec = o.spec ?? design.spec.offset;
+  const spec = o.spec ?? specLimit(stage.design);
   const executor = createExecutor(o.workers);
   const signal = o.signal === undefined ? {} : { signal: o.signal };
   try {
@@ -86,15 +85,16 @@ export async function collectReport(design: Design, o: CollectOptions): Promise<
         sourceSha256: createHash('sha256').update(bytes).digest('hex'),
         seconds: (performance.now() - started) / 1000,
       },
-      design,
+      design: stage.design,
       stage: {
         topology: stage.topology,
-        description: def === undefined ? null : def.describe(design),
-        // Without a report definition the core Stage's per-sample value is still its offset in volts.
-        figure: def?.figure ?? OFFSET_FIGURE,
+        description: def === undefined ? `${stage.definition.summary}.` : def.describe(stage.design),
+        figure: stage.definition.figure,
+        blocks: stage.definition.blocks.map((b) => ({ key: b.key, label: b.label, kind: b.kind, elements: b.elements })),
         variables: stage.variables.map((v) => ({ device: v.device, role: v.role, parameter: v.parameter, sigma: v.sigma, rho: v.rho })),
       },
       operatingPoint: stage.operatingPoint,
+      ...(stage.resistors === undefined ? {} : { resistors: stage.resistors }),
       warnings: run.warnings,
       specOverridden: o.spec !== undefined,
       run,

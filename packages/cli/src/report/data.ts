@@ -3,12 +3,11 @@
  * and nothing else, so a section never recomputes a number the analyses produced; `twinfet
  * report --json` prints it.
  */
-import type { Design, DeviceOperatingPoint } from '@twinfet/core';
+import type { Design, DeviceOperatingPoint, FigureDefinition, ResistorOperatingPoint } from '@twinfet/core';
 import type { RunReport } from '@twinfet/montecarlo';
 import type { AreaStudy } from './analyses/area.js';
 import type { DistributionStudy } from './analyses/distribution.js';
 import type { TransferStudy } from './analyses/transfer.js';
-import type { FigureInfo } from './stages/types.js';
 
 /** How the page was made: enough to make it again. */
 export interface ReportMeta {
@@ -71,16 +70,24 @@ export interface ReportData {
   readonly design: Design;
   readonly stage: {
     readonly topology: string;
-    /** One sentence on the topology, or null when the stage type has no report definition. */
-    readonly description: string | null;
-    readonly figure: FigureInfo;
+    /** A sentence or two on the topology (the core's one-line summary when the report has no definition of the type). */
+    readonly description: string;
+    /** The stage's figure as the core defines it (name, label, symbol, SI unit or '' for a fraction, sides). */
+    readonly figure: FigureDefinition;
+    /** The stage's blocks (`input`, `load`, ...) with their labels and element names. */
+    readonly blocks: readonly { readonly key: string; readonly label: string; readonly kind: 'mos' | 'resistor'; readonly elements: readonly string[] }[];
     readonly variables: readonly { readonly device: string; readonly role: string; readonly parameter: string; readonly sigma: number; readonly rho: number }[];
   };
   readonly operatingPoint: readonly DeviceOperatingPoint[];
+  /** Resistor rows, for stages that have resistors. */
+  readonly resistors?: readonly ResistorOperatingPoint[];
   readonly warnings: readonly string[];
   /** True when --spec replaced the design's spec. */
   readonly specOverridden: boolean;
-  /** The Monte Carlo run, exactly as `twinfet run --json` prints it for the same options; `importance` when the high-sigma estimate ran. */
+  /**
+   * The Monte Carlo run, as `twinfet run --json` prints it for the same options (which names the
+   * `offset` block after the figure); `importance` when the high-sigma estimate ran.
+   */
   readonly run: RunReport;
   /** Whether the high-sigma estimate ran, and why (or why not). */
   readonly highSigma: { readonly ran: boolean; readonly reason: string };

@@ -14,7 +14,7 @@ import { transferSection } from './sections/transfer.js';
 import { yieldSection } from './sections/yield.js';
 import { PAGE_CSS } from './style.js';
 import { yieldText, yieldDigits } from '../commands/inspect.js';
-import { plain, q, um2 } from './units.js';
+import { figureUnit, plain, q, um2 } from './units.js';
 
 /** The caution every page carries near its top. */
 export const CAUTION =
@@ -30,12 +30,13 @@ export function reportSections(d: ReportData): Section[] {
 
 function summary(d: ReportData): string {
   const r = d.run;
-  const u = d.stage.figure.unit;
+  const u = figureUnit(d.stage.figure);
+  const F = r.figure.name;
   const c = `${plain(r.yield.confidence * 100, 3)}%`;
   const yv = (path: string, y: number, lo: number): string => num(y, y === 1 ? '1' : yieldText(y, yieldDigits(lo)), { path });
   const items: [string, string][] = [
-    [`sigma of the ${d.stage.figure.name}`, `${num(r.offset.sigma, q(r.offset.sigma, u), { path: 'offset.sigma', unit: u })} <small>(${c} [${num(r.offset.sigmaInterval[0], q(r.offset.sigmaInterval[0], u), { path: 'offset.sigmaInterval.0', unit: u })}, ${num(r.offset.sigmaInterval[1], q(r.offset.sigmaInterval[1], u), { path: 'offset.sigmaInterval.1', unit: u })}])</small>`],
-    ['spec', `${d.stage.figure.sides === 'both' ? '\u00b1' : '\u2264 '}${num(r.yield.spec, q(r.yield.spec, u), { path: 'yield.spec', unit: u })} <small>(${plain(r.analytic.gaussian.sigmaLevel, 3)} sigma)</small>`],
+    [`sigma of the ${d.stage.figure.label}`, `${num(r.offset.sigma, q(r.offset.sigma, u), { path: `${F}.sigma`, unit: u })} <small>(${c} [${num(r.offset.sigmaInterval[0], q(r.offset.sigmaInterval[0], u), { path: `${F}.sigmaInterval.0`, unit: u })}, ${num(r.offset.sigmaInterval[1], q(r.offset.sigmaInterval[1], u), { path: `${F}.sigmaInterval.1`, unit: u })}])</small>`],
+    ['spec', `${d.stage.figure.sided === 'two' ? '\u00b1' : '\u2264 '}${num(r.yield.spec, q(r.yield.spec, u), { path: 'yield.spec', unit: u })} <small>(${plain(r.analytic.gaussian.sigmaLevel, 3)} sigma)</small>`],
     ['instance yield', `${yv('yield.estimate', r.yield.estimate, r.yield.interval[0])} <small>(Monte Carlo, ${r.yield.failures} failures)</small>`],
     [`chip yield (${r.chip.instances})`, yv('chip.estimate', r.chip.estimate, r.chip.interval[0])],
   ];

@@ -1,9 +1,11 @@
-import type { Stage } from '@twinfet/core';
+import type { FailureComponent, Stage } from '@twinfet/core';
 import { normalUpperTail } from '../stats/normal.js';
 
-/** The most probable failure point of one side (Vos = +spec or Vos = -spec). */
+/** The most probable failure point of one failure region (for a pair: Vos = +spec or -spec). */
 export interface DesignPoint {
-  /** +1 for the Vos = +spec side, -1 for -spec. */
+  /** The region's label (`+spec`, `-spec`, or the stage's own). */
+  readonly label: string;
+  /** +1 where failure is above the target, -1 below it. */
   readonly side: 1 | -1;
   /** Coordinates in standard-normal space, one per stage variable. */
   readonly u: readonly number[];
@@ -14,7 +16,7 @@ export interface DesignPoint {
   /** 'hl-rf' when the HL-RF iteration converged, 'line-search' when the fallback was used. */
   readonly method: 'hl-rf' | 'line-search';
   readonly iterations: number;
-  /** Vos at the point, volts (equals side * spec to the solve tolerance). */
+  /** The region's function at the point (equals the target to the solve tolerance). */
   readonly offset: number;
 }
 
@@ -24,13 +26,15 @@ const MOVE_TOLERANCE = 1e-6;
 /** The fallback line search looks this many sigmas out at most (Phi(-r) underflows from ~38). */
 const LINE_SEARCH_MAX = 4096;
 
-function gradient(stage: Stage, u: Float64Array, out: Float64Array, scratch: Float64Array): void {
+type Evaluate = FailureComponent['evaluate'];
+
+function gradient(f: Evaluate, u: Float64Array, out: Float64Array, scratch: Float64Array): void {
   for (let j = 0; j < u.length; j++) {
     scratch.set(u);
     scratch[j] = u[j]! + FD_STEP;
-    const up = stage.offset(scratch, 0);
+    const up = f(scratch, 0);
     scratch[j] = u[j]! - FD_STEP;
-    const dn = stage.offset(scratch, 0);
+    const dn = f(scratch, 0);
     out[j] = (up - dn) / (2 * FD_STEP);
   }
 }
@@ -42,15 +46,28 @@ function norm(u: Float64Array): number {
 }
 
 /**
- * Finds u* = argmin |u| subject to Vos(u) = target on the exact model.
+ * The linearised direction of a region's function at u = 0: the stage's sensitivities for its
+ * own figure, a central-difference gradient for another function.
+ */
+function startDirection(stage: Stage, f: Evaluate): Float64Array {
+  if (f === stage.figure) return stage.sensitivities;
+  const g = new Float64Array(stage.dimension);
+  gradient(f, new Float64Array(stage.dimension), g, new Float64Array(stage.dimension));
+  return g;
+}
+
+/**
+ * Finds u* = argmin |u| subject to f(u) = target on the exact model, f the region's function.
  * HL-RF iteration (Hasofer & Lind, J. Eng. Mech. Div. ASCE 100, 1974; Rackwitz & Fiessler,
  * Computers & Structures 9, 1978) from the linearised direction, with step halving when the
  * constraint residual grows; if it does not settle, a line search along the linearised
  * direction finds a boundary point instead (reported as such).
  */
-export function findDesignPoint(stage: Stage, target: number): DesignPoint {
+export function findDesignPoint(stage: Stage, component: FailureComponent): DesignPoint {
   const dim = stage.dimension;
-  const s = stage.sensitivities;
+  const f = component.evaluate;
+  const target = component.target;
+  const s = startDirection(stage, f);
   let s2 = 0;
   for (const x of s) s2 += x * x;
   const u = new Float64Array(dim);
@@ -62,9 +79,9 @@ export function findDesignPoint(stage: Stage, target: number): DesignPoint {
   let converged = false;
   let k = 0;
   for (; k < 200; k++) {
-    const v = stage.offset(u, 0);
+    const v = f(u, 0);
     if (!Number.isFinite(v)) break;
-    gradient(stage, u, g, scratch);
+    gradient(f, u, g, scratch);
     let gg = 0;
     let gu = 0;
     for (let j = 0; j < dim; j++) {
@@ -77,7 +94,7 @@ export function findDesignPoint(stage: Stage, target: number): DesignPoint {
     let step = 1;
     for (let half = 0; half < 60; half++) {
       for (let j = 0; j < dim; j++) next[j] = u[j]! + step * (c * g[j]! - u[j]!);
-      if (Number.isFinite(stage.offset(next, 0))) break;
+      if (Number.isFinite(f(next, 0))) break;
       step *= 0.5; // only where the full step leaves the model's finite range
     }
     let delta = 0;
@@ -90,7 +107,7 @@ export function findDesignPoint(stage: Stage, target: number): DesignPoint {
     // which turns the point about the origin by ~1e-7 |u| per step at |u| ~ 600 (large pairs at
     // a loose spec) while the distance and the residual have settled: 1e-6 |u| is above that
     // noise and still far below what matters for FORM or for a sampling shift.
-    if (moved < MOVE_TOLERANCE * Math.max(1, norm(u)) && Math.abs(stage.offset(u, 0) - target) <= tol) {
+    if (moved < MOVE_TOLERANCE * Math.max(1, norm(u)) && Math.abs(f(u, 0) - target) <= tol) {
       converged = true;
       break;
     }
@@ -98,22 +115,22 @@ export function findDesignPoint(stage: Stage, target: number): DesignPoint {
   let method: DesignPoint['method'] = 'hl-rf';
   if (!converged) {
     method = 'line-search';
-    lineSearch(stage, target, u);
+    lineSearch(f, s, component, u);
   }
   const distance = norm(u);
-  return { side: target > 0 ? 1 : -1, u: Array.from(u), distance, form: normalUpperTail(distance), method, iterations: k, offset: stage.offset(u, 0) };
+  return { label: component.label, side: component.side, u: Array.from(u), distance, form: normalUpperTail(distance), method, iterations: k, offset: f(u, 0) };
 }
 
-/** Fallback: along the linearised direction, bisect Vos(r d) = target for r. */
-function lineSearch(stage: Stage, target: number, u: Float64Array): void {
-  const dim = stage.dimension;
-  const s = stage.sensitivities;
+/** Fallback: along the linearised direction s, bisect f(r d) = target for r. */
+function lineSearch(f: Evaluate, s: Float64Array, component: FailureComponent, u: Float64Array): void {
+  const dim = u.length;
+  const { side, target } = component;
   const n = norm(Float64Array.from(s));
   const d = new Float64Array(dim);
-  for (let j = 0; j < dim; j++) d[j] = (Math.sign(target) * s[j]!) / n;
+  for (let j = 0; j < dim; j++) d[j] = (side * s[j]!) / n;
   const at = (r: number): number => {
     for (let j = 0; j < dim; j++) u[j] = r * d[j]!;
-    return Math.sign(target) * (stage.offset(u, 0) - target);
+    return side * (f(u, 0) - target);
   };
   let lo = 0;
   let hi = 1;

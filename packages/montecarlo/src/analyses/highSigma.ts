@@ -1,9 +1,9 @@
-import { compileStage, currentFactorDeviation, InputError, type Design, type Stage } from '@twinfet/core';
+import { compileStage, InputError, specLimit, variableDeviation, type Design, type Stage } from '@twinfet/core';
 import { findDesignPoint, type DesignPoint } from './designPoint.js';
 import type { ImportanceResult, ImportanceTask } from '../engine/messages.js';
 import { normalQuantile, sigmaLevel, sigmaLevelOfTails } from '../stats/normal.js';
 import { createExecutor, defaultWorkers, inThreadExecutor, type Executor } from '../engine/pool.js';
-import { runChunks } from '../engine/schedule.js';
+import { runChunks, taskList } from '../engine/schedule.js';
 import { seedText } from '../random/seed.js';
 import { chipFailure } from '../stats/yield.js';
 
@@ -33,7 +33,8 @@ export interface HighSigmaOptions {
 
 /** A design point as reported: its distance and coordinates by device and parameter. */
 export interface ReportedDesignPoint {
-  readonly side: '+spec' | '-spec';
+  /** The failure region (`+spec`, `-spec`, or the stage's own label). */
+  readonly side: string;
   readonly distance: number;
   readonly form: number;
   readonly method: DesignPoint['method'];
@@ -93,17 +94,18 @@ function finiteOrNull(x: number): number | null {
 
 function describePoint(stage: Stage, p: DesignPoint): ReportedDesignPoint {
   return {
-    side: p.side > 0 ? '+spec' : '-spec',
+    side: p.label,
     distance: p.distance,
     form: p.form,
     method: p.method,
     offset: p.offset,
-    coordinates: stage.variables.map((v, j) => {
-      const uj = p.u[j]!;
-      // dbeta/beta pairs this beta variable with the vt variable just before it (same device).
-      const deviation = v.parameter === 'vt' ? v.sigma * uj : currentFactorDeviation(v.sigma, v.rho, p.u[j - 1]!, uj);
-      return { device: v.device, role: v.role, parameter: v.parameter, u: uj, deviation };
-    }),
+    coordinates: stage.variables.map((v, j) => ({
+      device: v.device,
+      role: v.role,
+      parameter: v.parameter,
+      u: p.u[j]!,
+      deviation: variableDeviation(stage.variables, p.u, 0, j),
+    })),
   };
 }
 
@@ -132,12 +134,12 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
   check(options);
   const started = performance.now();
   const stage = compileStage(design);
-  const spec = options.spec ?? design.spec.offset;
+  const spec = options.spec ?? specLimit(stage.design);
   const confidence = options.confidence ?? 0.95;
   const relError = options.relError ?? 0.05;
   const seed = seedText(options.seed);
   const z = normalQuantile(1 - (1 - confidence) / 2);
-  const points = [findDesignPoint(stage, spec), findDesignPoint(stage, -spec)];
+  const points = stage.failureComponents(spec).map((c) => findDesignPoint(stage, c));
   const fixed = options.samples;
   const maxSamples = fixed ?? options.maxSamples ?? 1e7;
 
@@ -166,7 +168,7 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
   };
   // Sums are of w e^{logScale}: with the scale at the nearer design point's b^2/2 the scaled
   // weights near the failure region are of order 1 at any distance (see ImportanceTask).
-  const logScale = 0.5 * Math.min(points[0]!.distance, points[1]!.distance) ** 2;
+  const logScale = 0.5 * Math.min(...points.map((p) => p.distance)) ** 2;
   const unscale = Math.exp(-logScale);
   /** Scaled estimate and variance (scale-free ratios are taken from these). */
   const stats = () => {
@@ -174,7 +176,7 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
     const variance = Math.max(0, sumSquares / n - ps * ps);
     return { ps, ses: Math.sqrt(variance / n), variance };
   };
-  const formTails = points[0]!.form + points[1]!.form;
+  const formTails = points.reduce((acc, p) => acc + p.form, 0);
   const belowDoubleRange = formTails < 1e-300 && Math.exp(-logScale) === 0;
   if (belowDoubleRange) stopRule = 'below-double-range';
   try {
@@ -191,7 +193,7 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
         tasks.push({ kind: 'importance', design, seed, chunk: chunk++, count, spec, shifts: points.map((p) => p.u), logScale });
         planned += count;
       }
-      await runChunks(executor, tasks, (r) => consume(r as ImportanceResult), {
+      await runChunks(executor, taskList(tasks), consume, {
         signal: options.signal,
         onProgress: options.onProgress === undefined ? undefined : (d) => options.onProgress!(n + d, maxSamples),
       });
@@ -216,10 +218,10 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
   const lo = Math.max(0, p - z * se);
   const hi = Math.min(1, p + z * se);
   const formP = formTails;
-  const instances = design.spec.instances;
+  const instances = stage.design.spec.instances;
   const has = ps > 0;
   const relHalf = has ? (z * ses) / ps : null;
-  const formLevel = sigmaLevelOfTails([points[0]!.distance, points[1]!.distance]);
+  const formLevel = sigmaLevelOfTails(points.map((p) => p.distance));
   return {
     spec,
     failureProbability: p,

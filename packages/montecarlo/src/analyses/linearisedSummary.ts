@@ -1,5 +1,5 @@
-import { groupedBudget, linearisedSigma, varianceBudget, type Stage } from '@twinfet/core';
-import { twoSidedTail } from '../stats/normal.js';
+import { groupedBudget, linearisedSigma, specLimit, varianceBudget, type Stage } from '@twinfet/core';
+import { normalUpperTail, twoSidedTail } from '../stats/normal.js';
 import { chipYieldFromFailure } from '../stats/yield.js';
 
 /** The linearised (first-order) picture of a stage: sigma, budget, Gaussian yield. */
@@ -23,9 +23,10 @@ export interface LinearisedSummary {
 }
 
 /** Linearised sigma, variance budget and the Gaussian yield at `spec` (volts). */
-export function linearisedSummary(stage: Stage, spec = stage.design.spec.offset): LinearisedSummary {
+export function linearisedSummary(stage: Stage, spec = specLimit(stage.design)): LinearisedSummary {
   const sigma = linearisedSigma(stage);
-  const failure = twoSidedTail(spec / sigma);
+  // Two-sided: P(|x| > spec) = 2 Phi(-spec/sigma); one-sided: P(x > spec) = Phi(-spec/sigma).
+  const failure = stage.definition.figure.sided === 'two' ? twoSidedTail(spec / sigma) : normalUpperTail(spec / sigma);
   const instances = stage.design.spec.instances;
   return {
     sigma,

@@ -3,7 +3,7 @@
  * Every point uses the same seed, so neighbouring points share their random streams (common
  * random numbers) and the differences between them are not masked by sampling noise.
  */
-import { compileStage, InputError, linearisedSigma, type Design } from '@twinfet/core';
+import { compileStage, InputError, linearisedSigma, specLimit, type Design } from '@twinfet/core';
 import { createExecutor, defaultWorkers, type Executor } from '../engine/pool.js';
 import { seedText } from '../random/seed.js';
 import { simulate } from './simulate.js';
@@ -99,15 +99,16 @@ export async function sweepDesigns(designs: readonly Design[], options: SweepOpt
     }
   };
   const point = async (design: Design, index: number): Promise<SweepPointResult> => {
-    const spec = options.spec ?? design.spec.offset;
+    const stage = compileStage(design);
+    const spec = options.spec ?? specLimit(stage.design);
     const common = { seed, confidence, executor, spec, ...(options.signal === undefined ? {} : { signal: options.signal }) };
     const r = await simulate(design, { ...common, samples, keepOffsets: false });
     const tail = options.importance === true ? await estimateHighSigma(design, common) : undefined;
     return {
       index,
       spec,
-      instances: design.spec.instances,
-      analyticSigma: linearisedSigma(compileStage(design)),
+      instances: stage.design.spec.instances,
+      analyticSigma: linearisedSigma(stage),
       monteCarlo: {
         samples: r.evaluated,
         sigma: r.offset.sigma,

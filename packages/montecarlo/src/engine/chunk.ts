@@ -1,4 +1,6 @@
-import { compileStage, type Stage } from '@twinfet/core';
+// The compile entry alone: a worker needs no design-file reader (and so no YAML parser) to start.
+import { compileStage } from '@twinfet/core/compile';
+import type { Stage } from '@twinfet/core';
 import type { ChunkResult, ImportanceResult, ImportanceTask, MonteCarloResult, MonteCarloTask, ChunkTask } from './messages.js';
 import { addToHistogram, createHistogram } from '../stats/histogram.js';
 import { addBlock, emptyMoments } from '../stats/moments.js';
@@ -37,6 +39,8 @@ function monteCarloKernel(stage: Stage, task: MonteCarloTask): MonteCarloResult 
   const rng = chunkRng(task.seed, 'montecarlo', task.chunk);
   const histogram = createHistogram(task.histogram.lo, task.histogram.hi, task.histogram.bins);
   const spec = task.spec;
+  // A two-sided figure fails beyond +-spec; a one-sided one only above +spec.
+  const lowLimit = stage.definition.figure.sided === 'two' ? -spec : -Infinity;
   const offsets = task.keepOffsets ? new Float64Array(task.count) : undefined;
   const draws = task.keepDraws ? new Float64Array(task.count * dim) : undefined;
   const blockDraws = new Float64Array(BLOCK * dim);
@@ -49,7 +53,7 @@ function monteCarloKernel(stage: Stage, task: MonteCarloTask): MonteCarloResult 
     const n = Math.min(BLOCK, task.count - start);
     const u = draws === undefined ? blockDraws : draws.subarray(start * dim, (start + n) * dim);
     fillStandardNormals(rng, u, 0, n * dim);
-    const bad = stage.offsets(u, n, blockOut, 0);
+    const bad = stage.figures(u, n, blockOut, 0);
     // Kept offsets hold NaN where a solve failed, so rows stay aligned with the draws.
     if (offsets !== undefined) offsets.set(blockOut.subarray(0, n), start);
     let m = n;
@@ -65,7 +69,7 @@ function monteCarloKernel(stage: Stage, task: MonteCarloTask): MonteCarloResult 
     for (let i = 0; i < m; i++) {
       const x = blockOut[i]!;
       if (x > spec) failuresHigh++;
-      else if (x < -spec) failuresLow++;
+      else if (x < lowLimit) failuresLow++;
     }
     addBlock(moments, blockOut, 0, m);
     addToHistogram(histogram, blockOut, 0, m);
@@ -101,6 +105,7 @@ function importanceKernel(stage: Stage, task: ImportanceTask): ImportanceResult 
   const logK = Math.log(k);
   const logScale = task.logScale;
   const spec = task.spec;
+  const lowLimit = stage.definition.figure.sided === 'two' ? -spec : -Infinity;
   const u = new Float64Array(BLOCK * dim);
   const out = new Float64Array(BLOCK);
   const logw = new Float64Array(BLOCK);
@@ -134,11 +139,11 @@ function importanceKernel(stage: Stage, task: ImportanceTask): ImportanceResult 
       }
       logw[i] = logK - best - Math.log(acc);
     }
-    nonConverged += stage.offsets(u, n, out, 0);
+    nonConverged += stage.figures(u, n, out, 0);
     for (let i = 0; i < n; i++) {
       const x = out[i]!;
       if (x !== x) continue;
-      if (x > spec || x < -spec) {
+      if (x > spec || x < lowLimit) {
         const w = Math.exp(logw[i]! + logScale);
         hits++;
         sum += w;

@@ -3,13 +3,28 @@
  * one-parameter families of designs it searches over. Every size leaves the bias (tail current,
  * temperature) alone, so changing W or L alone moves the inversion coefficient and gm/I_D.
  */
-import { InputError, type Design, type DeviceGeometry, type DeviceRole } from '@twinfet/core';
+import { InputError, lacksText, stageDefinition, type BlockDefinition, type Design, type DeviceGeometry, type StageDefinition } from '@twinfet/core';
 
-/** What sizing may change: one dimension of one pair, both at fixed W/L (`area`), or both pairs. */
-export type SizeVary = 'input.w' | 'input.l' | 'input.area' | 'load.w' | 'load.l' | 'load.area' | 'both';
+/**
+ * What sizing may change: one dimension of one block (`input.w`, `load.l`), its gate or body
+ * area at fixed W/L (`input.area`), or `both`: every sizable block at the optimum area split.
+ */
+export type SizeVary = string;
 
-/** Every accepted `SizeVary`, in the order the help text lists them. */
+/** The variations a stage type accepts, in the order help texts list them. */
+export function sizeVariations(def: StageDefinition): SizeVary[] {
+  const blocks = def.blocks.filter((b) => b.sizable);
+  const out = blocks.flatMap((b) => [`${b.key}.w`, `${b.key}.l`, `${b.key}.area`]);
+  return blocks.length > 1 ? [...out, 'both'] : out;
+}
+
+/** Every variation some stage type accepts (input.w ... load.area, both), for help texts. */
 export const SIZE_VARIATIONS: readonly SizeVary[] = ['input.w', 'input.l', 'input.area', 'load.w', 'load.l', 'load.area', 'both'];
+
+/** The sizable blocks of a design's stage type. */
+export function sizableBlocks(design: Design): BlockDefinition[] {
+  return stageDefinition(design.topology).blocks.filter((b) => b.sizable);
+}
 
 /** Which dimension of a pair is scaled. */
 export type SizeDimension = 'w' | 'l' | 'area';
@@ -20,7 +35,7 @@ export const MAX_WIDTH_M = 1e-2;
 export const MAX_LENGTH_M = 1e-3;
 /** Largest gate area per device the search considers, m^2 (1e6 um^2; common practice, no source). */
 export const MAX_AREA_M2 = 1e-6;
-/** Smallest W or L when the process gives no wmin/lmin, m (0.1 um; common practice, no source). */
+/** Smallest W or L when the process gives no min_w/min_l, m (0.1 um; common practice, no source). */
 export const DEFAULT_MIN_DIMENSION_M = 1e-7;
 /** Sized dimensions are rounded up to this many significant digits, so files and reports agree exactly. */
 export const SIZE_DIGITS = 4;
@@ -44,17 +59,24 @@ export function ceilSignificant(x: number, digits: number = SIZE_DIGITS): number
   return Number(`${m}e${e}`);
 }
 
-/** The role and dimension of a single-pair variation. */
-export function splitVary(vary: Exclude<SizeVary, 'both'>): { role: DeviceRole; dimension: SizeDimension } {
-  const [role, dimension] = vary.split('.') as [DeviceRole, SizeDimension];
+/** The block and dimension of a single-block variation. */
+export function splitVary(vary: SizeVary): { role: string; dimension: SizeDimension } {
+  const [role, dimension] = vary.split('.') as [string, SizeDimension];
   return { role, dimension };
 }
 
-/** The pair of `role` in the design (the load exists only in a mirror stage). */
-export function pairOf(design: Design, role: DeviceRole): DeviceGeometry {
-  if (role === 'input') return design.input;
-  if (design.load === undefined) throw new Error('internal: load requested of a simple stage');
-  return design.load;
+/** The geometry of block `role` (MOS devices or resistor bodies: both have w and l). */
+export interface BlockGeometry {
+  readonly w: number;
+  readonly l: number;
+  readonly polarity?: DeviceGeometry['polarity'];
+}
+
+/** The block `role` of the design (checkVary has made sure the stage has it). */
+export function pairOf(design: Design, role: string): BlockGeometry {
+  const g = role === 'input' ? design.input : design[role];
+  if (typeof g !== 'object' || g === null) throw new Error(`internal: block ${role} missing`);
+  return g as BlockGeometry;
 }
 
 /**
@@ -62,25 +84,27 @@ export function pairOf(design: Design, role: DeviceRole): DeviceGeometry {
  * @throws InputError on `option`
  */
 export function checkVary(design: Design, vary: SizeVary, option = 'vary'): void {
-  if (!SIZE_VARIATIONS.includes(vary)) {
-    throw new InputError(option, `expected one of ${SIZE_VARIATIONS.join(', ')}, got ${JSON.stringify(vary)}`);
+  const def = stageDefinition(design.topology);
+  const accepted = sizeVariations(def);
+  if (accepted.includes(vary)) return;
+  if (SIZE_VARIATIONS.includes(vary)) {
+    const what = vary === 'both' ? `two or more sizable blocks, but this design is a ${def.topology} stage` : lacksText(def, splitVary(vary).role);
+    throw new InputError(option, `${vary} needs ${what}; vary ${accepted.join(', ')}`);
   }
-  if ((vary === 'both' || vary.startsWith('load.')) && design.topology !== 'mirror') {
-    throw new InputError(option, `${vary} needs a mirror load, but this design is a simple stage (ideal loads); vary input.w, input.l or input.area`);
-  }
+  throw new InputError(option, `expected one of ${accepted.join(', ')}, got ${JSON.stringify(vary)}`);
 }
 
 /** Geometry with `dimension` scaled so the gate area changes by `factor` (area: W and L by sqrt(factor)). */
-export function scaleGeometry(g: DeviceGeometry, dimension: SizeDimension, factor: number): DeviceGeometry {
+export function scaleGeometry<G extends BlockGeometry>(g: G, dimension: SizeDimension, factor: number): G {
   if (dimension === 'w') return { ...g, w: ceilSignificant(g.w * factor) };
   if (dimension === 'l') return { ...g, l: ceilSignificant(g.l * factor) };
   const r = Math.sqrt(factor);
   return { ...g, w: ceilSignificant(g.w * r), l: ceilSignificant(g.l * r) };
 }
 
-/** The design with the pair of `role` replaced. */
-export function withPair(design: Design, role: DeviceRole, g: DeviceGeometry): Design {
-  return role === 'input' ? { ...design, input: g } : { ...design, load: g };
+/** The design with the block `role` replaced. */
+export function withPair(design: Design, role: string, g: BlockGeometry): Design {
+  return { ...design, [role]: g };
 }
 
 /** Allowed range of the area factor of one pair, and the limits that set it. */
@@ -88,10 +112,10 @@ export interface FactorRange {
   /** Smallest and largest area factor relative to the design's own pair. */
   readonly min: number;
   readonly max: number;
-  /** Smallest W and L allowed, m (the process wmin/lmin, else {@link DEFAULT_MIN_DIMENSION_M}). */
+  /** Smallest W and L allowed, m (the process min_w/min_l, else {@link DEFAULT_MIN_DIMENSION_M}). */
   readonly minWidth: number;
   readonly minLength: number;
-  /** True when the floor is the process's own wmin/lmin. */
+  /** True when the floor is the process's own min_w/min_l. */
   readonly processMinimum: boolean;
   /** The upper limit in words, e.g. "W up to 10 mm". */
   readonly upperText: string;
@@ -102,12 +126,13 @@ export interface FactorRange {
  * process minimum width and length (or 0.1 um), caps at {@link MAX_WIDTH_M}, {@link MAX_LENGTH_M}
  * and {@link MAX_AREA_M2}. A design already outside these bounds keeps its own size as the bound.
  */
-export function factorRange(design: Design, role: DeviceRole, dimension: SizeDimension): FactorRange {
+export function factorRange(design: Design, role: string, dimension: SizeDimension): FactorRange {
   const g = pairOf(design, role);
-  const proc = design.process[g.polarity];
-  if (proc === undefined) throw new Error(`internal: process.${g.polarity} missing`);
-  const minWidth = proc.wmin ?? DEFAULT_MIN_DIMENSION_M;
-  const minLength = proc.lmin ?? DEFAULT_MIN_DIMENSION_M;
+  // Resistor bodies have no process minimum here: the default floor applies.
+  const proc = g.polarity === undefined ? undefined : design.process[g.polarity];
+  if (g.polarity !== undefined && proc === undefined) throw new Error(`internal: process.${g.polarity} missing`);
+  const minWidth = proc?.minW ?? DEFAULT_MIN_DIMENSION_M;
+  const minLength = proc?.minL ?? DEFAULT_MIN_DIMENSION_M;
   const area = g.w * g.l;
   let lo: number;
   let hi: number;
@@ -130,16 +155,13 @@ export function factorRange(design: Design, role: DeviceRole, dimension: SizeDim
     max: Math.max(1, hi),
     minWidth,
     minLength,
-    processMinimum: proc.wmin !== undefined || proc.lmin !== undefined,
+    processMinimum: proc?.minW !== undefined || proc?.minL !== undefined,
     upperText,
   };
 }
 
-/** Area factors of the pairs at one point of a family (load only when it is varied). */
-export interface PairFactors {
-  readonly input?: number;
-  readonly load?: number;
-}
+/** Area factors of the varied blocks at one point of a family, by block key. */
+export type PairFactors = Readonly<Record<string, number>>;
 
 /**
  * A one-parameter family of designs: `at(t)` is the design at scale t in [range[0], range[1]],
@@ -156,7 +178,7 @@ export interface SizingFamily {
 }
 
 /** The family of a single-pair variation: t is the area factor of that pair. */
-export function singlePairFamily(design: Design, vary: Exclude<SizeVary, 'both'>): SizingFamily {
+export function singlePairFamily(design: Design, vary: SizeVary): SizingFamily {
   const { role, dimension } = splitVary(vary);
   const r = factorRange(design, role, dimension);
   const g = pairOf(design, role);
@@ -164,7 +186,7 @@ export function singlePairFamily(design: Design, vary: Exclude<SizeVary, 'both'>
     vary,
     range: [r.min, r.max],
     at: (t) => withPair(design, role, scaleGeometry(g, dimension, clamp(t, r.min, r.max))),
-    factors: (t) => (role === 'input' ? { input: clamp(t, r.min, r.max) } : { load: clamp(t, r.min, r.max) }),
+    factors: (t) => ({ [role]: clamp(t, r.min, r.max) }),
     limitText: r.upperText,
   };
 }

@@ -3,11 +3,11 @@
  * model (Monte Carlo for sigma and moderate yields, importance sampling for high-sigma yields)
  * and scale up a little until the confirmed figure meets the target with its interval.
  */
-import { compileStage, formatQuantity, InputError, linearisedSigma, type Design, type DeviceRole, type InversionRegion, type Stage } from '@twinfet/core';
+import { compileStage, formatQuantity, InputError, linearisedSigma, type Design, type InversionRegion, type Polarity, type Stage, MISMATCH_PARAMETERS, specLimit, stageDefinition } from '@twinfet/core';
 import { areaSplit, equalScalingFamily, optimalSplitFamily, type AreaSplit } from './areaSplit.js';
-import { normalQuantile, sigmaLevel, twoSidedTail } from '../stats/normal.js';
+import { normalQuantile, normalUpperTail, sigmaLevel, twoSidedTail } from '../stats/normal.js';
 import { createExecutor, defaultWorkers, type Executor } from '../engine/pool.js';
-import { checkVary, DEFAULT_MIN_DIMENSION_M, singlePairFamily, type SizeVary, type SizingFamily } from './resize.js';
+import { checkVary, DEFAULT_MIN_DIMENSION_M, pairOf, sizableBlocks, singlePairFamily, splitVary, type SizeVary, type SizingFamily } from './resize.js';
 import { seedText } from '../random/seed.js';
 import { simulate } from '../analyses/simulate.js';
 import { limitingTerm, solveLinearised, type LinearisedFloor, type LinearisedSolution } from './sizeLinearised.js';
@@ -54,19 +54,19 @@ export const TAIL_RELATIVE_HALF_WIDTH = 0.05;
 /** Largest Monte Carlo confirmation of a yield. */
 export const MAX_CONFIRM_SAMPLES = 2e7;
 
-/** One pair's geometry and operating point, SI units. */
+/** One block's geometry and operating point, SI units (MOS figures null for resistors). */
 export interface PairSizing {
-  readonly role: DeviceRole;
-  readonly polarity: 'n' | 'p';
+  readonly role: string;
+  readonly polarity: Polarity | null;
   /** W and L, m. */
   readonly w: number;
   readonly l: number;
-  /** Gate area W L of one device, m^2. */
+  /** Gate (or resistor body) area W L of one element, m^2. */
   readonly gateArea: number;
-  readonly ic: number;
-  readonly region: InversionRegion;
+  readonly ic: number | null;
+  readonly region: InversionRegion | null;
   /** gm/I_D, 1/V. */
-  readonly gmOverId: number;
+  readonly gmOverId: number | null;
   /** Cox W L of one device, F, or null when the process gives no cox. */
   readonly gateCapacitance: number | null;
 }
@@ -151,6 +151,8 @@ export interface SizeReport {
     readonly equal: { readonly input: number; readonly load: number; readonly total: number; readonly factor: number };
     /** 1 - optimum.total / equal.total. */
     readonly saving: number;
+    /** Every sizable block: its coefficient C_k, optimum share and per-element areas, m^2. */
+    readonly blocks: readonly { readonly block: string; readonly coefficient: number; readonly share: number; readonly optimum: number; readonly equal: number }[];
   };
   /** The sized design, SI units. */
   readonly design: Design;
@@ -158,10 +160,14 @@ export interface SizeReport {
   readonly warnings: readonly string[];
 }
 
-/** The pair summary of role in a compiled stage. */
-function pairSizing(stage: Stage, role: DeviceRole): PairSizing {
+/** The block summary of `role` in a compiled stage. */
+function pairSizing(stage: Stage, role: string): PairSizing {
   const op = stage.operatingPoint.find((o) => o.role === role);
-  if (op === undefined) throw new Error(`internal: no ${role} device`);
+  if (op === undefined) {
+    const r = stage.resistors?.find((x) => x.role === role);
+    if (r === undefined) throw new Error(`internal: no ${role} element`);
+    return { role, polarity: null, w: r.w, l: r.l, gateArea: r.area, ic: null, region: null, gmOverId: null, gateCapacitance: null };
+  }
   return {
     role,
     polarity: op.polarity,
@@ -175,49 +181,64 @@ function pairSizing(stage: Stage, role: DeviceRole): PairSizing {
   };
 }
 
-function variedRoles(vary: SizeVary): DeviceRole[] {
-  return vary === 'both' ? ['input', 'load'] : [vary.startsWith('input.') ? 'input' : 'load'];
+function variedRoles(design: Design, vary: SizeVary): string[] {
+  return vary === 'both' ? sizableBlocks(design).map((b) => b.key) : [splitVary(vary).role];
+}
+
+/** The Gaussian failure at `spec` for a figure of linearised `sigma`: two-sided or one-sided. */
+function gaussianFailure(design: Design, spec: number, sigma: number): number {
+  return stageDefinition(design.topology).figure.sided === 'two' ? twoSidedTail(spec / sigma) : normalUpperTail(spec / sigma);
+}
+
+/** The Gaussian sigma whose failure at `spec` is p (the inverse of gaussianFailure). */
+function sigmaForFailure(design: Design, spec: number, p: number): number {
+  return spec / (stageDefinition(design.topology).figure.sided === 'two' ? sigmaLevel(p) : normalQuantile(1 - p));
 }
 
 /** Geometry, operating point and linearised figures of a design. */
 export function sizedPoint(design: Design, vary: SizeVary, scale: number, spec: number): SizedPoint {
   const stage = compileStage(design);
-  const roles: DeviceRole[] = design.load === undefined ? ['input'] : ['input', 'load'];
+  const roles = sizableBlocks(design).map((b) => b.key);
   const pairs = roles.map((r) => pairSizing(stage, r));
   const sigma = linearisedSigma(stage);
-  const areaOf = (r: DeviceRole): number => 2 * (pairs.find((p) => p.role === r)?.gateArea ?? 0);
+  const count = (r: string): number => stage.definition.blocks.find((b) => b.key === r)?.elements.length ?? 2;
+  const areaOf = (r: string): number => count(r) * (pairs.find((p) => p.role === r)?.gateArea ?? 0);
   return {
     scale,
     pairs,
     sigmaLinearised: sigma,
-    variedArea: variedRoles(vary).reduce((a, r) => a + areaOf(r), 0),
+    variedArea: variedRoles(design, vary).reduce((a, r) => a + areaOf(r), 0),
     totalGateArea: roles.reduce((a, r) => a + areaOf(r), 0),
-    gaussianFailure: twoSidedTail(spec / sigma),
+    gaussianFailure: gaussianFailure(design, spec, sigma),
     inputCapacitance: pairs[0]!.gateCapacitance,
   };
 }
 
 const mvText = (v: number): string => `${Number((v * 1e3).toPrecision(4))} mV`;
 
-const TERM_NAMES: Record<string, string> = {
-  'input.vt': 'the input pair dV_T term A_VT/sqrt(WL)',
-  'input.beta': 'the input pair dbeta/beta term (I_D/gm) A_beta/sqrt(WL)',
-  'load.vt': 'the load pair dV_T term (gm_load/gm_in) A_VT/sqrt(WL_load)',
-  'load.beta': 'the load pair dbeta/beta term (I_D/gm_in) A_beta/sqrt(WL_load)',
-};
+/** The words for a budget term: block, parameter and the first-order coefficient in front of it. */
+function termName(role: string, parameter: string): string {
+  const label = MISMATCH_PARAMETERS[parameter as keyof typeof MISMATCH_PARAMETERS]?.label ?? parameter;
+  const coefficient =
+    role === 'input'
+      ? { vt: 'A_VT/sqrt(WL)', beta: '(I_D/gm) A_beta/sqrt(WL)', r: '(I_D/gm) A_R/sqrt(WL)' }
+      : { vt: `(gm_${role}/gm_in) A_VT/sqrt(WL_${role})`, beta: `(I_D/gm_in) A_beta/sqrt(WL_${role})`, r: `(I_D/gm_in) A_R/sqrt(WL_${role})` };
+  return `the ${role} pair ${label} term ${coefficient[parameter as keyof typeof coefficient] ?? ''}`.trimEnd();
+}
 
 /** Why the limiting term does not fall further along this family, in words. */
 function floorReason(vary: SizeVary, f: LinearisedFloor, family: SizingFamily): string {
   const term = f.limiting;
-  const name = `${TERM_NAMES[`${term.role}.${term.parameter}`]!} (${(term.share * 100).toFixed(0)}% of sigma^2 there)`;
-  const varied = variedRoles(vary).includes(term.role);
+  const design = family.at(family.range[0]);
+  const name = `${termName(term.role, term.parameter)} (${(term.share * 100).toFixed(0)}% of sigma^2 there)`;
+  const varied = variedRoles(design, vary).includes(term.role);
   if (!varied) {
-    const fix = term.role === 'load' ? 'vary load.area or both' : 'vary input.area or both';
+    const fix = `vary ${term.role}.area${sizableBlocks(design).length > 1 ? ' or both' : ''}`;
     let why: string;
     if (vary === 'input.w') why = 'which widening the input pair lowers only until its gm/I_D saturates in weak inversion';
     else if (vary === 'input.l') why = 'which grows as the input pair is lengthened (gm_in falls at fixed bias)';
     else if (vary === 'input.area') why = 'which sizing the input pair at fixed W/L does not change';
-    else why = 'which sizing the load does not change';
+    else why = `which sizing the ${splitVary(vary).role} does not change`;
     return `set by ${name}, ${why}; ${fix}`;
   }
   if (vary.endsWith('.l') && term.parameter === 'beta') {
@@ -230,7 +251,7 @@ function floorReason(vary: SizeVary, f: LinearisedFloor, family: SizingFamily): 
 /** The refusal for a target below the family's floor. */
 function unreachable(option: string, targetText: string, vary: SizeVary, f: LinearisedFloor, family: SizingFamily, spec: number, yieldTarget: boolean): InputError {
   const best = yieldTarget
-    ? `the best instance yield is ${(1 - twoSidedTail(spec / f.floor.sigma)).toPrecision(6)} (lowest linearised sigma ${mvText(f.floor.sigma)} at spec ${mvText(spec)})`
+    ? `the best instance yield is ${(1 - gaussianFailure(family.at(family.range[0]), spec, f.floor.sigma)).toPrecision(6)} (lowest linearised sigma ${mvText(f.floor.sigma)} at spec ${mvText(spec)})`
     : `the lowest linearised sigma is ${mvText(f.floor.sigma)}`;
   return new InputError(option, `${targetText} cannot be met by varying ${vary}: ${best}, ${floorReason(vary, f, family)}`);
 }
@@ -277,7 +298,7 @@ function plan(design: Design, o: SizeOptions, spec: number, confidence: number):
     targetText = `chip yield ${t.chipYield} over ${instances} instance${instances === 1 ? '' : 's'}`;
   }
   if (!(p > 0)) throw new InputError(option, `${targetText} allows a failure probability below double precision; give a lower target`);
-  const sigmaTarget = spec / sigmaLevel(p);
+  const sigmaTarget = sigmaForFailure(design, spec, p);
   if (p >= IMPORTANCE_BELOW) {
     const n = Math.ceil((z * z) / (YIELD_RELATIVE_HALF_WIDTH ** 2 * p));
     return {
@@ -309,97 +330,36 @@ function plan(design: Design, o: SizeOptions, spec: number, confidence: number):
  * r.design.input.w // metres
  */
 export async function sizeDesign(design: Design, options: SizeOptions): Promise<SizeReport> {
-  compileStage(design); // validates at the edge
+  design = compileStage(design).design; // validates at the edge, defaults filled in
   const vary = options.vary ?? 'input.w';
   checkVary(design, vary);
-  const spec = options.spec ?? design.spec.offset;
+  const spec = options.spec ?? specLimit(design);
   if (!(spec > 0 && Number.isFinite(spec))) throw new InputError('spec', `expected a positive offset limit in volts, got ${String(spec)}`);
   const confidence = options.confidence ?? 0.95;
   if (!(confidence > 0 && confidence < 1)) throw new InputError('confidence', `expected a level strictly between 0 and 1 such as 0.95, got ${String(confidence)}`);
-  const maxRefinements = options.maxRefinements ?? 8;
-  const seed = seedText(options.seed);
   const pl = plan(design, options, spec, confidence);
   const notes: string[] = [];
 
-  let split: AreaSplit | undefined;
-  let family: SizingFamily;
-  if (vary === 'both') {
-    split = areaSplit(design);
-    family = optimalSplitFamily(design, split);
-  } else family = singlePairFamily(design, vary);
-
+  const split = vary === 'both' ? areaSplit(design) : undefined;
+  const family = split === undefined ? singlePairFamily(design, vary) : optimalSplitFamily(design, split);
   const lin = solveLinearised(family, pl.sigmaTarget);
   if (!lin.reached) throw unreachable(pl.option, pl.targetText, vary, lin, family, spec, pl.allowed !== null);
   if (lin.atMinimum) notes.push(`the target is met already at the smallest size allowed (linearised sigma ${mvText(lin.sigma)}); the devices are set to that minimum`);
 
   const original = sizedPoint(design, vary, 1, spec);
   const linearised = { ...sizedPoint(lin.design, vary, lin.t, spec), atMinimum: lin.atMinimum };
-
-  const executor = options.executor ?? createExecutor(options.workers ?? defaultWorkers());
-  const confirmations: Confirmation[] = [];
-  let current: LinearisedSolution = lin;
-  try {
-    for (let i = 0; ; i++) {
-      const s = i === 0 ? seed : `${seed}/refine-${i}`;
-      const c = await confirm(current, vary, spec, pl, s, confidence, executor, options.signal);
-      confirmations.push(c);
-      if (c.met) break;
-      if (i >= maxRefinements) {
-        throw new InputError(pl.option, `${pl.targetText} was not confirmed on the exact model after ${i + 1} confirmations (last: ${describeFigure(c)}); use more samples or relax the target`);
-      }
-      const next = refine(family, current, c, pl);
-      if (!next.reached) {
-        throw new InputError(pl.option, `${pl.targetText} cannot be confirmed by varying ${vary}: the exact model needs a lower linearised sigma than ${mvText(next.floor.sigma)}, the lowest reachable, ${floorReason(vary, next, family)}`);
-      }
-      current = next;
-    }
-  } finally {
-    if (options.executor === undefined) await executor.close();
-  }
+  const { confirmations, current } = await confirmAlong(family, lin, { vary, spec, pl, confidence, seed: seedText(options.seed), options });
   const confirmed = confirmations[confirmations.length - 1]!;
   if (confirmations.length > 1) {
     notes.push(`the linearised solution was scaled up ${confirmations.length - 1} time(s) until the exact-model figure met the target with its interval`);
   }
-
   const result = confirmed.point;
   const sigmaOriginal = original.sigmaLinearised;
   const ruleArea = original.variedArea * (sigmaOriginal / pl.sigmaTarget) ** 2;
   const areaCost = { sigmaOriginal, sigmaTarget: pl.sigmaTarget, originalArea: original.variedArea, ruleArea, resultArea: result.variedArea, ratio: result.variedArea / ruleArea };
-  if (vary !== 'both' && design.load !== undefined) {
-    notes.push('the area rule assumes all of sigma^2 scales with the varied area; here the other pair keeps its part, so more area is needed than the rule says');
-  }
-  if (vary.endsWith('.w') || vary.endsWith('.l')) {
-    notes.push(`changing only ${vary.endsWith('.w') ? 'W' : 'L'} at fixed bias moves the inversion coefficient and gm/I_D, so the dbeta/beta and load terms change too`);
-  }
-  for (const role of variedRoles(vary)) {
-    const before = role === 'input' ? design.input : design.load!;
-    const after = role === 'input' ? current.design.input : current.design.load!;
-    const proc = design.process[before.polarity]!;
-    if ((after.w < before.w || after.l < before.l) && proc.wmin === undefined && proc.lmin === undefined) {
-      notes.push(`process.${before.polarity} gives no wmin/lmin, so the ${role} pair was not made smaller than ${formatQuantity(DEFAULT_MIN_DIMENSION_M, 'm')} in W or L; add them for your process`);
-    }
-  }
-  notes.push(`sized dimensions are rounded up to 4 significant digits${vary.endsWith('.area') || vary === 'both' ? ' (W/L kept to that rounding)' : ''}`);
+  notes.push(...sizingNotes(design, current.design, vary));
+  const splitReport = split === undefined ? null : splitComparison(design, split, lin, pl.sigmaTarget, notes);
 
-  let splitReport: SizeReport['split'] = null;
-  if (split !== undefined) {
-    const eq = solveLinearised(equalScalingFamily(design), pl.sigmaTarget);
-    const perDevice = (d: Design) => ({ input: d.input.w * d.input.l, load: d.load!.w * d.load!.l });
-    const opt = perDevice(lin.design);
-    if (eq.reached) {
-      const e = perDevice(eq.design);
-      splitReport = {
-        inputCoefficient: split.inputCoefficient,
-        loadCoefficient: split.loadCoefficient,
-        inputShare: split.inputShare,
-        optimum: { ...opt, total: opt.input + opt.load },
-        equal: { ...e, total: e.input + e.load, factor: eq.t },
-        saving: 1 - (opt.input + opt.load) / (e.input + e.load),
-      };
-    } else notes.push('scaling both pairs by one factor cannot reach the target within the allowed sizes, so there is no equal-scaling comparison');
-  }
-
-  const warnings = [...compileStage(current.design).warnings];
   return {
     vary,
     target: { ...options.target, sigmaEquivalent: pl.sigmaTarget, allowedFailure: pl.allowed },
@@ -416,7 +376,93 @@ export async function sizeDesign(design: Design, options: SizeOptions): Promise<
     split: splitReport,
     design: current.design,
     notes,
-    warnings,
+    warnings: [...compileStage(current.design).warnings],
+  };
+}
+
+/**
+ * Confirms the linearised solution on the exact model, each time on a stream of its own, and
+ * scales it up along the family until the confirmed figure meets the target with its interval.
+ * @throws InputError on the target's option when it cannot be confirmed
+ */
+async function confirmAlong(
+  family: SizingFamily,
+  lin: LinearisedSolution,
+  c: { readonly vary: SizeVary; readonly spec: number; readonly pl: Plan; readonly confidence: number; readonly seed: string; readonly options: SizeOptions },
+): Promise<{ confirmations: Confirmation[]; current: LinearisedSolution }> {
+  const { vary, spec, pl, confidence, seed, options } = c;
+  const maxRefinements = options.maxRefinements ?? 8;
+  const executor = options.executor ?? createExecutor(options.workers ?? defaultWorkers());
+  const confirmations: Confirmation[] = [];
+  let current = lin;
+  try {
+    for (let i = 0; ; i++) {
+      const s = i === 0 ? seed : `${seed}/refine-${i}`;
+      const conf = await confirm(current, vary, spec, pl, s, confidence, executor, options.signal);
+      confirmations.push(conf);
+      if (conf.met) return { confirmations, current };
+      if (i >= maxRefinements) {
+        throw new InputError(pl.option, `${pl.targetText} was not confirmed on the exact model after ${i + 1} confirmations (last: ${describeFigure(conf)}); use more samples or relax the target`);
+      }
+      const next = refine(family, current, conf, pl);
+      if (!next.reached) {
+        throw new InputError(pl.option, `${pl.targetText} cannot be confirmed by varying ${vary}: the exact model needs a lower linearised sigma than ${mvText(next.floor.sigma)}, the lowest reachable, ${floorReason(vary, next, family)}`);
+      }
+      current = next;
+    }
+  } finally {
+    if (options.executor === undefined) await executor.close();
+  }
+}
+
+/** What the reader of a sizing report should know about how the sized design was reached. */
+function sizingNotes(design: Design, sized: Design, vary: SizeVary): string[] {
+  const notes: string[] = [];
+  if (vary !== 'both' && sizableBlocks(design).length > 1) {
+    notes.push('the area rule assumes all of sigma^2 scales with the varied area; here the other pair keeps its part, so more area is needed than the rule says');
+  }
+  if (vary.endsWith('.w') || vary.endsWith('.l')) {
+    notes.push(`changing only ${vary.endsWith('.w') ? 'W' : 'L'} at fixed bias moves the inversion coefficient and gm/I_D, so the dbeta/beta and load terms change too`);
+  }
+  for (const role of variedRoles(design, vary)) {
+    const before = pairOf(design, role);
+    const after = pairOf(sized, role);
+    const proc = before.polarity === undefined ? undefined : design.process[before.polarity];
+    if ((after.w < before.w || after.l < before.l) && proc?.minW === undefined && proc?.minL === undefined) {
+      const where = before.polarity === undefined ? 'the design gives no smallest size for resistor bodies' : `process.${before.polarity} gives no min_w/min_l`;
+      notes.push(`${where}, so the ${role} pair was not made smaller than ${formatQuantity(DEFAULT_MIN_DIMENSION_M, 'm')} in W or L${before.polarity === undefined ? '' : '; add them for your process'}`);
+    }
+  }
+  notes.push(`sized dimensions are rounded up to 4 significant digits${vary.endsWith('.area') || vary === 'both' ? ' (W/L kept to that rounding)' : ''}`);
+  return notes;
+}
+
+/** For `both`: the optimum split's areas against scaling every block by one factor (linearised). */
+function splitComparison(design: Design, split: AreaSplit, lin: LinearisedSolution, sigmaTarget: number, notes: string[]): SizeReport['split'] {
+  const eq = solveLinearised(equalScalingFamily(design), sigmaTarget);
+  if (!eq.reached) {
+    notes.push('scaling both pairs by one factor cannot reach the target within the allowed sizes, so there is no equal-scaling comparison');
+    return null;
+  }
+  const blocks = split.blocks;
+  const perDevice = (d: Design): Record<string, number> =>
+    Object.fromEntries(
+      blocks.map((b) => {
+        const g = pairOf(d, b);
+        return [b, g.w * g.l];
+      }),
+    );
+  const total = (a: Record<string, number>): number => blocks.reduce((acc, b) => acc + a[b]!, 0);
+  const opt = perDevice(lin.design);
+  const e = perDevice(eq.design);
+  return {
+    inputCoefficient: split.inputCoefficient,
+    loadCoefficient: split.loadCoefficient,
+    inputShare: split.inputShare,
+    optimum: { input: opt['input']!, load: opt['load'] ?? 0, total: total(opt) },
+    equal: { input: e['input']!, load: e['load'] ?? 0, total: total(e), factor: eq.t },
+    saving: 1 - total(opt) / total(e),
+    blocks: blocks.map((b, k) => ({ block: b, coefficient: split.coefficients[k]!, share: split.shares[k]!, optimum: opt[b]!, equal: e[b]! })),
   };
 }
 

@@ -7,7 +7,7 @@
  * bisected over the whole range, because sigma need not fall monotonically: lengthening the input
  * pair at fixed bias raises I_D/gm, and in a mirror stage that raises the load terms.
  */
-import { compileStage, groupedBudget, linearisedSigma, type Design, type DeviceRole, type MismatchParameter } from '@twinfet/core';
+import { compileStage, groupedBudget, linearisedSigma, type Design, type MismatchParameter } from '@twinfet/core';
 import type { SizingFamily } from './resize.js';
 
 /** Grid points per decade of the scale (the floor is located to about 6% in scale). */
@@ -32,7 +32,7 @@ export interface LinearisedSolution extends FamilyPoint {
 
 /** The largest share of sigma^2 at a point: the term that limits it. */
 export interface LimitingTerm {
-  readonly role: DeviceRole;
+  readonly role: string;
   readonly parameter: MismatchParameter;
   /** Fraction of sigma^2, 0..1. */
   readonly share: number;

@@ -5,7 +5,7 @@
  * stage with a load the split of area between the pairs that meets the same target with the
  * least total.
  */
-import { compileStage, InputError, validateDesign, type Design } from '@twinfet/core';
+import { compileStage, InputError, stageDefinition, validateDesign, type Design } from '@twinfet/core';
 import {
   allowedFailure,
   areaSplit,
@@ -65,18 +65,23 @@ export type AreaMeets =
   /** Not reached even at `atFactor` times today's input area, where sigma is still `floor`: the terms the input area does not reach (the load's) remain. */
   | { readonly reached: false; readonly floor: number; readonly atFactor: number };
 
-/** The least-area split between the input pair and the load for the sigma target. */
+/**
+ * The least-area split of gate (and resistor body) area between the stage's sizable blocks for
+ * the sigma target, against scaling every block by one factor from today's split.
+ */
 export interface AreaSplitStudy {
-  /** Input share of the per-device area sum (one input plus one load device), today and at the optimum. */
-  readonly todayShare: number;
-  readonly optimumShare: number;
-  /** Per-device area sums a_in + a_load that meet the target, m^2: at the optimum, and scaling both pairs by one factor. */
+  /** The sizable blocks, the input first, with their labels. */
+  readonly blocks: readonly { readonly key: string; readonly label: string }[];
+  /** Each block's share of the per-element area sum (one element of each block), today and at the optimum. */
+  readonly todayShares: readonly number[];
+  readonly optimumShares: readonly number[];
+  /** Per-element area sums that meet the target, m^2: at the optimum, and scaling every block by one factor. */
   readonly optimumTotal: number;
   readonly equalTotal: number;
   /** 1 - optimum / equal. */
   readonly saving: number;
-  /** The total needed at each input share, m^2. */
-  readonly curve: readonly { readonly share: number; readonly total: number }[];
+  /** With two blocks, the total needed at each input share, m^2; null with more. */
+  readonly curve: readonly { readonly share: number; readonly total: number }[] | null;
 }
 
 /** The whole area study. */
@@ -177,26 +182,39 @@ function meetsTarget(design: Design, spec: number, sigmaTarget: number, area0: n
 }
 
 /**
- * The least-total split (see the sizing module): sigma^2 = A / a_in + B / a_load, so the total
- * a_in + a_load meeting sigma_t at input share s is (A / s + B / (1 - s)) / sigma_t^2, least at
- * s = sqrt(A) / (sqrt(A) + sqrt(B)).
+ * The least-total split (the sizing module's areaSplit): with W/L kept, sigma^2 = sum_k C_k / a_k,
+ * so the least sum of a_k meeting sigma_t is (sum_k sqrt C_k)^2 / sigma_t^2 with a_k in
+ * proportion to sqrt C_k, against (sum_k C_k / a_k0)(sum_k a_k0) / sigma_t^2 scaling every block
+ * from today's a_k0 (Pelgrom 1989; Kinget, IEEE JSSC 40(6), 2005). With two blocks the total at
+ * input share s is (C_in / s + C_other / (1 - s)) / sigma_t^2.
  */
 function splitStudy(design: Design, sigmaTarget: number): AreaSplitStudy | null {
-  const load = design.load;
-  if (load === undefined) return null;
   const s = areaSplit(design);
-  const A = s.inputCoefficient;
-  const B = s.loadCoefficient;
-  const t2 = sigmaTarget * sigmaTarget;
-  const total = (share: number): number => (A / share + B / (1 - share)) / t2;
-  const ai = design.input.w * design.input.l;
-  const al = load.w * load.l;
-  const todayShare = ai / (ai + al);
-  const curve = Array.from({ length: 91 }, (_, i) => {
-    const share = 0.05 + (0.9 * i) / 90;
-    return { share, total: total(share) };
+  if (s.blocks.length < 2) return null;
+  const labels = new Map(stageDefinition(design.topology).blocks.map((b) => [b.key, b.label]));
+  const areas = s.blocks.map((k) => {
+    const g = (k === 'input' ? design.input : design[k]) as { readonly w: number; readonly l: number };
+    return g.w * g.l;
   });
-  const optimumTotal = total(s.inputShare);
-  const equalTotal = total(todayShare);
-  return { todayShare, optimumShare: s.inputShare, optimumTotal, equalTotal, saving: 1 - optimumTotal / equalTotal, curve };
+  const sumAreas = areas.reduce((x, y) => x + y, 0);
+  const t2 = sigmaTarget * sigmaTarget;
+  const C = s.coefficients;
+  const optimumTotal = C.map(Math.sqrt).reduce((x, y) => x + y, 0) ** 2 / t2;
+  const equalTotal = (C.reduce((x, c, k) => x + c / areas[k]!, 0) * sumAreas) / t2;
+  const curve =
+    C.length === 2
+      ? Array.from({ length: 91 }, (_, i) => {
+          const share = 0.05 + (0.9 * i) / 90;
+          return { share, total: (C[0]! / share + C[1]! / (1 - share)) / t2 };
+        })
+      : null;
+  return {
+    blocks: s.blocks.map((key) => ({ key, label: labels.get(key) ?? key })),
+    todayShares: areas.map((a) => a / sumAreas),
+    optimumShares: s.shares,
+    optimumTotal,
+    equalTotal,
+    saving: 1 - optimumTotal / equalTotal,
+    curve,
+  };
 }

@@ -6,23 +6,25 @@ import { shown } from '../../plot.js';
 import { AREA_RANGE } from '../analyses/area.js';
 import type { ReportData } from '../data.js';
 import { esc, figure, num, pairs, type Section } from '../html.js';
-import { percent, plain, q, um2 } from '../units.js';
+import { figureUnit, percent, plain, q, um2 } from '../units.js';
 import { figureDisplay } from './distribution.js';
 
 export function areaSection(d: ReportData): Section {
   const a = d.area;
   const fq = figureDisplay(d);
   const s = fq.scale;
-  const u = d.stage.figure.unit;
+  const u = figureUnit(d.stage.figure);
   const t = a.target;
   const um2f = 1e12;
   const xs = a.curve.map((p) => p.inputArea * um2f);
   const x = logAxis('gate area of one input device W\u00b7L (\u00b5m\u00b2)', xs);
   const today = a.today.inputArea * um2f;
   const meets = a.meets;
+  // The two vertical lines are often close: each label goes on its own outer side.
+  const meetsLeft = meets.reached && meets.inputArea * um2f < today;
   const meetRule = (name: string): Layer[] =>
-    meets.reached && meets.inRange ? [{ kind: 'rule', name, axis: 'x', value: meets.inputArea * um2f, label: `meets target: ${plain(meets.inputArea * um2f, 3)} \u00b5m\u00b2`, stroke: COLOR.fit, dash: DASH.spec, side: 'end' }] : [];
-  const todayRule = (name: string): Layer => ({ kind: 'rule', name, axis: 'x', value: today, label: `today ${plain(today, 3)} \u00b5m\u00b2`, stroke: OUTLINE, dash: DASH.law, side: 'start' });
+    meets.reached && meets.inRange ? [{ kind: 'rule', name, axis: 'x', value: meets.inputArea * um2f, label: `meets target: ${plain(meets.inputArea * um2f, 3)} \u00b5m\u00b2`, stroke: COLOR.fit, dash: DASH.spec, side: meetsLeft ? 'start' : 'end' }] : [];
+  const todayRule = (name: string): Layer => ({ kind: 'rule', name, axis: 'x', value: today, label: `today ${plain(today, 3)} \u00b5m\u00b2`, stroke: OUTLINE, dash: DASH.law, side: meetsLeft ? 'end' : 'start' });
   const mc = a.monteCarlo;
   const sigmaLayers: Layer[] = [
     { kind: 'line', name: 'sigma-linearised', legend: 'linearised', points: a.curve.map((p, i) => [xs[i]!, p.sigma * s] as const), stroke: COLOR.main, width: 2 },
@@ -65,23 +67,32 @@ export function areaSection(d: ReportData): Section {
 
   const sp = a.split;
   if (sp !== null) {
-    const layers: Layer[] = [
-      { kind: 'line', name: 'split-total', legend: 'total gate area meeting the target', points: sp.curve.map((p) => [100 * p.share, p.total * um2f] as const), stroke: COLOR.main, width: 2 },
-      { kind: 'points', name: 'split-optimum', legend: 'least total', points: [{ x: 100 * sp.optimumShare, y: sp.optimumTotal * um2f }], marker: 'circle', fill: COLOR.fit, stroke: OUTLINE, size: 5 },
-      { kind: 'points', name: 'split-today', legend: "today's split, both pairs scaled", points: [{ x: 100 * sp.todayShare, y: sp.equalTotal * um2f }], marker: 'square', fill: COLOR.second, stroke: OUTLINE, size: 5 },
-      { kind: 'label', name: 'split-optimum-label', x: 100 * sp.optimumShare, y: sp.optimumTotal * um2f, text: `${plain(sp.optimumTotal * um2f, 3)} \u00b5m\u00b2 at ${percent(sp.optimumShare, 2)}`, dy: 18, anchor: 'middle' },
-      { kind: 'label', name: 'split-today-label', x: 100 * sp.todayShare, y: sp.equalTotal * um2f, text: `${plain(sp.equalTotal * um2f, 3)} \u00b5m\u00b2 at ${percent(sp.todayShare, 2)}`, dy: -10, anchor: 'middle' },
-    ];
-    const ys = [sp.optimumTotal * um2f, sp.equalTotal * um2f, ...sp.curve.map((p) => p.total * um2f)];
-    // Far from the optimum the curve climbs steeply: the axis stops at 3x the least total or at today's point.
-    const cap = Math.max(3 * sp.optimumTotal * um2f, 1.15 * sp.equalTotal * um2f);
-    const split = chartSvg({
-      id: 'fig-split',
-      description: 'Total gate area (one input plus one load device) that meets the sigma target, against the share of it given to the input pair.',
-      panels: [{ x: linearAxis("input pair's share of the gate area (%)", sp.curve.map((p) => 100 * p.share)), y: linearAxis('W\u00b7L input + W\u00b7L load (\u00b5m\u00b2)', ys.filter((v) => v <= cap), { zero: true }), layers, height: 240, grid: 'xy' }],
-    });
-    const readingSplit = `For sigma \u2264 ${esc(q(t.sigma, u))} the least total is ${esc(um2(sp.optimumTotal, 3))} with ${esc(percent(sp.optimumShare, 2))} of it in the input pair, against ${esc(um2(sp.equalTotal, 3))} scaling both pairs from today's split (${esc(percent(sp.todayShare, 2))}): ${esc(percent(sp.saving, 2))} less area (linearised; with W/L kept sigma\u00b2 = A/a_in + B/a_load, least at a_in/a_load = \u221aA/\u221aB).`;
-    html += figure('fig-split', 'Figure 6.2', 'The split of gate area between the input pair and the load', readingSplit, split);
+    const names = sp.blocks.map((b) => b.label);
+    const todayText = sp.blocks.map((b, k) => `${percent(sp.todayShares[k]!, 2)} ${b.label}`).join(', ');
+    const optimumText = sp.blocks.map((b, k) => `${percent(sp.optimumShares[k]!, 2)} ${b.label}`).join(', ');
+    const readingSplit = `For sigma \u2264 ${esc(q(t.sigma, u))} the least total is ${esc(um2(sp.optimumTotal, 3))} (${esc(optimumText)}), against ${esc(um2(sp.equalTotal, 3))} scaling every block from today's split (${esc(todayText)}): ${esc(percent(sp.saving, 2))} less area (linearised; with W/L kept sigma\u00b2 = \u03a3 C_k/a_k, least with a_k in proportion to \u221aC_k).`;
+    if (sp.curve !== null) {
+      const s0 = sp.todayShares[0]!;
+      const s1 = sp.optimumShares[0]!;
+      const layers: Layer[] = [
+        { kind: 'line', name: 'split-total', legend: 'total area meeting the target', points: sp.curve.map((p) => [100 * p.share, p.total * um2f] as const), stroke: COLOR.main, width: 2 },
+        { kind: 'points', name: 'split-optimum', legend: 'least total', points: [{ x: 100 * s1, y: sp.optimumTotal * um2f }], marker: 'circle', fill: COLOR.fit, stroke: OUTLINE, size: 5 },
+        { kind: 'points', name: 'split-today', legend: "today's split, both blocks scaled", points: [{ x: 100 * s0, y: sp.equalTotal * um2f }], marker: 'square', fill: COLOR.second, stroke: OUTLINE, size: 5 },
+        { kind: 'label', name: 'split-optimum-label', x: 100 * s1, y: sp.optimumTotal * um2f, text: `${plain(sp.optimumTotal * um2f, 3)} \u00b5m\u00b2 at ${percent(s1, 2)}`, dy: 18, anchor: 'middle' },
+        { kind: 'label', name: 'split-today-label', x: 100 * s0, y: sp.equalTotal * um2f, text: `${plain(sp.equalTotal * um2f, 3)} \u00b5m\u00b2 at ${percent(s0, 2)}`, dy: -10, anchor: 'middle' },
+      ];
+      const ys = [sp.optimumTotal * um2f, sp.equalTotal * um2f, ...sp.curve.map((p) => p.total * um2f)];
+      // Far from the optimum the curve climbs steeply: the axis stops at 3x the least total or at today's point.
+      const cap = Math.max(3 * sp.optimumTotal * um2f, 1.15 * sp.equalTotal * um2f);
+      const split = chartSvg({
+        id: 'fig-split',
+        description: `Total area (one element of each of: ${names.join(', ')}) that meets the sigma target, against the share of it given to the ${names[0]}.`,
+        panels: [{ x: linearAxis(`${names[0]}'s share of the area (%)`, sp.curve.map((p) => 100 * p.share)), y: linearAxis(`W\u00b7L ${names.join(' + W\u00b7L ')} (\u00b5m\u00b2)`, ys.filter((v) => v <= cap), { zero: true }), layers, height: 240, grid: 'xy' }],
+      });
+      html += figure('fig-split', 'Figure 6.2', `The split of area between the ${names.join(' and the ')}`, readingSplit, split);
+    } else {
+      html += pairs([['least-area split', readingSplit]]);
+    }
   }
   return { id: 'area', title: 'What it costs to do better', html };
 }

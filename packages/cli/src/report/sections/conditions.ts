@@ -10,7 +10,8 @@ import { histogramChart } from '../../plot.js';
 import type { ConditionsData, ReportData } from '../data.js';
 import { esc, figure, num, table, type Section } from '../html.js';
 import { yieldDigits, yieldText } from '../../commands/inspect.js';
-import { displayQuantity, plain, q } from '../units.js';
+import { figureQuantity, figureUnit, plain, q } from '../units.js';
+import { displayQuantity } from '../../displayQuantity.js';
 
 /** A setting as the table shows it: kelvin with Celsius beside it, other units prefixed. */
 function settingText(s: { field: string; value: number; unit: string }): string {
@@ -19,8 +20,8 @@ function settingText(s: { field: string; value: number; unit: string }): string 
 
 export function conditionsSection(d: ReportData, c: ConditionsData): Section {
   const f = d.stage.figure;
-  const u = f.unit;
-  const fq = displayQuantity(f, Math.max(...c.rows.map((r) => r.sigma)));
+  const u = figureUnit(f);
+  const fq = displayQuantity(figureQuantity(f), Math.max(...c.rows.map((r) => r.sigma)));
   const s = fq.scale;
   const digits = yieldDigits(Math.min(...c.rows.map((r) => r.yieldInterval[0])));
   const tbl = table(
@@ -42,7 +43,7 @@ export function conditionsSection(d: ReportData, c: ConditionsData): Section {
   const sigmas = c.rows.flatMap((r) => [r.sigma * s, r.sigmaInterval[0] * s, r.sigmaInterval[1] * s]);
   const svg = chartSvg({
     id: 'fig-conditions',
-    description: `Sigma of the ${f.name} under each operating condition with its confidence interval.`,
+    description: `Sigma of the ${f.label} under each operating condition with its confidence interval.`,
     panels: [
       {
         x: linearAxis(`sigma of the ${fq.label} (${fq.unit})`, sigmas, { pad: 0.1 }),
@@ -61,14 +62,14 @@ export function conditionsSection(d: ReportData, c: ConditionsData): Section {
   let html = tbl + figure('fig-conditions', 'Figure 8.1', 'Sigma by operating condition', `Sigma ranges from ${esc(q(best.sigma, u))} (${esc(best.name)}) to ${esc(q(worst.sigma, u))} (${esc(worst.name)}).`, svg);
   const dr = c.drift;
   if (dr !== undefined) {
-    const dq = displayQuantity({ name: `drift of the ${f.name}`, symbol: `\u0394${f.symbol}`, unit: u }, dr.sigma);
+    const dq = displayQuantity({ name: `drift of the ${f.label}`, symbol: `\u0394${f.symbol}`, unit: u }, dr.sigma);
     const edges = Array.from({ length: dr.histogram.counts.length + 1 }, (_, i) => dr.histogram.lo + i * dr.histogram.binWidth);
     const chart = histogramChart({ id: 'fig-drift', binEdges: edges, counts: dr.histogram.counts, samples: dr.samples, mean: dr.mean, sigma: dr.sigma, quantity: dq, subtitle: `${dr.from} \u2192 ${dr.to}` });
     html += figure(
       'fig-drift',
       'Figure 8.2',
-      `Drift of the ${f.name} from ${dr.from} to ${dr.to}`,
-      `Per instance, the ${esc(f.name)} moves by ${num(dr.mean, q(dr.mean, u), { key: 'conditions.drift.mean', unit: u })} on average with a sigma of ${num(dr.sigma, q(dr.sigma, u), { key: 'conditions.drift.sigma', unit: u })} between ${esc(dr.from)} and ${esc(dr.to)}.`,
+      `Drift of the ${f.label} from ${dr.from} to ${dr.to}`,
+      `Per instance, the ${esc(f.label)} moves by ${num(dr.mean, q(dr.mean, u), { key: 'conditions.drift.mean', unit: u })} on average with a sigma of ${num(dr.sigma, q(dr.sigma, u), { key: 'conditions.drift.sigma', unit: u })} between ${esc(dr.from)} and ${esc(dr.to)}.`,
       chartSvg(chart),
     );
   }

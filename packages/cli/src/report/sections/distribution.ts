@@ -6,19 +6,21 @@ import { shown } from '../../plot.js';
 import { runHistogramChart } from '../../runHistogram.js';
 import type { ReportData } from '../data.js';
 import { esc, figure, num, pairs, table, type Section } from '../html.js';
-import { displayQuantity, minus, percent, plain, q } from '../units.js';
+import { figureQuantity, figureUnit, minus, percent, plain, q } from '../units.js';
+import { displayQuantity } from '../../displayQuantity.js';
 
 /** A tail quantile is called Gaussian when it lies within this many standard errors of the line (common practice, no source). */
 const TAIL_Z = 4;
 
 export function figureDisplay(d: ReportData) {
-  return displayQuantity(d.stage.figure, Math.max(d.run.offset.sigma, Math.abs(d.run.offset.mean)));
+  return displayQuantity(figureQuantity(d.stage.figure), Math.max(d.run.offset.sigma, Math.abs(d.run.offset.mean)));
 }
 
 export function distributionSection(d: ReportData): Section {
   const r = d.run;
   const f = d.stage.figure;
-  const u = f.unit;
+  const u = figureUnit(f);
+  const F = r.figure.name;
   const fq = figureDisplay(d);
   const o = r.offset;
   const k = r.yield.spec / o.sigma;
@@ -26,9 +28,9 @@ export function distributionSection(d: ReportData): Section {
   const V = (path: string, v: number, digits = 4): string => num(v, q(v, u, digits), { path, unit: u });
   const interval = (path: string, iv: readonly [number, number]): string => `${c} [${V(`${path}.0`, iv[0])}, ${V(`${path}.1`, iv[1])}]`;
 
-  const hist = chartSvg(runHistogramChart(r, { id: 'fig-histogram', quantity: fq, specSides: f.sides }));
+  const hist = chartSvg(runHistogramChart(r, { id: 'fig-histogram', quantity: fq, specSides: f.sided }));
   const outside = `${r.yield.failures} of ${r.evaluated} samples (${r.yield.failuresHigh} above, ${r.yield.failuresLow} below) fall outside the spec`;
-  const histReading = `Sigma ${esc(q(o.sigma, u))} from ${r.evaluated} samples; the spec ${f.sides === 'both' ? '\u00b1' : ''}${esc(q(r.yield.spec, u))} lies at ${plain(k, 3)} sigma, and ${outside}.`;
+  const histReading = `Sigma ${esc(q(o.sigma, u))} from ${r.evaluated} samples; the spec ${f.sided === 'two' ? '\u00b1' : ''}${esc(q(r.yield.spec, u))} lies at ${plain(k, 3)} sigma, and ${outside}.`;
 
   // Normal-probability plot: sample quantiles against normal quantiles, with the fitted line.
   const pts = d.distribution.probabilityPlot.points;
@@ -38,7 +40,7 @@ export function distributionSection(d: ReportData): Section {
   const s = fq.scale;
   const line: [number, number][] = [[zLo, (o.mean + o.sigma * zLo) * s], [zHi, (o.mean + o.sigma * zHi) * s]];
   const ys = [...pts.map((p) => p.value * s), ...line.map((l) => l[1])];
-  const specLines = f.sides === 'both' ? [-r.yield.spec, r.yield.spec] : [r.yield.spec];
+  const specLines = f.sided === 'two' ? [-r.yield.spec, r.yield.spec] : [r.yield.spec];
   // The spec lines are drawn when they fall within the sampled range or just beyond it.
   const yMin = Math.min(...ys);
   const yMax = Math.max(...ys);
@@ -51,7 +53,7 @@ export function distributionSection(d: ReportData): Section {
   ];
   const prob = chartSvg({
     id: 'fig-probability',
-    description: `Normal-probability plot: ${pts.length} sample quantiles of the ${f.name} against the normal quantiles of their plotting positions, with the fitted Gaussian as a straight line.`,
+    description: `Normal-probability plot: ${pts.length} sample quantiles of the ${f.label} against the normal quantiles of their plotting positions, with the fitted Gaussian as a straight line.`,
     panels: [
       {
         x: linearAxis('normal quantile (standard deviations)', zs),
@@ -76,23 +78,23 @@ export function distributionSection(d: ReportData): Section {
   const agree = r.analytic.agreement;
   const numbers = pairs([
     ['samples evaluated', `${num(r.evaluated, String(r.evaluated), { path: 'evaluated' })} of ${num(r.samples, String(r.samples), { path: 'samples' })}${r.nonConverged > 0 ? ` (${num(r.nonConverged, String(r.nonConverged), { path: 'nonConverged' })} balance solves did not converge and are left out)` : ''}`],
-    ['mean', `${V('offset.mean', o.mean)}   ${interval('offset.meanInterval', o.meanInterval)}`],
-    ['sigma', `${V('offset.sigma', o.sigma)}   ${interval('offset.sigmaInterval', o.sigmaInterval)} (chi-square)`],
+    ['mean', `${V(`${F}.mean`, o.mean)}   ${interval(`${F}.meanInterval`, o.meanInterval)}`],
+    ['sigma', `${V(`${F}.sigma`, o.sigma)}   ${interval(`${F}.sigmaInterval`, o.sigmaInterval)} (chi-square)`],
     ['linearised sigma', `${V('analytic.sigma', r.analytic.sigma)}; the Monte Carlo sigma differs by ${num(agree.relativeDifference, percent(agree.relativeDifference, 2), { path: 'analytic.agreement.relativeDifference', unit: '%' })} (${minus(agree.standardErrors.toFixed(1))} standard errors)${agree.consistent ? '' : ' \u2014 more than sampling error allows: the figure is not linear in the mismatch here'}`],
     ['kurtosis', `${num(kt.value, plain(kt.value, 4), { key: 'distribution.kurtosis.value' })} \u00b1 ${plain(kt.standardError, 2)} (one standard error; a Gaussian has 3), ${kt.method === 'samples' ? 'from every sample' : 'from the histogram'}`],
-    ['min / max', `${V('offset.min', o.min)} / ${V('offset.max', o.max)}`],
+    ['min / max', `${V(`${F}.min`, o.min)} / ${V(`${F}.max`, o.max)}`],
   ]);
   const qs = o.quantiles;
   const qcell = (path: string, v: number | null): string => (v === null ? 'beyond the histogram' : V(path, v));
   const quant = table(
     ['p', ...qs.signed.map((x) => `${plain(x.p * 100, 3)}%`)],
     [
-      [esc(f.symbol), ...qs.signed.map((x, i) => qcell(`offset.quantiles.signed.${i}.value`, x.value))],
-      [`|${esc(f.symbol)}|`, ...qs.absolute.map((x, i) => qcell(`offset.quantiles.absolute.${i}.value`, x.value))],
+      [esc(f.symbol), ...qs.signed.map((x, i) => qcell(`${F}.quantiles.signed.${i}.value`, x.value))],
+      [`|${esc(f.symbol)}|`, ...qs.absolute.map((x, i) => qcell(`${F}.quantiles.absolute.${i}.value`, x.value))],
     ],
     { numeric: qs.signed.map((_, i) => i + 1), caption: `Quantiles (${o.quantileMethod === 'exact' ? 'exact, from every sample' : 'from the histogram, within one bin width'})` },
   );
-  const name = f.name.charAt(0).toUpperCase() + f.name.slice(1);
+  const name = f.label.charAt(0).toUpperCase() + f.label.slice(1);
   return {
     id: 'distribution',
     title: `${name} distribution`,

@@ -4,6 +4,7 @@ import { categoryAxis, logAxis } from '../../chart/axis.js';
 import { COLOR, DASH, OUTLINE } from '../../chart/style.js';
 import type { ReportData } from '../data.js';
 import { esc, figure, table, type Section } from '../html.js';
+import { blockLabel } from './budget.js';
 import { plain, q, um2 } from '../units.js';
 
 /** Region bounds of the inversion coefficient (weak < 0.1 <= moderate <= 10 < strong; common practice, no source). */
@@ -21,6 +22,15 @@ export function operatingPointSection(d: ReportData): Section {
     return r;
   });
   const tbl = table(header, rows, { numeric: [2, 3, 4, 5, 7, 8, 9, 10, 11, 12] });
+  const res = d.resistors ?? [];
+  const resistors =
+    res.length === 0
+      ? ''
+      : table(
+          ['resistor', 'role', 'W', 'L', 'W\u00b7L', 'R', 'current', '\u03c3(dR/R)', 'gain g<sub>m</sub>R'],
+          res.map((x) => [x.device, x.role, q(x.w, 'm'), q(x.l, 'm'), um2(x.area), x.resistance === undefined ? '\u2013' : q(x.resistance, 'ohm'), q(x.current, 'A'), q(x.sigmaR, '%', 3), x.voltageGain === undefined ? '\u2013' : `${plain(x.voltageGain, 4)} V/V`]),
+          { numeric: [2, 3, 4, 5, 6, 7, 8] },
+        );
 
   // One row per matched pair: both devices sit at the same point at balance.
   const pairsOf = new Map<string, typeof ops[number][]>();
@@ -44,10 +54,10 @@ export function operatingPointSection(d: ReportData): Section {
     description: `Inversion coefficient of each matched pair on a log axis, with the weak (IC < ${WEAK}), moderate and strong (IC > ${STRONG}) regions.`,
     panels: [{ x: axis, y: categoryAxis('matched pair', names), layers, height: 20 + 60 * n, grid: 'x' }],
   });
-  const reading = groups.map((g) => `the ${g[0]!.role} pair ${g.map((o) => o.device).join('/')} works in ${g[0]!.region} inversion (IC ${plain(g[0]!.ic, 3)}, g<sub>m</sub>/I<sub>D</sub> ${plain(g[0]!.gmOverId, 4)} /V, V<sub>GS</sub>\u2212V<sub>T0</sub> ${esc(q(g[0]!.overdrive, 'V', 3))})`).join('; ');
+  const reading = groups.map((g) => `the ${esc(blockLabel(d, g[0]!.role))} ${g.map((o) => o.device).join('/')} works in ${g[0]!.region} inversion (IC ${plain(g[0]!.ic, 3)}, g<sub>m</sub>/I<sub>D</sub> ${plain(g[0]!.gmOverId, 4)} /V, V<sub>GS</sub>\u2212V<sub>T0</sub> ${esc(q(g[0]!.overdrive, 'V', 3))})`).join('; ');
   return {
     id: 'operating-point',
     title: 'Operating point per device',
-    html: `<p>At balance and without mismatch each device of a pair carries half the tail current; the table is the one <code>twinfet inspect</code> prints.</p>${tbl}${figure('fig-inversion', 'Figure 2.1', 'Where the devices work', `${reading.charAt(0).toUpperCase()}${reading.slice(1)}.`, svg)}`,
+    html: `<p>At balance and without mismatch each device of a pair carries half the tail current; the table is the one <code>twinfet inspect</code> prints.</p>${tbl}${resistors}${figure('fig-inversion', 'Figure 2.1', 'Where the devices work', `${reading.charAt(0).toUpperCase()}${reading.slice(1)}.`, svg)}`,
   };
 }

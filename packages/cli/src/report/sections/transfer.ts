@@ -6,7 +6,8 @@ import { shown } from '../../plot.js';
 import type { TransferStudy, TransferView } from '../analyses/transfer.js';
 import type { ReportData } from '../data.js';
 import { esc, figure, num, pairs, type Section } from '../html.js';
-import { displayQuantity, percent, q } from '../units.js';
+import { figureUnit, percent, q } from '../units.js';
+import { displayQuantity } from '../../displayQuantity.js';
 
 /** Bins of the slope-spread histogram. */
 const SLOPE_BINS = 24;
@@ -46,7 +47,7 @@ export function transferSection(d: ReportData): Section {
   const xz = displayQuantity(t.input, Math.max(...t.zoom.x.map(Math.abs)));
   const yq = displayQuantity(t.output, Math.max(...t.full.nominal.map((y) => Math.abs(y ?? 0))));
   // The spec lines mark the input: they are drawn when the figure is measured in the input's unit (it is the balance input).
-  const spec = d.stage.figure.unit === t.input.unit ? d.run.yield.spec : null;
+  const spec = figureUnit(d.stage.figure) === t.input.unit ? d.run.yield.spec : null;
   const svg = chartSvg({
     id: 'fig-transfer',
     description: `${t.output.name} against ${t.input.name} for ${t.instances} sampled instances: nominal curve, median and the 1%-99% band, over the whole transition and close to balance.`,
@@ -63,7 +64,7 @@ export function transferSection(d: ReportData): Section {
           const dev = Math.max(...nominal.map((y, i) => (y === y ? Math.abs(y - t.full.law![i]!) : 0))) / ref;
           return `The ${t.law.name} ${t.law.formula} (${t.law.source}, dotted) stays within ${percent(dev, 2)} of full scale of the nominal curve.`;
         })();
-  const reading = `Each instance crosses zero at its own ${esc(d.stage.figure.name)} (these ${t.instances} instances are the run's first samples): near balance the 1% to 99% band spans ${esc(q(at(0.01), t.input.unit))} to ${esc(q(at(0.99), t.input.unit))} of ${esc(t.input.name)}, while far from it every instance saturates. ${esc(lawText)}`;
+  const reading = `Each instance crosses zero at its own ${esc(d.stage.figure.label)} (these ${t.instances} instances are the run's first samples): near balance the 1% to 99% band spans ${esc(q(at(0.01), t.input.unit))} to ${esc(q(at(0.99), t.input.unit))} of ${esc(t.input.name)}, while far from it every instance saturates. ${esc(lawText)}`;
 
   // The spread of the slope at balance, relative to the nominal slope.
   const sl = t.slope;

@@ -7,7 +7,7 @@ import { yieldDigits, yieldText } from '../../commands/inspect.js';
 import type { ReportData } from '../data.js';
 import { esc, figure, num, pairs, table, type Section } from '../html.js';
 import { parameterText } from './budget.js';
-import { plain, q } from '../units.js';
+import { figureUnit, plain, q } from '../units.js';
 
 /** A yield with enough decimals to show its failure part (`digits` to align an interval). */
 function yieldNum(path: string, y: number, digits: number): string {
@@ -28,7 +28,7 @@ export function yieldSection(d: ReportData): Section {
   // Each row gets the decimals that show its own failure part (an interval shares its estimate's).
   const dInstance = yieldDigits(Math.min(y.interval[0], g.yield));
   const dChip = yieldDigits(Math.min(r.chip.interval[0], g.chipYield));
-  const u = d.stage.figure.unit;
+  const u = figureUnit(d.stage.figure);
 
   // The forest plot: each estimate of the instance failure probability with its interval.
   const rows: string[] = [`Monte Carlo (${r.evaluated} samples)`, 'Gaussian (linearised sigma)'];
@@ -104,6 +104,6 @@ export function yieldSection(d: ReportData): Section {
   return {
     id: 'yield',
     title: 'Yield',
-    html: `${figure('fig-yield', 'Figure 5.1', 'Failure probability per instance, by method', reading, svg)}${pairs(cells)}${points3}<p class="note">Spec ${esc(d.stage.figure.sides === 'both' ? '\u00b1' : '')}${esc(q(y.spec, u))}; intervals at ${c} confidence. ${d.highSigma.ran ? `The high-sigma estimate ran because ${esc(d.highSigma.reason)}.` : ''}</p>`,
+    html: `${figure('fig-yield', 'Figure 5.1', 'Failure probability per instance, by method', reading, svg)}${pairs(cells)}${points3}<p class="note">Spec ${esc(d.stage.figure.sided === 'two' ? '\u00b1' : '')}${esc(q(y.spec, u))}; intervals at ${c} confidence. ${d.highSigma.ran ? `The high-sigma estimate ran because ${esc(d.highSigma.reason)}.` : ''}</p>`,
   };
 }

@@ -55,44 +55,64 @@ export function pairShare(t: number, a1: number, a2: number, start?: number): [n
   return [Number.NaN, Number.NaN, Number.NaN];
 }
 
-/** One device's mismatch in one instance: its threshold shift and current-factor exponent. */
-export interface DeviceDraw {
-  /** dV_T, volts (magnitude convention for a p device). */
+/** One element's mismatch in one instance. */
+export interface ElementDraw {
+  /** dV_T, volts (magnitude convention for a p device); 0 for a resistor. */
   dVt: number;
-  /** I_S / I_S,nominal = beta / beta_nominal = exp(z). */
+  /** beta / beta_nominal (= I_S / I_S,nominal) = exp(z_beta); 1 for a resistor. */
   specific: number;
+  /** R / R_nominal = exp(sigma_R u); 1 for a MOS device. */
+  ratio: number;
 }
 
 /**
- * Reads each device's draw for one instance from u[base ..], in the layout of
- * Stage.variables (device-major, vt then beta; the beta deviate is rho u_vt + sqrt(1 - rho^2)
- * u_beta scaled by its sigma, as the stages sample it). Writes into `out` (one per device).
+ * Reads every element's draw for one instance from u[base ..], following Stage.variables (by
+ * element and parameter, so any layout works): dV_T = sigma u_vt; the current factor
+ * exp(sigma (rho u_vt + sqrt(1 - rho^2) u_beta)) and the resistor exp(sigma u_r), as the stages
+ * sample them.
  */
-export function deviceDraws(stage: Stage, u: Float64Array, base: number, out: DeviceDraw[]): void {
+export function drawReader(stage: Stage): { index(element: string): number; read(u: Float64Array, base: number): readonly ElementDraw[] } {
   const vars = stage.variables;
-  for (let j = 0, d = 0; j < vars.length; j += 2, d++) {
-    const vt = vars[j]!;
-    const beta = vars[j + 1]!;
-    const uv = u[base + j]!;
-    const ub = u[base + j + 1]!;
-    const slot = out[d]!;
-    slot.dVt = vt.sigma * uv;
-    slot.specific = Math.exp(beta.sigma * (beta.rho * uv + Math.sqrt(1 - beta.rho * beta.rho) * ub));
-  }
+  const elements = [...new Set(vars.map((v) => v.device))];
+  const slots: ElementDraw[] = elements.map(() => ({ dVt: 0, specific: 1, ratio: 1 }));
+  const at = vars.map((v) => elements.indexOf(v.device));
+  const vtOf = vars.map((v) => vars.findIndex((x) => x.device === v.device && x.parameter === 'vt'));
+  return {
+    index: (element) => {
+      const i = elements.indexOf(element);
+      if (i < 0) throw new Error(`internal: the stage has no element ${element}`);
+      return i;
+    },
+    read: (u, base) => {
+      for (const s of slots) {
+        s.dVt = 0;
+        s.specific = 1;
+        s.ratio = 1;
+      }
+      vars.forEach((v, j) => {
+        const s = slots[at[j]!]!;
+        const uj = u[base + j]!;
+        if (v.parameter === 'vt') s.dVt = v.sigma * uj;
+        else if (v.parameter === 'r') s.ratio = Math.exp(v.sigma * uj);
+        else {
+          const k = vtOf[j]!;
+          const uv = k < 0 ? 0 : u[base + k]!;
+          s.specific = Math.exp(v.sigma * (v.rho * uv + Math.sqrt(1 - v.rho * v.rho) * uj));
+        }
+      });
+      return slots;
+    },
+  };
 }
 
-/** Fresh draw slots for the stage's devices. */
-export function drawSlots(stage: Stage): DeviceDraw[] {
-  return Array.from({ length: stage.variables.length / 2 }, () => ({ dVt: 0, specific: 1 }));
-}
-
-/** The input pair's constants: tail, polarity sign, n U_T and nominal I_S / I_B. */
-export function pairConstants(stage: Stage): { tail: number; sign: number; nut: number; a0: number; ic: number } {
+/** The input pair's constants: tail, polarity sign, n U_T, nominal I_S1 and I_S / I_B, and IC. */
+export function pairConstants(stage: Stage): { tail: number; sign: number; nut: number; specific: number; a0: number; ic: number } {
   const d = stage.design;
   const proc = d.process[d.input.polarity];
-  if (proc === undefined) throw new Error(`internal: process.${d.input.polarity} missing after validation`);
+  const tail = d.tail;
+  if (proc === undefined || tail === undefined) throw new Error('internal: a pair stage without its process or tail after validation');
   const m1 = stage.operatingPoint[0]!;
-  return { tail: d.tail, sign: d.input.polarity === 'n' ? 1 : -1, nut: proc.slope * stage.thermalVoltage, a0: m1.specificCurrent / d.tail, ic: m1.ic };
+  return { tail, sign: d.input.polarity === 'n' ? 1 : -1, nut: proc.slope * stage.thermalVoltage, specific: m1.specificCurrent, a0: m1.specificCurrent / tail, ic: m1.ic };
 }
 
 /**

@@ -1,13 +1,10 @@
 /**
- * The transfer curve shared by the stages built on one differential pair (simple, mirror):
- * the pair's share at each differential input, and a stage-specific output current from it.
+ * The transfer curve shared by the stages built on one differential pair (simple, mirror,
+ * resistor): the pair's share at each differential input, and a stage-specific output from it.
  */
 import { linearisedSigma, type Stage } from '@twinfet/core';
-import { deviceDraws, drawSlots, nominalInputAtShare, pairConstants, pairShare, type DeviceDraw } from './pair.js';
-import type { FigureInfo, Quantity, StageTransfer } from './types.js';
-
-/** The offset Vos = V_G1 - V_G2 that balances the stage: the figure of the pair stages. */
-export const OFFSET_FIGURE: FigureInfo = { name: 'offset', symbol: 'Vos', unit: 'V', sides: 'both' };
+import { drawReader, nominalInputAtShare, pairConstants, pairShare, type ElementDraw } from './pair.js';
+import type { Quantity, StageTransfer } from './types.js';
 
 /** Vid = V_G1 - V_G2, applied on top of the common-mode level. */
 export const DIFFERENTIAL_INPUT: Quantity = { name: 'differential input', symbol: 'Vid', unit: 'V' };
@@ -21,36 +18,38 @@ const WEAK_INVERSION_IC = 0.1;
 const FULL_SHARE = 0.99;
 
 /**
- * The stage's output from the pair's shares f = I1 / I_B and g = 1 - f of one instance
- * (`draws` holds every device's mismatch, input pair first).
+ * The stage's output from the pair's shares f = I1 / I_B and g = 1 - f of one instance;
+ * `draw(name)` is that instance's mismatch of an element (`M3`, `R1`).
  */
-export type PairOutput = (f: number, g: number, draws: readonly DeviceDraw[]) => number;
+export type PairOutput = (f: number, g: number, draw: (element: string) => ElementDraw) => number;
 
 /**
  * A StageTransfer for a pair stage whose output follows from the pair's share.
- * @param output the stage's output current from the shares
+ * @param output the stage's output from the shares
  * @param outputQuantity what that output is called
  */
 export function pairTransfer(stage: Stage, outputQuantity: Quantity, output: PairOutput): StageTransfer {
   const c = pairConstants(stage);
-  const slots = drawSlots(stage);
+  const reader = drawReader(stage);
+  const m1 = reader.index('M1');
+  const m2 = reader.index('M2');
   const sigma = linearisedSigma(stage);
   const full = Math.max(1.15 * nominalInputAtShare(c, FULL_SHARE), 6 * sigma);
   const zoom = 4.5 * sigma;
-  const i1 = stage.operatingPoint[0]!.specificCurrent;
   const evaluate = (u: Float64Array, base: number, xs: Float64Array, out: Float64Array): void => {
-    deviceDraws(stage, u, base, slots);
-    const m1 = slots[0]!;
-    const m2 = slots[1]!;
-    const a1 = (i1 * m1.specific) / c.tail;
-    const a2 = (i1 * m2.specific) / c.tail;
+    const draws = reader.read(u, base);
+    const d1 = draws[m1]!;
+    const d2 = draws[m2]!;
+    const a1 = (c.specific * d1.specific) / c.tail;
+    const a2 = (c.specific * d2.specific) / c.tail;
+    const draw = (element: string): ElementDraw => draws[reader.index(element)]!;
     // Neighbouring inputs have neighbouring solutions: each solve starts from the last one.
     let start: number | undefined;
     for (let i = 0; i < xs.length; i++) {
-      const t = (c.sign * xs[i]! - (m1.dVt - m2.dVt)) / c.nut;
+      const t = (c.sign * xs[i]! - (d1.dVt - d2.dVt)) / c.nut;
       const [f, g, y] = pairShare(t, a1, a2, start);
       start = Number.isFinite(y) ? y : undefined;
-      out[i] = Number.isFinite(f) ? output(f, g, slots) : Number.NaN;
+      out[i] = Number.isFinite(f) ? output(f, g, draw) : Number.NaN;
     }
   };
   const law =

@@ -1,25 +1,19 @@
 /**
- * What the design-review report needs to know about a stage type, beyond what the core Stage
- * gives every analysis. Adding a stage type to the report is one module exporting a
- * {@link ReportStage} and one line in ./registry.ts; nothing else in the report asks which
- * stage it is.
+ * What the design-review report needs to know about a stage type beyond what the core stage
+ * definition gives every analysis (its blocks, figure and summary). Adding a stage type to the
+ * report is one module exporting a {@link ReportStage} and one line in ./registry.ts; nothing
+ * else in the report asks which stage it is.
  */
 import type { Design, Stage } from '@twinfet/core';
 
-/** A quantity on an axis or in a table: its name, symbol and SI unit ('' when dimensionless). */
+/** A quantity on an axis or in a table: its name, symbol and SI unit ('%' for a fraction shown in percent). */
 export interface Quantity {
   /** Words, e.g. "differential input". */
   readonly name: string;
   /** Symbol, e.g. "Vid". */
   readonly symbol: string;
-  /** SI unit, e.g. "V"; '%' or '' for dimensionless quantities. */
+  /** SI unit, e.g. "V"; '%' for a fraction shown in percent, '' for a plain number. */
   readonly unit: string;
-}
-
-/** The stage's figure of merit: the sampled number the spec limits (the offset for pairs). */
-export interface FigureInfo extends Quantity {
-  /** 'both': the spec bounds |figure|; 'upper': it bounds the figure from above (a one-sided limit). */
-  readonly sides: 'both' | 'upper';
 }
 
 /** A textbook law drawn beside the transfer curve where it applies. */
@@ -65,11 +59,9 @@ export interface StageTransfer {
 
 /** The report's per-stage definitions. */
 export interface ReportStage {
-  /** The stage type (Design.topology). */
+  /** The stage type (Design.topology, as the core registry names it). */
   readonly topology: string;
-  /** The figure the spec limits. */
-  readonly figure: FigureInfo;
-  /** One sentence describing the topology and its devices, for section 1. */
+  /** One or two sentences describing the topology and its devices, for section 1. */
   describe(design: Design): string;
   /** The transfer curve of a compiled stage of this type. */
   transfer(stage: Stage): StageTransfer;

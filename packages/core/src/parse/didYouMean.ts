@@ -50,6 +50,9 @@ const ALIASES: Readonly<Record<string, string>> = {
   instance: 'instances',
   count: 'instances',
   type: 'polarity',
+  // The old spellings of the process's smallest drawn width and length.
+  wmin: 'min_w',
+  lmin: 'min_l',
 };
 
 /**

@@ -2,7 +2,7 @@
  * Turns design-file text (YAML 1.2, which includes JSON) into plain data, reporting syntax
  * errors as one-line `InputError`s with line and column.
  */
-import { InputError } from '@twinfet/core';
+import { InputError } from '../errors.js';
 import { parseDocument } from 'yaml';
 
 /** Aliases a file may expand; far more than a design needs, far fewer than a "billion laughs". */
@@ -39,5 +39,37 @@ export function parseYamlText(text: string, source: string): unknown {
     if (e instanceof InputError) throw e;
     const why = e instanceof Error ? shortMessage(e.message) : String(e);
     throw new InputError('', `${source}: cannot read the design file: ${why}`);
+  }
+}
+
+/** Line and column (1-based) of a character offset in `text`. */
+function lineColumn(text: string, offset: number): { line: number; col: number } {
+  let line = 1;
+  let start = 0;
+  for (let i = 0; i < offset && i < text.length; i++) {
+    if (text.charCodeAt(i) === 10) {
+      line++;
+      start = i + 1;
+    }
+  }
+  return { line, col: offset - start + 1 };
+}
+
+/**
+ * Parses strict JSON text into plain values; `undefined` when it holds only white space.
+ * @throws InputError (field `''`) `<source>:<line>:<col>: JSON syntax error: ...`
+ */
+export function parseJsonText(text: string, source: string): unknown {
+  const body = text.startsWith('\uFEFF') ? text.slice(1) : text;
+  if (body.trim() === '') return undefined;
+  try {
+    return JSON.parse(body) as unknown;
+  } catch (e) {
+    const why = e instanceof Error ? e.message : String(e);
+    // V8 words it "... in JSON at position N" (sometimes followed by "(line L column C)").
+    const pos = /at position (\d+)/.exec(why);
+    const where = pos === null ? source : (() => { const at = lineColumn(body, Number(pos[1])); return `${source}:${at.line}:${at.col}`; })();
+    const short = why.split('\n', 1)[0]!.replace(/\s*in JSON at position \d+.*$/, '').replace(/^JSON\.parse: /, '');
+    throw new InputError('', `${where}: JSON syntax error: ${short}`);
   }
 }

@@ -1,8 +1,9 @@
-import type { Design } from './design.js';
-import { ekvInverseDifference, normalisedGmOverId } from './ekv.js';
-import { deviceConstants, deviceOperatingPoint, deviceVariables, geometryWarnings } from './deviceConstants.js';
-import type { Stage } from './stage.js';
-import { thermalVoltage } from './thermal.js';
+import type { Design } from '../design.js';
+import { ekvInverseDifference, normalisedGmOverId } from '../ekv.js';
+import { deviceBlock, deviceConstants, deviceOperatingPoint, deviceVariables, geometryWarnings, tailCurrent } from '../elements.js';
+import { thermalVoltage } from '../thermal.js';
+import { INPUT_PAIR, OFFSET_FIGURE, otherPolarity, TAIL_FIELD } from './common.js';
+import type { BlockDefinition, StageDefinition, StageModel } from './definition.js';
 
 /** Relative residual of I1 + I4 = I_B at which the balance solve stops. */
 export const MIRROR_TOLERANCE = 1e-12;
@@ -10,7 +11,7 @@ export const MIRROR_TOLERANCE = 1e-12;
 export const MIRROR_MAX_ITERATIONS = 200;
 
 /**
- * Five-transistor stage with a current-mirror load (DOMAIN.md): M1 drives the diode M3, M4 copies
+ * Five-transistor stage with a current-mirror load: M1 drives the diode M3, M4 copies
  * it against M2, I1 + I2 = I_B and I4 = I2 at balance (no channel-length modulation).
  *
  * The balance is solved in s = sqrt(I3/I_S3), where h(s) = a3 s^2 + a4 F(v3 - d) - 1,
@@ -20,13 +21,12 @@ export const MIRROR_MAX_ITERATIONS = 200;
  * Then Vos follows from the pair as in the simple stage.
  * Sample layout: [M1 vt, M1 beta, M2 vt, M2 beta, M3 vt, M3 beta, M4 vt, M4 beta].
  */
-export function compileMirrorPair(design: Design, temperatureWarnings: readonly string[]): Stage {
-  const load = design.load;
-  if (load === undefined) throw new Error('internal: mirror without load after validation');
+function compileMirrorPair(design: Design): StageModel {
+  const tail = tailCurrent(design);
   const ut = thermalVoltage(design.temperature);
-  const ci = deviceConstants(design, design.input, ut);
-  const cl = deviceConstants(design, load, ut);
-  const half = design.tail / 2;
+  const ci = deviceConstants(design, deviceBlock(design, 'input'), ut);
+  const cl = deviceConstants(design, deviceBlock(design, 'load'), ut);
+  const half = tail / 2;
   const ops = [
     deviceOperatingPoint('M1', 'input', ci, half, ut),
     deviceOperatingPoint('M2', 'input', ci, half, ut),
@@ -34,7 +34,7 @@ export function compileMirrorPair(design: Design, temperatureWarnings: readonly 
     deviceOperatingPoint('M4', 'load', cl, half, ut),
   ] as const;
 
-  const sign = design.input.polarity === 'n' ? 1 : -1;
+  const sign = ci.geometry.polarity === 'n' ? 1 : -1;
   const nutIn = ci.process.slope * ut;
   const nutLoad = cl.process.slope * ut;
   const sVtIn = ci.sigmaVt;
@@ -43,8 +43,8 @@ export function compileMirrorPair(design: Design, temperatureWarnings: readonly 
   const dScale = cl.sigmaVt / nutLoad;
   const bRL = cl.betaFromVt;
   const bSL = cl.betaOwn;
-  const a0 = cl.specificCurrent / design.tail; // I_S3 / I_B without mismatch
-  const c0 = Math.sqrt(a0 * (design.tail / ci.specificCurrent)); // sqrt(I_S3 / I_S1) without mismatch
+  const a0 = cl.specificCurrent / tail; // I_S3 / I_B without mismatch
+  const c0 = Math.sqrt(a0 * (tail / ci.specificCurrent)); // sqrt(I_S3 / I_S1) without mismatch
   const sStart = Math.sqrt(ops[2].ic); // balance without mismatch
   // dL4/d(d/2) at the balance without mismatch is -(1 - e^{-s0}): see the first guess below.
   const gamma = -Math.expm1(-sStart);
@@ -79,7 +79,7 @@ export function compileMirrorPair(design: Design, temperatureWarnings: readonly 
     ACTIVE = new Int32Array(cap);
   };
 
-  const offsets = (u: Float64Array, count: number, out: Float64Array, outBase: number): number => {
+  const figures = (u: Float64Array, count: number, out: Float64Array, outBase: number): number => {
     ensure(count);
     for (let i = 0, b = 0; i < count; i++, b += 8) {
       const a3 = a0 * Math.exp(bRL * u[b + 4]! + bSL * u[b + 5]!);
@@ -186,13 +186,13 @@ export function compileMirrorPair(design: Design, temperatureWarnings: readonly 
   // the same bits alone or in a batch.
   const one = new Float64Array(8);
   const oneOut = new Float64Array(1);
-  const offset = (u: Float64Array, base: number): number => {
+  const figure = (u: Float64Array, base: number): number => {
     for (let j = 0; j < 8; j++) one[j] = u[base + j]!;
-    offsets(one, 1, oneOut, 0);
+    figures(one, 1, oneOut, 0);
     return oneOut[0]!;
   };
 
-  // Linearised (DOMAIN.md, Kinget 2005): the load's current ratio m = I4/I3 at equal gates,
+  // Linearised (Kinget, IEEE JSSC 40(6), 2005): the load's current ratio m = I4/I3 at equal gates,
   // ln m ~ z_beta4 - z_beta3 - (gm/I_D)_load (dV_T4 - dV_T3), moves Vos by -(I_D/gm)_in ln m.
   const idOverGmIn = nutIn / normalisedGmOverId(ops[0].ic);
   const gmIdLoad = normalisedGmOverId(ops[2].ic) / nutLoad;
@@ -209,10 +209,7 @@ export function compileMirrorPair(design: Design, temperatureWarnings: readonly 
   );
 
   return {
-    design,
-    topology: 'mirror',
     thermalVoltage: ut,
-    dimension: 8,
     variables: [
       ...deviceVariables('M1', 'input', ci),
       ...deviceVariables('M2', 'input', ci),
@@ -221,8 +218,30 @@ export function compileMirrorPair(design: Design, temperatureWarnings: readonly 
     ],
     sensitivities,
     operatingPoint: ops,
-    warnings: [...temperatureWarnings, ...geometryWarnings('input', ci), ...geometryWarnings('load', cl)],
-    offset,
-    offsets,
+    warnings: [...geometryWarnings('input', ci), ...geometryWarnings('load', cl)],
+    figure,
+    figures,
   };
 }
+
+/** The mirror load M3 (diode, driven by M1) / M4 (copies it against M2). */
+const MIRROR_LOAD: BlockDefinition = {
+  key: 'load',
+  kind: 'mos',
+  elements: ['M3', 'M4'],
+  label: 'mirror load',
+  polarity: 'opposite-to-input',
+  fields: [],
+  example: (input) => `{ polarity: ${otherPolarity(input)}, w: 4 um, l: 2 um }`,
+  sizable: true,
+};
+
+/** `topology: mirror`: the five-transistor stage with a current-mirror load. */
+export const MIRROR_STAGE: StageDefinition = {
+  topology: 'mirror',
+  summary: 'five-transistor stage: input pair with a current-mirror load',
+  fields: [TAIL_FIELD],
+  blocks: [INPUT_PAIR, MIRROR_LOAD],
+  figure: OFFSET_FIGURE,
+  compile: compileMirrorPair,
+};

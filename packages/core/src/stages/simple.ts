@@ -1,24 +1,26 @@
-import type { Design } from './design.js';
-import { ekvInverseDifference, normalisedGmOverId } from './ekv.js';
-import { deviceConstants, deviceOperatingPoint, deviceVariables, geometryWarnings } from './deviceConstants.js';
-import type { Stage } from './stage.js';
-import { thermalVoltage } from './thermal.js';
+import type { Design } from '../design.js';
+import { ekvInverseDifference, normalisedGmOverId } from '../ekv.js';
+import { deviceBlock, deviceConstants, deviceOperatingPoint, deviceVariables, geometryWarnings, tailCurrent } from '../elements.js';
+import { thermalVoltage } from '../thermal.js';
+import { INPUT_PAIR, OFFSET_FIGURE, TAIL_FIELD } from './common.js';
+import type { StageDefinition, StageModel } from './definition.js';
 
 /**
- * Simple stage: ideal equal loads, balance at I1 = I2 = I_B/2. Closed form (DOMAIN.md):
+ * Simple stage: ideal equal loads, balance at I1 = I2 = I_B/2. Closed form (from the EKV inverse,
+ * Enz, Krummenacher & Vittoz, AICSP 8, 1995, applied to each side at I_B/2):
  * Vos = (V_T1 - V_T2) + n U_T [v(I_B/(2 I_S1)) - v(I_B/(2 I_S2))], v the EKV inverse.
  * A p-pair is described by magnitudes, so its Vos = V_G1 - V_G2 has the opposite sign.
  * Sample layout: [u_vt1, u_beta1, u_vt2, u_beta2].
  */
-export function compileSimplePair(design: Design, temperatureWarnings: readonly string[]): Stage {
+function compileSimplePair(design: Design): StageModel {
   const ut = thermalVoltage(design.temperature);
-  const c = deviceConstants(design, design.input, ut);
-  const half = design.tail / 2;
+  const c = deviceConstants(design, deviceBlock(design, 'input'), ut);
+  const half = tailCurrent(design) / 2;
   const op1 = deviceOperatingPoint('M1', 'input', c, half, ut);
   const op2 = deviceOperatingPoint('M2', 'input', c, half, ut);
 
   // Hoisted constants of the hot loop.
-  const sign = design.input.polarity === 'n' ? 1 : -1;
+  const sign = c.geometry.polarity === 'n' ? 1 : -1;
   const nut = c.process.slope * ut;
   const sVt = c.sigmaVt;
   const bR = c.betaFromVt;
@@ -26,7 +28,7 @@ export function compileSimplePair(design: Design, temperatureWarnings: readonly 
   // sqrt(IC_i) = sqrt(IC0) * exp(-z_beta,i / 2): one exp per device, no sqrt per sample.
   const s0 = Math.sqrt(op1.ic);
 
-  const offset = (u: Float64Array, base: number): number => {
+  const figure = (u: Float64Array, base: number): number => {
     const a = u[base]!;
     const c2 = u[base + 2]!;
     const z1 = bR * a + bS * u[base + 1]!;
@@ -39,10 +41,10 @@ export function compileSimplePair(design: Design, temperatureWarnings: readonly 
     return vos - vos === 0 ? vos : Number.NaN;
   };
 
-  const offsets = (u: Float64Array, count: number, out: Float64Array, outBase: number): number => {
+  const figures = (u: Float64Array, count: number, out: Float64Array, outBase: number): number => {
     let failed = 0;
     for (let i = 0, j = 0; i < count; i++, j += 4) {
-      const vos = offset(u, j);
+      const vos = figure(u, j);
       out[outBase + i] = vos;
       if (vos !== vos) failed++;
     }
@@ -56,15 +58,22 @@ export function compileSimplePair(design: Design, temperatureWarnings: readonly 
   const sensitivities = Float64Array.of(vtCoef, betaCoef, -vtCoef, -betaCoef);
 
   return {
-    design,
-    topology: 'simple',
     thermalVoltage: ut,
-    dimension: 4,
     variables: [...deviceVariables('M1', 'input', c), ...deviceVariables('M2', 'input', c)],
     sensitivities,
     operatingPoint: [op1, op2],
-    warnings: [...temperatureWarnings, ...geometryWarnings('input', c)],
-    offset,
-    offsets,
+    warnings: geometryWarnings('input', c),
+    figure,
+    figures,
   };
 }
+
+/** `topology: simple`: the input pair with ideal equal loads. */
+export const SIMPLE_STAGE: StageDefinition = {
+  topology: 'simple',
+  summary: 'differential pair with ideal equal loads',
+  fields: [TAIL_FIELD],
+  blocks: [INPUT_PAIR],
+  figure: OFFSET_FIGURE,
+  compile: compileSimplePair,
+};

@@ -2,7 +2,7 @@
  * Small checks shared by the design-file sections: is this a mapping, are its keys known,
  * how is a bad value quoted in a one-line message.
  */
-import { InputError } from '@twinfet/core';
+import { InputError } from '../errors.js';
 import { closestWord } from './didYouMean.js';
 
 /** Plain data as the YAML reader returns it for a mapping. */
