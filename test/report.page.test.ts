@@ -51,6 +51,16 @@ describe('twinfet report, read as text', () => {
     expect(page.text).toContain('The weak-inversion tanh law is not drawn');
   });
 
+  it('resistor stage: the resistor table, the split with the load resistors, and the run\'s numbers', async () => {
+    const { html, run } = await pageAndRun('examples/resistor-pair.yaml', ['--samples', '20000', '--seed', '8'], []);
+    const page = extractPage(parseHTML(html).document as unknown as Document);
+    checkPage(page, run);
+    expect(page.text).toContain('R1load1 \u00b5m5 \u00b5m5 \u00b5m\u00b220 k\u03a9');
+    expect(page.figures.map((f) => f.id)).toContain('fig-split');
+    expect(page.text).toMatch(/The split of area between the input pair and the load resistors/);
+    expect(page.text).toContain('(I1 R1 \u2212 I2 R2)/R');
+  });
+
   it('refuses a missing or wrong --out and too few samples, naming the option', async () => {
     const cases: [string[], RegExp][] = [
       [['examples/comparator-demo.yaml'], /^twinfet: --out: missing; give the page to write/],
