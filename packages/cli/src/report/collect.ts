@@ -8,7 +8,7 @@ import { readFile } from 'node:fs/promises';
 import { compileStage, specLimit, type Design } from '@twinfet/core';
 import { createExecutor, estimateHighSigma, simulateWithSamples, type RunReport } from '@twinfet/montecarlo';
 import { studyArea } from './analyses/area.js';
-import { distributionFromHistogram, distributionFromSamples } from './analyses/distribution.js';
+import { distributionOfRun } from './analyses/distribution.js';
 import { studyTransfer } from './analyses/transfer.js';
 import type { ReportData } from './data.js';
 import { reportStageFor } from './stages/registry.js';
@@ -69,7 +69,7 @@ export async function collectReport(design: Design, o: CollectOptions): Promise<
         ? `the Monte Carlo failure probability ${p === 0 ? 'is 0 (no failures seen)' : `${p.toExponential(2)} is`} below ${HIGH_SIGMA_BELOW.toExponential(0)}, where ${run.evaluated} samples resolve it poorly`
         : `the Monte Carlo failure probability ${p.toExponential(2)} is at least ${HIGH_SIGMA_BELOW.toExponential(0)}: ${run.evaluated} samples resolve it directly (${run.yield.failures} failures)`,
     };
-    const distribution = outcome.offsets === undefined ? distributionFromHistogram(run) : distributionFromSamples(run, outcome.offsets);
+    const distribution = distributionOfRun(run, outcome.offsets);
     const area = await studyArea(design, { spec, chipYield: o.chipYield, seed: o.seed, confidence: o.confidence, executor, ...signal });
     const transfer = def === undefined ? { none: `the report has no transfer-curve definition for the ${stage.topology} stage yet` } : studyTransfer(stage, def.transfer(stage), run.seed);
     const bytes = await readFile(o.source);

@@ -1,9 +1,9 @@
 /**
  * The shape of the sampled figure's distribution beyond mean and sigma: its kurtosis and the
- * points of a normal-probability plot (sample quantiles against normal quantiles), from every
- * kept sample or, for runs too large to keep, from the run's histogram.
+ * points of a normal-probability plot (sample quantiles against normal quantiles), from the kept
+ * samples and the run's histogram (the histogram alone for runs too large to keep).
  */
-import { createHistogram, exactQuantile, normalCdf, normalPdf, normalQuantile, quantileFromHistogram, type RunReport } from '@twinfet/montecarlo';
+import { createHistogram, normalCdf, normalPdf, normalQuantile, quantileFromHistogram, type RunReport } from '@twinfet/montecarlo';
 
 /** Kurtosis m4 / m2^2 (3 for a Gaussian) and how it was computed. */
 export interface Kurtosis {
@@ -36,13 +36,17 @@ export interface TailCheck {
 /** The distribution study of a run. */
 export interface DistributionStudy {
   readonly kurtosis: Kurtosis;
-  readonly probabilityPlot: { readonly method: 'samples' | 'histogram'; readonly points: readonly ProbabilityPoint[] };
+  /**
+   * 'samples': the END_POINTS order statistics at each end are exact and the points between come
+   * from the histogram (bins `binWidth` wide); 'histogram': every point from the histogram.
+   */
+  readonly probabilityPlot: { readonly method: 'samples' | 'histogram'; readonly points: readonly ProbabilityPoint[]; readonly binWidth: number };
   /** The 0.1% and 99.9% quantiles against the Gaussian line (at 1e4 samples or more). */
   readonly tails: readonly TailCheck[];
 }
 
 /** Order statistics drawn individually at each end, then about this many more spread in z. */
-const END_POINTS = 40;
+export const END_POINTS = 40;
 const MIDDLE_POINTS = 240;
 /** Tail quantiles checked against the fitted Gaussian. */
 const TAIL_LEVELS = [0.001, 0.999] as const;
@@ -72,46 +76,37 @@ function plotRanks(n: number): number[] {
   return [...ranks].sort((a, b) => a - b);
 }
 
-/**
- * Kurtosis and probability-plot points from the kept samples of a run (NaN entries, where a
- * solve failed, are left out as in every other statistic).
- */
-export function distributionFromSamples(report: RunReport, offsets: Float64Array): DistributionStudy {
-  const kept = new Float64Array(offsets.length);
-  let n = 0;
-  for (let i = 0; i < offsets.length; i++) {
-    const x = offsets[i]!;
-    if (x === x) kept[n++] = x;
+/** The `k` smallest finite values of `x`, ascending (one pass; insertions are rare after the first k). */
+export function smallest(x: Float64Array, k: number, sign = 1): Float64Array {
+  const buf = new Float64Array(k);
+  let m = 0;
+  for (let i = 0; i < x.length; i++) {
+    const v = sign * x[i]!;
+    if (!(v === v) || (m === k && v >= buf[k - 1]!)) continue;
+    let j = m < k ? m++ : k - 1;
+    while (j > 0 && buf[j - 1]! > v) {
+      buf[j] = buf[j - 1]!;
+      j--;
+    }
+    buf[j] = v;
   }
-  const sorted = kept.subarray(0, n).sort();
-  let mean = 0;
-  for (let i = 0; i < n; i++) mean += sorted[i]!;
-  mean /= n;
-  let m2 = 0;
-  let m4 = 0;
-  for (let i = 0; i < n; i++) {
-    const d = sorted[i]! - mean;
-    const d2 = d * d;
-    m2 += d2;
-    m4 += d2 * d2;
-  }
-  m2 /= n;
-  m4 /= n;
-  const points = plotRanks(n).map((i) => ({ z: normalQuantile(blom(i, n)), value: sorted[i - 1]! }));
-  return {
-    kurtosis: { value: m4 / (m2 * m2), standardError: Math.sqrt(24 / n), method: 'samples' },
-    probabilityPlot: { method: 'samples', points },
-    tails: tailChecks(report, (p) => exactQuantile(sorted, p), n),
-  };
+  const out = buf.subarray(0, m);
+  return sign === 1 ? out : out.map((v) => -v);
 }
 
-/** The same from the run's histogram (bin centres; values outside its range are left out). */
-export function distributionFromHistogram(report: RunReport): DistributionStudy {
+/** The run's histogram as the stats module's Histogram (for its quantiles). */
+function runHistogram(report: RunReport) {
   const r = report.histogram;
   const h = createHistogram(r.lo, r.hi, r.counts.length);
   h.counts.set(r.counts);
   h.underflow = r.underflow;
   h.overflow = r.overflow;
+  return h;
+}
+
+/** Moments about the mean from the histogram's bin centres: [n, mean, m2, m4]. */
+function histogramMoments(report: RunReport): [number, number, number, number] {
+  const r = report.histogram;
   let n = 0;
   let mean = 0;
   r.counts.forEach((c, i) => {
@@ -126,19 +121,64 @@ export function distributionFromHistogram(report: RunReport): DistributionStudy 
     m2 += c * d * d;
     m4 += c * d * d * d * d;
   });
-  m2 /= n;
-  m4 /= n;
-  const total = n + r.underflow + r.overflow;
+  return [n, mean, m2 / n, m4 / n];
+}
+
+/** Moments about the mean of every finite kept sample (two passes): [n, mean, m2, m4]. */
+function sampleMoments(offsets: Float64Array): [number, number, number, number] {
+  let n = 0;
+  let mean = 0;
+  for (let i = 0; i < offsets.length; i++) {
+    const v = offsets[i]!;
+    if (v === v) {
+      n++;
+      mean += v;
+    }
+  }
+  mean /= n;
+  let m2 = 0;
+  let m4 = 0;
+  for (let i = 0; i < offsets.length; i++) {
+    const v = offsets[i]!;
+    if (v === v) {
+      const d2 = (v - mean) * (v - mean);
+      m2 += d2;
+      m4 += d2 * d2;
+    }
+  }
+  return [n, mean, m2 / n, m4 / n];
+}
+
+/**
+ * The distribution study of a run. With the samples kept (`offsets`, NaN where a solve failed):
+ * the kurtosis from every sample, and the probability plot's END_POINTS smallest and largest
+ * order statistics exact; the points between come from the run's histogram (within one bin
+ * width, far below what the plot can show), so no sort of the samples is needed. The 0.1% and
+ * 99.9% quantiles are the run's own (exact when it kept its samples).
+ */
+export function distributionOfRun(report: RunReport, offsets?: Float64Array): DistributionStudy {
+  const h = runHistogram(report);
+  const [n, , m2, m4] = offsets === undefined ? histogramMoments(report) : sampleMoments(offsets);
+  const total = offsets === undefined ? n + report.histogram.underflow + report.histogram.overflow : n;
+  const lows = offsets === undefined ? undefined : smallest(offsets, Math.min(END_POINTS, n));
+  const highs = offsets === undefined ? undefined : smallest(offsets, Math.min(END_POINTS, n), -1);
   const points = plotRanks(total)
     .map((i) => {
       const p = blom(i, total);
-      return { z: normalQuantile(p), value: quantileFromHistogram(h, p) };
+      let value: number;
+      if (lows !== undefined && i <= lows.length) value = lows[i - 1]!;
+      else if (highs !== undefined && total - i < highs.length) value = highs[total - i]!;
+      else value = quantileFromHistogram(h, p);
+      return { z: normalQuantile(p), value };
     })
     .filter((q) => Number.isFinite(q.value));
+  const signed = report.offset.quantiles.signed;
+  const quantile = (p: number): number => signed.find((q) => q.p === p)?.value ?? Number.NaN;
+  const method = offsets === undefined ? 'histogram' : 'samples';
   return {
-    kurtosis: { value: m4 / (m2 * m2), standardError: Math.sqrt(24 / n), method: 'histogram' },
-    probabilityPlot: { method: 'histogram', points },
-    tails: tailChecks(report, (p) => quantileFromHistogram(h, p), total),
+    kurtosis: { value: m4 / (m2 * m2), standardError: Math.sqrt(24 / n), method },
+    probabilityPlot: { method, points, binWidth: report.histogram.binWidth },
+    tails: tailChecks(report, quantile, total),
   };
 }
 

@@ -61,17 +61,19 @@ function grid(range: readonly [number, number], n: number): Float64Array {
   return Float64Array.from({ length: n }, (_, i) => a + ((b - a) * i) / (n - 1));
 }
 
-function view(t: StageTransfer, draws: Float64Array, dim: number, count: number, xs: Float64Array): TransferView {
+/** Each instance's output on a grid, row by row (NaN where it has no solution). */
+function rows(t: StageTransfer, draws: Float64Array, dim: number, count: number, xs: Float64Array): Float64Array {
   const n = xs.length;
-  const zero = new Float64Array(dim);
-  const nominal = new Float64Array(n);
-  t.evaluate(zero, 0, xs, nominal);
   const values = new Float64Array(count * n);
-  const row = new Float64Array(n);
-  for (let k = 0; k < count; k++) {
-    t.evaluate(draws, k * dim, xs, row);
-    values.set(row, k * n);
-  }
+  for (let k = 0; k < count; k++) t.evaluate(draws, k * dim, xs, values.subarray(k * n, (k + 1) * n));
+  return values;
+}
+
+/** The view of a grid: nominal curve, percentile curves over the instances' rows, the law. */
+function view(t: StageTransfer, values: Float64Array, dim: number, count: number, xs: Float64Array): TransferView {
+  const n = xs.length;
+  const nominal = new Float64Array(n);
+  t.evaluate(new Float64Array(dim), 0, xs, nominal);
   let unsolved = 0;
   const bands = BAND_LEVELS.map((p) => ({ p, values: new Array<number | null>(n) }));
   const column = new Float64Array(count);
@@ -89,12 +91,21 @@ function view(t: StageTransfer, draws: Float64Array, dim: number, count: number,
   return { x: Array.from(xs), nominal: Array.from(nominal, (v) => (v === v ? v : null)), bands, law, unsolved };
 }
 
+/** The grid interval of a row where the output crosses the balance value, or null. */
+function crossing(row: Float64Array, xs: Float64Array, balance: number): [number, number, number, number] | null {
+  for (let i = 1; i < xs.length; i++) {
+    const a = row[i - 1]! - balance;
+    const b = row[i]! - balance;
+    if (a === a && b === b && a * b <= 0) return [xs[i - 1]!, a, xs[i]!, b];
+  }
+  return null;
+}
+
 /**
- * The input where one instance's output crosses the balance value, by the Illinois variant of
- * regula falsi on a bracket (Dowell & Jarratt, BIT 11, 1971). NaN when the bracket holds no sign
- * change.
+ * The input where one instance's output crosses the balance value, from a bracket found on a
+ * grid, by the Illinois variant of regula falsi (Dowell & Jarratt, BIT 11, 1971).
  */
-function balancePoint(t: StageTransfer, u: Float64Array, base: number, lo: number, hi: number): number {
+function balancePoint(t: StageTransfer, u: Float64Array, base: number, bracket: readonly [number, number, number, number]): number {
   const x = new Float64Array(1);
   const y = new Float64Array(1);
   const g = (v: number): number => {
@@ -102,16 +113,15 @@ function balancePoint(t: StageTransfer, u: Float64Array, base: number, lo: numbe
     t.evaluate(u, base, x, y);
     return y[0]! - t.balance;
   };
-  let a = lo;
-  let b = hi;
-  let fa = g(a);
-  let fb = g(b);
-  if (!(fa * fb <= 0)) return Number.NaN;
+  let [a, fa, b, fb] = bracket;
+  if (fa === 0) return a;
+  if (fb === 0) return b;
   const tol = BALANCE_TOLERANCE * (t.zoom[1] - t.zoom[0]);
   let side = 0;
   for (let k = 0; k < 200 && Math.abs(b - a) > tol; k++) {
     const c = (a * fb - b * fa) / (fb - fa);
     const fc = g(c);
+    if (!(fc === fc)) return Number.NaN;
     if (fc * fb > 0) {
       b = c;
       fb = fc;
@@ -154,14 +164,23 @@ export function firstDraws(seed: string, dimension: number, count: number): Floa
 export function studyTransfer(stage: Stage, t: StageTransfer, seed: string, count = TRANSFER_INSTANCES): TransferStudy | { readonly none: string } {
   const dim = stage.dimension;
   const draws = firstDraws(seed, dim, count);
-  const full = view(t, draws, dim, count, grid(t.span, FULL_POINTS));
-  const zoom = view(t, draws, dim, count, grid(t.zoom, ZOOM_POINTS));
+  const fullX = grid(t.span, FULL_POINTS);
+  const zoomX = grid(t.zoom, ZOOM_POINTS);
+  const fullRows = rows(t, draws, dim, count, fullX);
+  const zoomRows = rows(t, draws, dim, count, zoomX);
+  const full = view(t, fullRows, dim, count, fullX);
+  const zoom = view(t, zoomRows, dim, count, zoomX);
   const zeros = new Float64Array(dim);
-  const nominalBalance = balancePoint(t, zeros, 0, t.span[0], t.span[1]);
+  const nominalRow = new Float64Array(FULL_POINTS);
+  t.evaluate(zeros, 0, fullX, nominalRow);
+  const nominalBracket = crossing(nominalRow, fullX, t.balance);
+  const nominalBalance = nominalBracket === null ? Number.NaN : balancePoint(t, zeros, 0, nominalBracket);
   const balances: (number | null)[] = [];
   const slopes: number[] = [];
   for (let k = 0; k < count; k++) {
-    const x = balancePoint(t, draws, k * dim, t.span[0], t.span[1]);
+    // The close-up grid brackets nearly every balance point; the whole curve the rest.
+    const bracket = crossing(zoomRows.subarray(k * ZOOM_POINTS, (k + 1) * ZOOM_POINTS), zoomX, t.balance) ?? crossing(fullRows.subarray(k * FULL_POINTS, (k + 1) * FULL_POINTS), fullX, t.balance);
+    const x = bracket === null ? Number.NaN : balancePoint(t, draws, k * dim, bracket);
     balances.push(Number.isFinite(x) ? x : null);
     if (Number.isFinite(x)) slopes.push(slopeAt(t, draws, k * dim, x));
   }

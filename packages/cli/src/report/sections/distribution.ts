@@ -4,6 +4,7 @@ import { linearAxis } from '../../chart/axis.js';
 import { COLOR, DASH } from '../../chart/style.js';
 import { shown } from '../../plot.js';
 import { runHistogramChart } from '../../runHistogram.js';
+import { END_POINTS } from '../analyses/distribution.js';
 import type { ReportData } from '../data.js';
 import { esc, figure, num, pairs, table, type Section } from '../html.js';
 import { figureQuantity, figureUnit, minus, percent, plain, q } from '../units.js';
@@ -48,7 +49,7 @@ export function distributionSection(d: ReportData): Section {
   const drawn = specLines.filter((v) => v * s >= yMin - 0.25 * span && v * s <= yMax + 0.25 * span);
   const layers: Layer[] = [
     { kind: 'line', name: 'gaussian-line', legend: 'Gaussian with the sample mean and sigma', points: line, stroke: COLOR.fit, width: 1.5 },
-    { kind: 'points', name: 'quantiles', legend: `sample quantiles (${d.distribution.probabilityPlot.method === 'samples' ? 'order statistics' : 'from the histogram'})`, points: pts.map((p) => ({ x: p.z, y: p.value * s })), marker: 'circle', fill: COLOR.main, stroke: COLOR.main, size: 2.2 },
+    { kind: 'points', name: 'quantiles', legend: `sample quantiles (${d.distribution.probabilityPlot.method === 'samples' ? `exact at the ${END_POINTS} extremes each end, between them from the histogram to ${plain(d.distribution.probabilityPlot.binWidth / o.sigma, 2)} sigma` : `from the histogram, to ${plain(d.distribution.probabilityPlot.binWidth / o.sigma, 2)} sigma`})`, points: pts.map((p) => ({ x: p.z, y: p.value * s })), marker: 'circle', fill: COLOR.main, stroke: COLOR.main, size: 2.2 },
     ...drawn.map((v): Layer => ({ kind: 'rule', name: v < 0 ? 'spec-low' : 'spec-high', axis: 'y', value: v * s, label: `${v < 0 ? '\u2212spec' : '+spec'} ${shown(v * s, fq.unit)}`, stroke: COLOR.limit, dash: DASH.spec, side: v < 0 ? 'end' : 'start' })),
   ];
   const prob = chartSvg({

@@ -22,12 +22,16 @@ export const mirrorReportStage: ReportStage = {
     const tail = d.tail;
     if (m3 === undefined || m4 === undefined || proc === undefined || tail === undefined) throw new Error('internal: mirror stage without its load after validation');
     const nut = proc.slope * stage.thermalVoltage;
-    return pairTransfer(stage, { name: 'output current', symbol: 'I4 \u2212 I2', unit: 'A' }, (f, g, draw) => {
-      const d3 = draw('M3');
-      const d4 = draw('M4');
-      const v3 = ekvInverse((f * tail) / (m3.specificCurrent * d3.specific));
-      const i4 = m4.specificCurrent * d4.specific * ekvForward(v3 - (d4.dVt - d3.dVt) / nut);
-      return i4 - g * tail;
+    return pairTransfer(stage, { name: 'output current', symbol: 'I4 \u2212 I2', unit: 'A' }, (index) => {
+      const i3 = index('M3');
+      const i4 = index('M4');
+      return (f, g, draws) => {
+        const d3 = draws[i3]!;
+        const d4 = draws[i4]!;
+        const v3 = ekvInverse((f * tail) / (m3.specificCurrent * d3.specific));
+        const current4 = m4.specificCurrent * d4.specific * ekvForward(v3 - (d4.dVt - d3.dVt) / nut);
+        return current4 - g * tail;
+      };
     });
   },
 };

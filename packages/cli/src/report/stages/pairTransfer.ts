@@ -18,19 +18,21 @@ const WEAK_INVERSION_IC = 0.1;
 const FULL_SHARE = 0.99;
 
 /**
- * The stage's output from the pair's shares f = I1 / I_B and g = 1 - f of one instance;
- * `draw(name)` is that instance's mismatch of an element (`M3`, `R1`).
+ * The stage's output from the pair's shares f = I1 / I_B and g = 1 - f of one instance, whose
+ * elements' mismatch is `draws`; made once per stage with `index`, which gives an element's
+ * (`M3`, `R1`) position in `draws`.
  */
-export type PairOutput = (f: number, g: number, draw: (element: string) => ElementDraw) => number;
+export type PairOutput = (index: (element: string) => number) => (f: number, g: number, draws: readonly ElementDraw[]) => number;
 
 /**
  * A StageTransfer for a pair stage whose output follows from the pair's share.
  * @param output the stage's output from the shares
  * @param outputQuantity what that output is called
  */
-export function pairTransfer(stage: Stage, outputQuantity: Quantity, output: PairOutput): StageTransfer {
+export function pairTransfer(stage: Stage, outputQuantity: Quantity, makeOutput: PairOutput): StageTransfer {
   const c = pairConstants(stage);
   const reader = drawReader(stage);
+  const output = makeOutput(reader.index);
   const m1 = reader.index('M1');
   const m2 = reader.index('M2');
   const sigma = linearisedSigma(stage);
@@ -42,14 +44,13 @@ export function pairTransfer(stage: Stage, outputQuantity: Quantity, output: Pai
     const d2 = draws[m2]!;
     const a1 = (c.specific * d1.specific) / c.tail;
     const a2 = (c.specific * d2.specific) / c.tail;
-    const draw = (element: string): ElementDraw => draws[reader.index(element)]!;
     // Neighbouring inputs have neighbouring solutions: each solve starts from the last one.
     let start: number | undefined;
     for (let i = 0; i < xs.length; i++) {
       const t = (c.sign * xs[i]! - (d1.dVt - d2.dVt)) / c.nut;
       const [f, g, y] = pairShare(t, a1, a2, start);
       start = Number.isFinite(y) ? y : undefined;
-      out[i] = Number.isFinite(f) ? output(f, g, draw) : Number.NaN;
+      out[i] = Number.isFinite(f) ? output(f, g, draws) : Number.NaN;
     }
   };
   const law =

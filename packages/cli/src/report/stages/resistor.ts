@@ -16,5 +16,9 @@ export const resistorReportStage: ReportStage = {
     return `Differential pair with resistor loads: the ${d.input.polarity}-channel input pair M1/M2 shares a ${formatQuantity(d.tail ?? 0, 'A', 4)} tail current and drives the load resistors R1/R2${r}; the offset is the gate-voltage difference V_G1 \u2212 V_G2 at which I1 R1 = I2 R2.`;
   },
   transfer: (stage) =>
-    pairTransfer(stage, { name: 'output imbalance', symbol: '(I1 R1 \u2212 I2 R2)/R', unit: 'A' }, (f, g, draw) => (stage.design.tail ?? Number.NaN) * (f * draw('R1').ratio - g * draw('R2').ratio)),
+    pairTransfer(stage, { name: 'output imbalance', symbol: '(I1 R1 \u2212 I2 R2)/R', unit: 'A' }, (index) => {
+      const r1 = index('R1');
+      const r2 = index('R2');
+      return (f, g, draws) => (stage.design.tail ?? Number.NaN) * (f * draws[r1]!.ratio - g * draws[r2]!.ratio);
+    }),
 };
