@@ -15,8 +15,8 @@ export const TRANSFER_INSTANCES = 400;
 /** Percentile levels of the bands. */
 export const BAND_LEVELS = [0.01, 0.5, 0.99] as const;
 /** Grid points of the whole curve and of the close-up. */
-const FULL_POINTS = 101;
-const ZOOM_POINTS = 61;
+const FULL_POINTS = 81;
+const ZOOM_POINTS = 41;
 /** Balance points are found to this fraction of the close-up's width. */
 const BALANCE_TOLERANCE = 1e-12;
 

@@ -49,7 +49,7 @@ export function distributionSection(d: ReportData): Section {
   const drawn = specLines.filter((v) => v * s >= yMin - 0.25 * span && v * s <= yMax + 0.25 * span);
   const layers: Layer[] = [
     { kind: 'line', name: 'gaussian-line', legend: 'Gaussian with the sample mean and sigma', points: line, stroke: COLOR.fit, width: 1.5 },
-    { kind: 'points', name: 'quantiles', legend: `sample quantiles (${d.distribution.probabilityPlot.method === 'samples' ? `exact at the ${END_POINTS} extremes each end, between them from the histogram to ${plain(d.distribution.probabilityPlot.binWidth / o.sigma, 2)} sigma` : `from the histogram, to ${plain(d.distribution.probabilityPlot.binWidth / o.sigma, 2)} sigma`})`, points: pts.map((p) => ({ x: p.z, y: p.value * s })), marker: 'circle', fill: COLOR.main, stroke: COLOR.main, size: 2.2 },
+    { kind: 'points', name: 'quantiles', legend: 'sample quantiles', points: pts.map((p) => ({ x: p.z, y: p.value * s })), marker: 'circle', fill: COLOR.main, stroke: COLOR.main, size: 2.2 },
     ...drawn.map((v): Layer => ({ kind: 'rule', name: v < 0 ? 'spec-low' : 'spec-high', axis: 'y', value: v * s, label: `${v < 0 ? '\u2212spec' : '+spec'} ${shown(v * s, fq.unit)}`, stroke: COLOR.limit, dash: DASH.spec, side: v < 0 ? 'end' : 'start' })),
   ];
   const prob = chartSvg({
@@ -75,6 +75,9 @@ export function distributionSection(d: ReportData): Section {
         ? `The points follow the line out to ${plain(Math.max(-zLo, zHi), 3)} sigma, so the tails are Gaussian within sampling error: ${tailText}.`
         : `The tails are not Gaussian: ${tailText}. ${heavy.some((t) => t.relative > 0) ? 'A heavier tail than the Gaussian makes the Gaussian yield estimate optimistic.' : 'A lighter tail makes the Gaussian yield estimate pessimistic.'}`;
 
+  const pp = d.distribution.probabilityPlot;
+  const bin = plain(pp.binWidth / o.sigma, 2);
+  const how = pp.method === 'samples' ? ` The ${END_POINTS} most extreme samples at each end are drawn exactly, the points between them from the histogram (to ${bin} sigma).` : ` Every point comes from the histogram (to ${bin} sigma): the run was too large to keep its samples.`;
   const kt = d.distribution.kurtosis;
   const agree = r.analytic.agreement;
   const numbers = pairs([
@@ -99,6 +102,6 @@ export function distributionSection(d: ReportData): Section {
   return {
     id: 'distribution',
     title: `${name} distribution`,
-    html: `${figure('fig-histogram', 'Figure 3.1', `${name} histogram with the fitted Gaussian and the spec`, histReading, hist)}${figure('fig-probability', 'Figure 3.2', 'Normal-probability plot', probReading, prob)}${numbers}${quant}`,
+    html: `${figure('fig-histogram', 'Figure 3.1', `${name} histogram with the fitted Gaussian and the spec`, histReading, hist)}${figure('fig-probability', 'Figure 3.2', 'Normal-probability plot', `${probReading}${how}`, prob)}${numbers}${quant}`,
   };
 }
