@@ -9,6 +9,7 @@ import { registerTail } from './commands/tail.js';
 import { registerSize } from './commands/size.js';
 import { registerSweep } from './commands/sweep.js';
 import { VERSION } from './version.js';
+import { registerReport } from './commands/report.js';
 
 
 /** Exit codes: 0 done, 1 internal error, 2 bad input, 130 interrupted. */
@@ -50,6 +51,7 @@ export function buildProgram(io: Io, setExit: (code: number) => void): Command {
   registerTail(program, io, setExit);
   registerSize(program, io, setExit);
   registerSweep(program, io, setExit);
+  registerReport(program, io, setExit);
   for (const c of program.commands) c.exitOverride().configureOutput(output(io)).allowExcessArguments(true);
   // Name a stray argument ourselves: it is nearly always a unit split off its value (--spec 5 mV).
   program.hook('preAction', (_root, action) => {

@@ -2,7 +2,8 @@
  * Speed and memory benchmark (`pnpm bench`): ns/sample of the chunk function in one thread,
  * samples/s of whole runs with 1 and with all workers, peak memory of a 1e8-sample run that
  * keeps no samples, the wall time of a 6-sigma high-sigma estimate through the CLI, how long
- * cancellation takes (abort() through the API, SIGINT through the CLI), and the command line's
+ * cancellation takes (abort() through the API, SIGINT through the CLI), the wall time of a
+ * design-review report at 1e6 samples (../../cli/bench/report.ts), and the command line's
  * start-up. `pnpm bench --peer` instead times whole `twinfet run` processes against a numpy
  * script of the same model (bench/peer.ts), then the start-up.
  * It prints figures; it asserts nothing (targets are checked by reading them).
@@ -17,6 +18,7 @@ import { poolExecutor } from '../src/engine/pool.js';
 import { loadDesign } from '../../cli/dist/designFile.js';
 import { peerComparison } from './peer.js';
 import { startupFigures } from './startup.js';
+import { reportBench } from '../../cli/bench/report.js';
 
 const root = fileURLToPath(new URL('../../../', import.meta.url));
 const examples = ['weak-inversion-wta', 'sense-amp-pmos', 'comparator-demo'];
@@ -194,3 +196,4 @@ console.log(`  a fresh pool of ${defaultWorkers()} threads returns its first 655
 }
 console.log('');
 startupFigures();
+reportBench(quick);

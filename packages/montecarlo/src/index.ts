@@ -54,6 +54,7 @@ export { sweepDesigns, SWEEP_SAMPLES, type SweepOptions, type SweepPointResult }
 
 // sizing/
 export { SIZE_VARIATIONS, type SizeVary } from './sizing/resize.js';
+export { areaSplit, type AreaSplit } from './sizing/areaSplit.js';
 export {
   sizeDesign,
   type Confirmation,

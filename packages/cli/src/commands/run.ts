@@ -72,15 +72,11 @@ async function writeSamplesCsv(path: string, outcome: RunOutcome): Promise<void>
 
 /** The histogram plot of a run, in the display unit of its figure. */
 export async function runPlot(report: RunReport, title: string): Promise<string> {
-  // Loaded on demand: the plotting library takes ~200 ms to import, which other runs should not pay.
-  const { histogramSvg } = await import('../plot.js');
-  const h = report.histogram;
-  const half = Math.max(5 * report.offset.sigma, 1.15 * report.yield.spec);
-  const first = Math.max(0, Math.floor((-half - h.lo) / h.binWidth));
-  const last = Math.min(h.counts.length, Math.ceil((half - h.lo) / h.binWidth));
-  const counts = h.counts.slice(first, last);
-  const edges = Array.from({ length: counts.length + 1 }, (_, i) => h.lo + (first + i) * h.binWidth);
-  return histogramSvg({ title, binEdges: edges, counts, samples: report.evaluated, mean: report.offset.mean, sigma: report.offset.sigma, spec: report.yield.spec, subtitle: `seed ${report.seed}`, figure: plotFigure(report.figure) });
+  // Loaded on demand, so a run without --plot does not load the plotting code.
+  const [{ chartSvg }, { runHistogramChart }, { displayQuantity }] = await Promise.all([import('../chart/chart.js'), import('../runHistogram.js'), import('../displayQuantity.js')]);
+  const f = report.figure;
+  const quantity = displayQuantity({ name: f.label, symbol: f.symbol, unit: f.unit === '' ? '%' : f.unit }, Math.max(report.offset.sigma, report.yield.spec));
+  return chartSvg(runHistogramChart(report, { title, quantity, specSides: f.sided }));
 }
 
 /** Row labels of the text histogram: the offset in mV to 3 decimals as before, a dimensionless figure in %. */

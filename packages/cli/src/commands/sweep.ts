@@ -292,9 +292,9 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
         yieldHi: p.monteCarlo.yieldInterval[1],
         ...(p.importance === null ? {} : { tailFailure: p.importance.failure, tailLo: p.importance.interval[0], tailHi: p.importance.interval[1] }),
       }));
-      // Loaded on demand: the plotting library takes ~200 ms to import.
+      // Loaded on demand, so a sweep without --plot does not load the plotting code.
       const { sweepSvg } = await import('../plot.js');
-      const svg = await sweepSvg({
+      const svg = sweepSvg({
         title: `${design.name}: ${report.figure.label} against ${f.path}`,
         field: f.path,
         fieldUnit: axis.unit,
@@ -303,7 +303,7 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
         points: plotPoints,
         ...(targetSigma === null ? {} : { sigmaTarget: targetSigma }),
         ...(targetYield === null ? {} : { yieldTarget: targetYield }),
-        figure: plotFigure(report.figure),
+        quantity: (({ label, symbol, unit, scale }) => ({ label: `${label} ${symbol}`, unit, scale }))(plotFigure(report.figure)),
       });
       await writeOutputFile(flags.plot, '--plot', svg);
     }
