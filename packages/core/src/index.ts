@@ -12,6 +12,7 @@ export { validateDesign, specLimit, designKeys } from './validateDesign.js';
 export * from './compileStage.js';
 export * from './linearised.js';
 export { MIRROR_TOLERANCE, MIRROR_MAX_ITERATIONS } from './stages/mirror.js';
+export { SELECTOR_TOLERANCE, SELECTOR_MAX_ITERATIONS, cellCurrents } from './stages/selector.js';
 export { parseDesign, type DesignFormat, type ParseOptions } from './parse/parseDesign.js';
 export { closestWord, editDistance } from './parse/didYouMean.js';
 export { writeDesign, shiftedDecimal } from './parse/writeDesign.js';

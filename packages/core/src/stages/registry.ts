@@ -7,10 +7,11 @@ import { InputError } from '../errors.js';
 import type { StageDefinition } from './definition.js';
 import { MIRROR_STAGE } from './mirror.js';
 import { RESISTOR_STAGE } from './resistor.js';
+import { SELECTOR_STAGE } from './selector.js';
 import { SIMPLE_STAGE } from './simple.js';
 
 /** Every stage type, in the order help texts list them. */
-export const STAGES: readonly StageDefinition[] = [SIMPLE_STAGE, MIRROR_STAGE, RESISTOR_STAGE];
+export const STAGES: readonly StageDefinition[] = [SIMPLE_STAGE, MIRROR_STAGE, RESISTOR_STAGE, SELECTOR_STAGE];
 
 /** The topology names, as a design file writes them. */
 export const TOPOLOGIES: readonly string[] = STAGES.map((s) => s.topology);
