@@ -11,6 +11,7 @@ import { seedText } from '../random/seed.js';
 import { sigmaInterval } from '../stats/sigmaInterval.js';
 import { estimateHighSigma, type HighSigmaReport } from './highSigma.js';
 import { wilson } from '../stats/wilson.js';
+import { responseAt, type ResponseSummary } from './response.js';
 
 /** Quantile levels reported for the signed offset and for |Vos|. */
 export const QUANTILE_LEVELS = [0.001, 0.01, 0.5, 0.99, 0.999] as const;
@@ -100,6 +101,11 @@ export interface RunReport {
   readonly histogram: { readonly lo: number; readonly hi: number; readonly binWidth: number; readonly counts: readonly number[]; readonly underflow: number; readonly overflow: number };
   readonly analytic: LinearisedSummary & {
     readonly agreement: { readonly relativeDifference: number; readonly standardErrors: number; readonly consistent: boolean };
+    /**
+     * For a law other than the Gaussian (a selector's Bechhofer form): the Monte Carlo yield
+     * against the law's, in binomial standard errors sqrt(P (1 - P) / N) of the law's P.
+     */
+    readonly yieldAgreement?: { readonly difference: number; readonly standardErrors: number; readonly consistent: boolean };
   };
   readonly yield: {
     readonly spec: number;
@@ -116,6 +122,8 @@ export interface RunReport {
   };
   readonly chip: { readonly instances: number; readonly estimate: number; readonly interval: readonly [number, number] };
   readonly importance?: HighSigmaReport;
+  /** The stage's transfer curve at the spec (a selector's winner's share), nominal and spread. */
+  readonly response?: ResponseSummary;
   readonly nonConverged: number;
   readonly seconds: number;
   readonly samplesPerSecond: number;
@@ -311,6 +319,13 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
 
   const se = sigma / Math.sqrt(2 * (n - 1));
   const standardErrors = (sigma - analytic.sigma) / se;
+  let yieldAgreement: NonNullable<RunReport['analytic']['yieldAgreement']> | undefined;
+  if (!('gaussian' in analytic)) {
+    const p = analytic.yield.estimate;
+    const zy = (y - p) / Math.sqrt((p * (1 - p)) / n);
+    yieldAgreement = { difference: y - p, standardErrors: zy, consistent: Math.abs(zy) <= AGREEMENT_Z };
+  }
+  const response = partial ? undefined : responseAt(stage, spec, seed);
   const warnings = [...stage.warnings];
   if (nonConverged > 0) warnings.push(`${nonConverged} sample(s) whose balance solve did not converge were left out of every statistic`);
   if (histogram.underflow + histogram.overflow > 0) {
@@ -350,6 +365,7 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
         standardErrors,
         consistent: Math.abs(standardErrors) <= AGREEMENT_Z,
       },
+      ...(yieldAgreement === undefined ? {} : { yieldAgreement }),
     },
     yield: {
       spec,
@@ -365,6 +381,7 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
     },
     chip: { instances: m, estimate: chip(y), interval: [chip(yLo), chip(yHi)] },
     ...(importance === undefined ? {} : { importance }),
+    ...(response === undefined ? {} : { response }),
     nonConverged,
     seconds,
     samplesPerSecond: n / seconds,
