@@ -69,8 +69,11 @@ export function sci(x: number, digits: number): string {
   return a >= 1e-3 && a < 1e4 ? String(Number(x.toPrecision(digits))) : x.toExponential(digits - 1);
 }
 
-/** Human label of a budget group (`input pair dV_T`, `load pair dR/R`). */
-export function shareLabel(role: string, parameter: string): string {
+/**
+ * Human label of a budget group (`input pair dV_T`, `load pair dR/R`); `whose` replaces
+ * `<role> pair` where the budget is of one representative element (`each cell dV_T`).
+ */
+export function shareLabel(role: string, parameter: string, whose = `${role} pair`): string {
   const label = parameter === 'vt' ? 'dV_T' : parameter === 'r' ? 'dR/R' : 'dbeta/beta';
-  return `${role} pair ${label}`;
+  return `${whose} ${label}`;
 }

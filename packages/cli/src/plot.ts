@@ -82,6 +82,8 @@ export interface SweepInput {
   sigmaTarget?: number;
   /** Yield target as a fraction: 1 - yieldTarget is drawn as the failure target. */
   yieldTarget?: number;
+  /** What the sigma is of, for the axis title (default "offset"). */
+  figureLabel?: string;
 }
 
 /** A histogram's bins after merging, edges in volts. */
@@ -394,7 +396,7 @@ export function sweepSpec(input: SweepInput): TopLevelSpec {
     scale: { domain: failSeries, range: failColors },
     legend: { title: null, labelLimit: 260 },
   } as const;
-  const ySigma = { type: 'quantitative' as const, axis: { title: 'offset sigma (mV)' } };
+  const ySigma = { type: 'quantitative' as const, axis: { title: `${input.figureLabel ?? 'offset'} sigma (mV)` } };
   const width = 560;
   const height = 220;
 
@@ -471,6 +473,110 @@ export function sweepSpec(input: SweepInput): TopLevelSpec {
     // One x scale, so both panels line up even when the lower one leaves points out.
     resolve: { scale: { x: 'shared', color: 'independent' }, legend: { color: 'independent' } },
   };
+}
+
+/** A transfer curve under mismatch: its nominal curve and percentile bands over samples. */
+export interface ResponseInput {
+  /** Plot title. */
+  title: string;
+  /** Extra line under the title. */
+  subtitle?: string;
+  envelope: {
+    /** What the output is ("winner's share of the tail") and what the input is ("lead"). */
+    readonly label: string;
+    readonly input: string;
+    /** Input values, volts, increasing. */
+    readonly x: readonly number[];
+    /** Output without mismatch at each x, a fraction. */
+    readonly nominal: readonly number[];
+    /** Output quantiles at each x: levels symmetric about 0.5 pair into bands. */
+    readonly bands: readonly { readonly p: number; readonly values: readonly number[] }[];
+    readonly samples: number;
+  };
+  /** The spec on the input (volts, > 0): drawn as a rule. */
+  spec: number;
+}
+
+function validateResponse(input: ResponseInput): void {
+  const e = input.envelope;
+  if (e.x.length < 2) throw new RangeError('response x must hold at least two points');
+  e.x.forEach((v, i) => requireFinite(`response x[${i}]`, v));
+  const series = [e.nominal, ...e.bands.map((b) => b.values)];
+  for (const ys of series) {
+    if (ys.length !== e.x.length) throw new RangeError(`response series must have ${e.x.length} values, got ${ys.length}`);
+    ys.forEach((v, i) => {
+      if (!(v >= 0 && v <= 1)) throw new RangeError(`response value ${i} must be a fraction in [0, 1], got ${v}`);
+    });
+  }
+  requirePositive('response spec', input.spec);
+}
+
+/**
+ * The vega-lite spec of a transfer curve under mismatch: the nominal output against the input
+ * (millivolts), the bands between the quantile levels that pair about the median (1-99%, 10-90%)
+ * shaded, the median dashed, and the spec marked. Throws RangeError naming the bad field.
+ */
+export function responseSpec(input: ResponseInput): TopLevelSpec {
+  validateResponse(input);
+  const e = input.envelope;
+  const pct = (v: number): number => 100 * v;
+  const x = (i: number): number => e.x[i]! * MV_PER_V;
+  const sorted = [...e.bands].sort((a, b) => a.p - b.p);
+  const areas: { x: number; lo: number; hi: number; series: string }[] = [];
+  const bandNames: string[] = [];
+  for (let i = 0; i < sorted.length / 2 - 0.5; i++) {
+    const lo = sorted[i]!;
+    const hi = sorted[sorted.length - 1 - i]!;
+    const name = `${Math.round(lo.p * 100)}-${Math.round(hi.p * 100)}% of samples`;
+    bandNames.push(name);
+    e.x.forEach((_, j) => areas.push({ x: x(j), lo: pct(lo.values[j]!), hi: pct(hi.values[j]!), series: name }));
+  }
+  const median = sorted.find((b) => b.p === 0.5);
+  const nominal = e.x.map((_, j) => ({ x: x(j), y: pct(e.nominal[j]!), series: 'nominal' }));
+  const medianLine = median === undefined ? [] : e.x.map((_, j) => ({ x: x(j), y: pct(median.values[j]!), series: 'median' }));
+  const domain = [...bandNames, 'nominal', ...(median === undefined ? [] : ['median']), 'spec'];
+  const range = [...bandNames.map((_, i) => (i === 0 ? '#c9d7ee' : '#8fabd9')), RED, ...(median === undefined ? [] : [BLUE]), GREEN];
+  const color = { field: 'series', type: 'nominal', scale: { domain, range }, legend: { title: null, labelLimit: 260 } } as const;
+  const xEnc = { field: 'x', type: 'quantitative', title: `${e.input} (mV)`, scale: { zero: false, nice: false } } as const;
+  const yTitle = `${e.label} (%)`;
+  const subtitle = [`${e.samples} mismatch samples; shaded: the spread between quantiles at each ${e.input}`];
+  return {
+    $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
+    title: { text: input.title, subtitle: input.subtitle === undefined ? subtitle : [input.subtitle, ...subtitle] },
+    width: 640,
+    height: 340,
+    layer: [
+      {
+        name: 'bands',
+        data: { values: areas },
+        mark: { type: 'area', opacity: 0.8 },
+        encoding: { x: xEnc, y: { field: 'lo', type: 'quantitative', title: yTitle, scale: { domain: [0, 100] } }, y2: { field: 'hi' }, color, detail: { field: 'series', type: 'nominal' } },
+      },
+      {
+        name: 'nominal',
+        data: { values: nominal },
+        mark: { type: 'line', strokeWidth: 2 },
+        encoding: { x: xEnc, y: { field: 'y', type: 'quantitative' }, color },
+      },
+      {
+        name: 'median',
+        data: { values: medianLine },
+        mark: { type: 'line', strokeWidth: 1.5, strokeDash: [5, 3] },
+        encoding: { x: xEnc, y: { field: 'y', type: 'quantitative' }, color },
+      },
+      {
+        name: 'specRule',
+        data: { values: [{ x: input.spec * MV_PER_V, series: 'spec' }] },
+        mark: { type: 'rule', strokeWidth: 2, strokeDash: [6, 4] },
+        encoding: { x: { field: 'x', type: 'quantitative' }, color },
+      },
+    ],
+  };
+}
+
+/** SVG of a transfer curve under mismatch; see {@link responseSpec}. */
+export async function responseSvg(input: ResponseInput): Promise<string> {
+  return render(responseSpec(input));
 }
 
 /** Compiles a vega-lite spec and renders it headless to an SVG string; the view is always freed. */

@@ -1,9 +1,9 @@
 import { readFileSync } from 'node:fs';
-import { closestWord, formatQuantity, InputError, isInputError, parseQuantity, writeDesign, type Design } from '@twinfet/core';
-import { SIZE_VARIATIONS, sizeDesign, type Confirmation, type SizedPoint, type SizeReport, type SizeTarget, type SizeVary } from '@twinfet/montecarlo';
+import { closestWord, compileStage, formatQuantity, InputError, isInputError, parseQuantity, stageDefinition, writeDesign, type Design } from '@twinfet/core';
+import { figureLaw, SIZE_VARIATIONS, sizeDesign, type Confirmation, type SizedPoint, type SizeReport, type SizeTarget, type SizeVary } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
 import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
-import { headerLine, pct, sci } from '../describe.js';
+import { figureText, headerLine, pct, sci, type FigureText } from '../describe.js';
 import { loadDesign } from '../designFile.js';
 import { writeOutputFile } from '../files.js';
 import { parseCount, parseFraction } from '../options.js';
@@ -62,12 +62,17 @@ const mv = (v: number): string => formatQuantity(v, 'V', 4);
 const um2 = (a: number): string => `${Number((a * 1e12).toPrecision(4))} um^2`;
 const conf = (c: number): string => `${Math.round(c * 1000) / 10}%`;
 
-function targetText(r: SizeReport): string {
+/** How the design's figure is written (`offset`, `|Vos|`; a selector's `required lead`, `L`). */
+function figureOf(design: Design): FigureText {
+  return figureText(stageDefinition(design.topology).figure);
+}
+
+function targetText(r: SizeReport, f: FigureText): string {
   const t = r.target;
-  if (t.kind === 'sigma') return `offset sigma <= ${mv(t.sigma)}`;
+  if (t.kind === 'sigma') return `${f.label} sigma <= ${f.format(t.sigma)}`;
   const p = t.allowedFailure === null ? '' : `, allowed failure ${sci(t.allowedFailure, 4)} per instance`;
-  if (t.kind === 'yield') return `instance yield >= ${t.yield} at |Vos| <= ${mv(r.spec)}${p}`;
-  return `chip yield >= ${t.chipYield} over ${r.instances} instance${r.instances === 1 ? '' : 's'} at |Vos| <= ${mv(r.spec)}${p}`;
+  if (t.kind === 'yield') return `instance yield >= ${t.yield} at ${f.magnitude} <= ${f.format(r.spec)}${p}`;
+  return `chip yield >= ${t.chipYield} over ${r.instances} instance${r.instances === 1 ? '' : 's'} at ${f.magnitude} <= ${f.format(r.spec)}${p}`;
 }
 
 function varyText(v: SizeVary): string {
@@ -102,6 +107,8 @@ const bound = (y: number): string => (y === 1 ? '1' : y < 1e-3 ? sci(y, 4) : yie
 
 /** Text form of a sizing report. */
 export function renderSize(r: SizeReport, source: string, design: Design): string {
+  const f = figureOf(design);
+  const lawName = figureLaw(compileStage(design)).name;
   const c = r.confirmed;
   const cl = conf(r.confidence);
   const header = ['pair', 'design', 'W', 'L', 'W*L', 'IC', 'region', 'gm/I_D', 'C_gate'];
@@ -115,8 +122,8 @@ export function renderSize(r: SizeReport, source: string, design: Design): strin
     pairs.push(['confirmed sigma', `${mv(c.sigma)}   ${cl} [${mv(c.sigmaInterval[0])}, ${mv(c.sigmaInterval[1])}] (exact model, ${method})`]);
   }
   pairs.push(
-    ['failure at spec', `${sci(c.failure, 4)}   ${cl} [${sci(c.failureInterval[0], 4)}, ${sci(c.failureInterval[1], 4)}] (|Vos| > ${mv(r.spec)}${c.sigma === null ? `; ${method}` : ''})`],
-    ['instance yield', `${c.failure === 0 ? `1 (no failures in ${c.samples} samples)` : bound(1 - c.failure)}   Gaussian estimate ${yieldText(1 - r.result.gaussianFailure)}`],
+    ['failure at spec', `${sci(c.failure, 4)}   ${cl} [${sci(c.failureInterval[0], 4)}, ${sci(c.failureInterval[1], 4)}] (${f.magnitude} > ${f.format(r.spec)}${c.sigma === null ? `; ${method}` : ''})`],
+    ['instance yield', `${c.failure === 0 ? `1 (no failures in ${c.samples} samples)` : bound(1 - c.failure)}   ${lawName} estimate ${yieldText(1 - r.result.gaussianFailure)}`],
     [`chip yield (${r.instances})`, `${bound(c.chipYield)}   ${cl} [${bound(c.chipYieldInterval[0])}, ${bound(c.chipYieldInterval[1])}]`],
     ['target', c.met ? `met: ${r.rule}` : `NOT met (${r.rule})`],
     ['gate area', `varied devices ${um2(r.original.variedArea)} -> ${um2(r.result.variedArea)}; whole stage ${um2(r.original.totalGateArea)} -> ${um2(r.result.totalGateArea)}`],
@@ -145,7 +152,7 @@ export function renderSize(r: SizeReport, source: string, design: Design): strin
     `${headerLine(design)} from ${source}`,
     '',
     renderPairs([
-      ['target', targetText(r)],
+      ['target', targetText(r, f)],
       ['varying', varyText(r.vary)],
     ]),
     '',
@@ -162,14 +169,14 @@ export function renderSize(r: SizeReport, source: string, design: Design): strin
 }
 
 /** The header comment of a written design file. */
-function fileHeader(r: SizeReport, source: string): string[] {
+function fileHeader(r: SizeReport, source: string, design: Design): string[] {
   const c = r.confirmed;
   const method = `${c.method === 'monte-carlo' ? 'Monte Carlo' : 'importance sampling'}, ${c.samples} samples, seed ${c.seed}`;
   const fig = c.sigma !== null && c.sigmaInterval !== null && r.target.kind === 'sigma'
     ? `sigma ${mv(c.sigma)}, ${conf(r.confidence)} [${mv(c.sigmaInterval[0])}, ${mv(c.sigmaInterval[1])}]`
     : `failure ${sci(c.failure, 4)}, ${conf(r.confidence)} [${sci(c.failureInterval[0], 4)}, ${sci(c.failureInterval[1], 4)}]`;
   return [
-    `Sized by twinfet ${version} from ${source} for ${targetText(r)}, varying ${r.vary}.`,
+    `Sized by twinfet ${version} from ${source} for ${targetText(r, figureOf(design))}, varying ${r.vary}.`,
     `Confirmed on the exact model: ${fig} (${method}).`,
     `Linearised sigma ${mv(r.result.sigmaLinearised)}. Process parameters and bias are copied unchanged from ${source}.`,
   ];
@@ -227,7 +234,7 @@ export function registerSize(program: Command, io: Io, setExit: (code: number) =
     const sized: Design = { ...report.design, name: `${design.name}, sized` };
     const out = { source: file, ...report, design: sized, written: flags.write ?? null };
     assertFinite(out);
-    if (flags.write !== undefined) await writeOutputFile(flags.write, '--write', writeDesign(sized, fileHeader(report, file)));
+    if (flags.write !== undefined) await writeOutputFile(flags.write, '--write', writeDesign(sized, fileHeader(report, file, design)));
     if (flags.json === true) printJson(io, out);
     else {
       io.out(renderSize(report, file, design));

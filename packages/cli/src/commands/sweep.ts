@@ -1,4 +1,4 @@
-import { formatQuantity, InputError, parseQuantity, validateDesign, type Design } from '@twinfet/core';
+import { formatQuantity, InputError, parseQuantity, stageDefinition, validateDesign, type Design } from '@twinfet/core';
 import { DEFAULT_SEED, sweepDesigns, SWEEP_SAMPLES, type SweepPointResult } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
 import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
@@ -185,7 +185,8 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
     if (flags.csv !== undefined && !flags.csv.toLowerCase().endsWith('.csv')) throw new InputError('--csv', `expected a file name ending in .csv, got "${flags.csv}"`);
     const design = await loadDesign(file);
     const f = sweepField(flags.vary, design);
-    if (f.path === 'spec.offset' && common.spec !== undefined) throw new InputError('--spec', 'cannot be combined with --vary spec.offset; drop one');
+    const figure = stageDefinition(design.topology).figure;
+    if (f.path === `spec.${figure.specKey}` && common.spec !== undefined) throw new InputError('--spec', `cannot be combined with --vary spec.${figure.specKey}; drop one`);
     const from = parseEnd(flags.from, '--from', f);
     const to = parseEnd(flags.to, '--to', f);
     const log = flags.log === true;
@@ -268,7 +269,8 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
       // Loaded on demand: the plotting library takes ~200 ms to import.
       const { sweepSvg } = await import('../plot.js');
       const svg = await sweepSvg({
-        title: `${design.name}: offset against ${f.path}`,
+        title: `${design.name}: ${figure.label} against ${f.path}`,
+        figureLabel: figure.label,
         field: f.path,
         fieldUnit: axis.unit,
         xScale: axis.scale,

@@ -1,8 +1,8 @@
-import { formatQuantity, InputError, MISMATCH_PARAMETERS, type MismatchParameter } from '@twinfet/core';
+import { formatQuantity, InputError, MISMATCH_PARAMETERS, stageDefinition, type MismatchParameter } from '@twinfet/core';
 import { estimateHighSigma, type HighSigmaReport } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
 import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
-import { designSummary, headerLine, sci } from '../describe.js';
+import { designSummary, figureText, headerLine, sci, type FigureText } from '../describe.js';
 import { loadDesign } from '../designFile.js';
 import { parseCount, parseFraction } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
@@ -16,8 +16,11 @@ interface TailFlags extends CommonFlags {
 
 const sig = (x: number | null): string => (x === null ? 'unbounded' : x.toFixed(3));
 
-/** Text form of a high-sigma estimate (also used inside `run --method importance`). */
-export function renderTail(r: HighSigmaReport): string {
+/** How an offset is written: the default figure of renderTail. */
+const OFFSET_TEXT = figureText({ label: 'offset', symbol: 'Vos', unit: 'V', sided: 'two' });
+
+/** Text form of a high-sigma estimate (also used inside `run --method importance`), for the figure `f`. */
+export function renderTail(r: HighSigmaReport, f: FigureText = OFFSET_TEXT): string {
   const c = `${Math.round(r.confidence * 1000) / 10}%`;
   const pts = r.designPoints.map((p) => {
     const top = [...p.coordinates].sort((a, b) => Math.abs(b.u) - Math.abs(a.u)).slice(0, 4);
@@ -32,7 +35,7 @@ export function renderTail(r: HighSigmaReport): string {
   if (r.belowDoubleRange) {
     return [
       renderPairs([
-        ['spec |Vos| <=', formatQuantity(r.spec, 'V', 4)],
+        [`spec ${f.magnitude} <=`, f.format(r.spec)],
         ['failure probability', `below the smallest double (about 1e-308): no sample can weigh it, so none was drawn`],
         ['equivalent sigma level', `${sig(r.sigmaLevel)} (two-sided, from the failure points' distances, FORM)`],
       ]),
@@ -41,13 +44,19 @@ export function renderTail(r: HighSigmaReport): string {
       renderTable(['side', 'distance', 'FORM p', 'found by', 'dominant mismatch'], pts, ['left', 'right', 'right', 'left', 'left']),
     ].join('\n');
   }
+  const regions: [string, string][] =
+    r.mirrorRegions !== undefined
+      ? [['failure regions', `${r.mirrorRegions} mirror images of one another (${r.designPoints[0]?.side ?? ''} and the like), one mixture centre each; the first one's point is shown`]]
+      : f.magnitude === f.symbol
+        ? []
+        : [['by side', `+spec ${sci(r.high, 4)}, -spec ${sci(r.low, 4)}`]];
   return [
     renderPairs([
-      ['spec |Vos| <=', formatQuantity(r.spec, 'V', 4)],
+      [`spec ${f.magnitude} <=`, f.format(r.spec)],
       ['failure probability', `${sci(r.failureProbability, 4)}   ${c} [${sci(r.interval[0], 4)}, ${sci(r.interval[1], 4)}]`],
       ['equivalent sigma level', `${sig(r.sigmaLevel)}   ${c} [${sig(r.sigmaLevelInterval[0])}, ${sig(r.sigmaLevelInterval[1])}] (two-sided)`],
-      ['by side', `+spec ${sci(r.high, 4)}, -spec ${sci(r.low, 4)}`],
-      ['FORM estimate', `${sci(r.form.failureProbability, 4)} (${r.form.sigmaLevel.toFixed(3)} sigma)`],
+      ...regions,
+      [r.mirrorRegions === undefined ? 'FORM estimate' : 'FORM estimate (sum over regions)', `${sci(r.form.failureProbability, 4)} (${r.form.sigmaLevel.toFixed(3)} sigma)`],
       [`chip failure (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, `${sci(r.chip.failure, 4)}   ${c} [${sci(r.chip.interval[0], 4)}, ${sci(r.chip.interval[1], 4)}]`],
       ['samples', `${r.samples} (${r.hits} failing; stop rule ${r.stopRule}; relative half-width ${r.relativeHalfWidth === null ? 'n/a' : (r.relativeHalfWidth * 100).toFixed(2) + '%'})`],
       ['figure of merit', `relative variance per sample ${r.relativeVariancePerSample === null ? 'n/a' : r.relativeVariancePerSample.toFixed(2)}; plain Monte Carlo would need ${r.equivalentPlainSamples === null ? 'n/a' : sci(r.equivalentPlainSamples, 3)} samples for the same interval`],
@@ -65,7 +74,7 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
   withCommonOptions(
     program
       .command('tail')
-      .description('high-sigma failure probability P(|Vos| > spec) by importance sampling about the most probable failure points')
+      .description('high-sigma failure probability P(|Vos| > spec), or P(L > separation) for a selector, by importance sampling about the most probable failure points')
       .argument('<design>', 'design file (YAML or JSON)')
       .option('--spec <V>', "offset limit overriding the design's spec, e.g. 20mV")
       .option('--rel-error <E>', 'stop when the interval half-width is this fraction of the estimate (default 0.05)')
@@ -100,7 +109,8 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
     assertFinite(report);
     if (flags.json === true) printJson(io, { design: designSummary(design), ...report });
     else {
-      io.out(`${headerLine(design, { withTemperature: false })}\nimportance sampling on the exact model\n\n${renderTail(report)}`);
+      const f = figureText(stageDefinition(design.topology).figure);
+      io.out(`${headerLine(design, { withTemperature: false })}\nimportance sampling on the exact model\n\n${renderTail(report, f)}`);
     }
     setExit(0);
   });
