@@ -300,7 +300,7 @@ function compileSelector(design: Design): StageModel {
 const CELLS_FIELD: FieldDefinition = {
   key: 'cells',
   dimension: 'dimensionless',
-  what: 'cells',
+  what: 'input cells',
   example: 'cells: 16',
   limits: DESIGN_LIMITS.cells,
   unit: '',
