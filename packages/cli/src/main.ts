@@ -2,6 +2,7 @@ import { readFileSync } from 'node:fs';
 import { Command, CommanderError } from 'commander';
 import { InputError, isInputError } from '@twinfet/core';
 import { loadDesign } from './designFile.js';
+import { warnUnitSlips } from './unitWarnings.js';
 import { inspectDesign, renderInspect } from './commands/inspect.js';
 import { assertFinite, processIo, printJson, type Io, NonFiniteResultError } from './output.js';
 import { registerRun } from './commands/run.js';
@@ -37,7 +38,9 @@ export function buildProgram(io: Io, setExit: (code: number) => void): Command {
     .argument('<design>', 'design file (YAML or JSON)')
     .option('--json', 'print one JSON object instead of tables')
     .action(async (file: string, opts: { json?: boolean }) => {
-      const report = inspectDesign(await loadDesign(file));
+      const design = await loadDesign(file);
+      warnUnitSlips(io, design);
+      const report = inspectDesign(design);
       assertFinite(report);
       if (opts.json === true) printJson(io, report);
       else io.out(renderInspect(report));

@@ -16,3 +16,4 @@ export { SELECTOR_TOLERANCE, SELECTOR_MAX_ITERATIONS, cellCurrents } from './sta
 export { parseDesign, type DesignFormat, type ParseOptions } from './parse/parseDesign.js';
 export { closestWord, editDistance } from './parse/didYouMean.js';
 export { writeDesign, shiftedDecimal } from './parse/writeDesign.js';
+export { unitSlips, SLIP_LIMIT_VOLTS, SLIP_SIGMAS, SLIP_TAIL_AMPS, SLIP_LENGTH_M } from './unitSlips.js';

@@ -5,6 +5,7 @@ import type { Command } from 'commander';
 import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
 import { figureJson, figureText, headerLine, pct, sci } from '../describe.js';
 import { loadDesign } from '../designFile.js';
+import { warnUnitSlips } from '../unitWarnings.js';
 import { parseCount } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
 import { withInterrupt } from '../interrupt.js';
@@ -200,6 +201,7 @@ export function registerRun(program: Command, io: Io, setExit: (code: number) =>
   ).action(async (file: string, flags: RunFlags) => {
     const o = parseRunFlags(flags);
     const design = await loadDesign(file);
+    warnUnitSlips(io, design, o.spec);
     const done = await withInterrupt(io, 'run', (signal, onProgress) =>
       simulateWithSamples(design, {
         samples: o.samples,

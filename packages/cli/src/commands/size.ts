@@ -5,6 +5,7 @@ import type { Command } from 'commander';
 import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
 import { figureText, headerLine, pct, sci, type FigureText } from '../describe.js';
 import { loadDesign } from '../designFile.js';
+import { warnUnitSlips } from '../unitWarnings.js';
 import { writeOutputFile } from '../files.js';
 import { parseCount, parseFraction } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
@@ -205,6 +206,7 @@ export function registerSize(program: Command, io: Io, setExit: (code: number) =
       throw new InputError('--write', `expected a file name ending in .yaml, got "${flags.write}"`);
     }
     const design = await loadDesign(file);
+    warnUnitSlips(io, design, common.spec);
     let done: Awaited<ReturnType<typeof withInterrupt<SizeReport>>>;
     try {
       done = await withInterrupt(io, 'size', (signal) =>

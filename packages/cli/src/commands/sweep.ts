@@ -4,6 +4,7 @@ import type { Command } from 'commander';
 import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
 import { designSummary, sci } from '../describe.js';
 import { loadDesign } from '../designFile.js';
+import { warnUnitSlips } from '../unitWarnings.js';
 import { writeOutputFile } from '../files.js';
 import { parseCount, parseFraction } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
@@ -88,7 +89,10 @@ function parsePositiveVoltage(text: string, option: string): number {
 }
 
 function shown(f: SweepField, v: number): string {
-  return f.tableUnit === '' ? String(Number(v.toPrecision(6))) : formatQuantity(v, f.tableUnit, 4);
+  if (f.tableUnit === '') return String(Number(v.toPrecision(6)));
+  // Areas read best in um^2 whatever their size (a prefix does not square cleanly).
+  if (f.dimension === 'area') return `${Number((v * 1e12).toPrecision(4))} um^2`;
+  return formatQuantity(v, f.tableUnit, 4);
 }
 
 const mv = (v: number): string => formatQuantity(v, 'V', 4);
@@ -184,6 +188,7 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
     if (flags.plot !== undefined && !flags.plot.toLowerCase().endsWith('.svg')) throw new InputError('--plot', `expected a file name ending in .svg, got "${flags.plot}"`);
     if (flags.csv !== undefined && !flags.csv.toLowerCase().endsWith('.csv')) throw new InputError('--csv', `expected a file name ending in .csv, got "${flags.csv}"`);
     const design = await loadDesign(file);
+    warnUnitSlips(io, design, common.spec);
     const f = sweepField(flags.vary, design);
     const figure = stageDefinition(design.topology).figure;
     if (f.path === `spec.${figure.specKey}` && common.spec !== undefined) throw new InputError('--spec', `cannot be combined with --vary spec.${figure.specKey}; drop one`);

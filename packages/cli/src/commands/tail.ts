@@ -4,6 +4,7 @@ import type { Command } from 'commander';
 import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
 import { designSummary, figureText, headerLine, sci, type FigureText } from '../describe.js';
 import { loadDesign } from '../designFile.js';
+import { warnUnitSlips } from '../unitWarnings.js';
 import { parseCount, parseFraction } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
 import { withInterrupt } from '../interrupt.js';
@@ -87,6 +88,7 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
     const relError = flags.relError === undefined ? undefined : parseFraction(flags.relError, '--rel-error', '0.05');
     const samples = flags.samples === undefined ? undefined : parseCount(flags.samples, '--samples', 100, 1e10);
     const design = await loadDesign(file);
+    warnUnitSlips(io, design, common.spec);
     const done = await withInterrupt(io, 'tail', (signal, onProgress) =>
       estimateHighSigma(design, {
         workers: common.workers,

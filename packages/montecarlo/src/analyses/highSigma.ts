@@ -4,7 +4,7 @@ import { findMirroredDesignPoint, type MirroredDesignPoint } from './mirroredDes
 import type { ImportanceResult, ImportanceTask } from '../engine/messages.js';
 import { normalQuantile, sigmaLevel, sigmaLevelOfTails } from '../stats/normal.js';
 import { createExecutor, defaultWorkers, inThreadExecutor, type Executor } from '../engine/pool.js';
-import { runChunks } from '../engine/schedule.js';
+import { runChunks, taskList } from '../engine/schedule.js';
 import { seedText } from '../random/seed.js';
 import { chipFailure } from '../stats/yield.js';
 
@@ -213,7 +213,7 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
         tasks.push({ kind: 'importance', design, seed, chunk: chunk++, count, spec, ...mixture, logScale });
         planned += count;
       }
-      await runChunks(executor, tasks, (r) => consume(r as ImportanceResult), {
+      await runChunks(executor, taskList(tasks), consume, {
         signal: options.signal,
         onProgress: options.onProgress === undefined ? undefined : (d) => options.onProgress!(n + d, maxSamples),
       });

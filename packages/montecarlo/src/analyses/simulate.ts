@@ -1,30 +1,22 @@
 import { compileStage, InputError, specLimit, type Design, type FigureDefinition, type RandomVariable } from '@twinfet/core';
-import { linearisedSummary, type LinearisedSummary } from './linearisedSummary.js';
-import { clopperPearson } from '../stats/clopperPearson.js';
-import { binWidth, createHistogram, exactQuantile, mergeHistograms, quantileFromHistogram, type Histogram } from '../stats/histogram.js';
+import { linearisedSummary } from './linearisedSummary.js';
+import { createHistogram, mergeHistograms } from '../stats/histogram.js';
 import type { InjectedFault, MonteCarloResult, MonteCarloTask } from '../engine/messages.js';
 import { emptyMoments, mergeMoments, type Moments } from '../stats/moments.js';
-import { normalQuantile } from '../stats/normal.js';
 import { createExecutor, defaultWorkers, type Executor } from '../engine/pool.js';
 import { CHUNK_SIZE, chunkCount, chunkLength, runChunks, RunAborted } from '../engine/schedule.js';
 import { seedText } from '../random/seed.js';
-import { sigmaInterval } from '../stats/sigmaInterval.js';
 import { estimateHighSigma, type HighSigmaReport } from './highSigma.js';
-import { wilson } from '../stats/wilson.js';
-import { responseAt, type ResponseSummary } from './response.js';
+import { assembleRunReport, type IntervalMethod, type RunReport } from './runReport.js';
+import { responseAt } from './response.js';
 
-/** Quantile levels reported for the signed offset and for |Vos|. */
-export const QUANTILE_LEVELS = [0.001, 0.01, 0.5, 0.99, 0.999] as const;
+export { QUANTILE_LEVELS, AGREEMENT_Z, FEW_FAILURES, type IntervalMethod, type QuantileValue, type RunReport } from './runReport.js';
 /** Offsets are kept (exact quantiles) up to this many samples unless told otherwise. */
 export const KEEP_LIMIT = 2_000_000;
 /** Histogram bins over +-max(10 sigma_lin, 1.2 spec). */
 export const HISTOGRAM_BINS = 2000;
 /** The histogram spans this many linearised sigmas each side (at least 1.2 spec). */
 export const HISTOGRAM_SIGMAS = 10;
-/** A Monte Carlo sigma is flagged when it is this many standard errors from the linearised one. */
-export const AGREEMENT_Z = 4;
-/** Fewer failures than this make the yield estimate sample-limited. */
-export const FEW_FAILURES = 10;
 
 /**
  * Limits of the run options, checked here and quoted by the command line (one place for each
@@ -37,8 +29,6 @@ export const RUN_LIMITS = {
   keptDraws: 2e7,
 } as const;
 
-/** Interval method for the yield. */
-export type IntervalMethod = 'clopper-pearson' | 'wilson';
 
 /** Options of `simulate`. */
 export interface SimulateOptions {
@@ -69,70 +59,6 @@ export interface SimulateOptions {
   readonly importance?: boolean | { readonly relError?: number; readonly samples?: number };
   /** Test-only fault injection in one chunk (honoured in workers with TWINFET_TEST_FAULTS=1). */
   readonly fault?: { readonly chunk: number; readonly fault: InjectedFault };
-}
-
-/** A quantile of the offset, volts (null when it lies beyond the histogram's range). */
-export interface QuantileValue {
-  readonly p: number;
-  readonly value: number | null;
-}
-
-/** The report of a Monte Carlo run. All voltages in volts. */
-export interface RunReport {
-  readonly samples: number;
-  /** Samples whose offset was evaluated (samples minus non-converged, or fewer when partial). */
-  readonly evaluated: number;
-  readonly seed: string;
-  readonly workers: number;
-  readonly chunkSize: number;
-  /** True when the run was cancelled and these are the statistics of the finished chunks. */
-  readonly partial: boolean;
-  readonly design: { readonly name: string; readonly topology: string };
-  readonly offset: {
-    readonly mean: number;
-    readonly meanInterval: readonly [number, number];
-    readonly sigma: number;
-    readonly sigmaInterval: readonly [number, number];
-    readonly min: number;
-    readonly max: number;
-    readonly quantileMethod: 'exact' | 'histogram';
-    readonly quantiles: { readonly signed: readonly QuantileValue[]; readonly absolute: readonly QuantileValue[] };
-  };
-  readonly histogram: { readonly lo: number; readonly hi: number; readonly binWidth: number; readonly counts: readonly number[]; readonly underflow: number; readonly overflow: number };
-  readonly analytic: LinearisedSummary & {
-    readonly agreement: { readonly relativeDifference: number; readonly standardErrors: number; readonly consistent: boolean };
-    /**
-     * For a law other than the Gaussian (a selector's Bechhofer form): the Monte Carlo yield
-     * against the law's, in binomial standard errors sqrt(P (1 - P) / N) of the law's P.
-     */
-    readonly yieldAgreement?: { readonly difference: number; readonly standardErrors: number; readonly consistent: boolean };
-  };
-  readonly yield: {
-    readonly spec: number;
-    readonly failures: number;
-    readonly failuresHigh: number;
-    readonly failuresLow: number;
-    readonly estimate: number;
-    readonly interval: readonly [number, number];
-    readonly confidence: number;
-    readonly method: IntervalMethod;
-    readonly failure: { readonly estimate: number; readonly interval: readonly [number, number] };
-    /** Fewer than 10 failures: the estimate is limited by the sample count. */
-    readonly limitedBySamples: boolean;
-  };
-  readonly chip: { readonly instances: number; readonly estimate: number; readonly interval: readonly [number, number] };
-  readonly importance?: HighSigmaReport;
-  /** The stage's transfer curve at the spec (a selector's winner's share), nominal and spread. */
-  readonly response?: ResponseSummary;
-  readonly nonConverged: number;
-  readonly seconds: number;
-  readonly samplesPerSecond: number;
-  readonly warnings: readonly string[];
-  /**
-   * What the statistics above describe: the stage's figure (`offset` in volts for the
-   * differential stages). The `offset` block holds that figure's statistics whatever its name.
-   */
-  readonly figure: { readonly name: string; readonly label: string; readonly symbol: string; readonly unit: string; readonly sided: 'two' | 'one' };
 }
 
 /** A run's report together with the kept samples. */
@@ -170,27 +96,6 @@ function checkOptions(o: SimulateOptions): void {
   if (o.keepDraws === true && o.samples !== undefined && o.samples > RUN_LIMITS.keptDraws) {
     throw new InputError('keepDraws', `keeping every draw of ${o.samples} samples needs too much memory; use at most 2e7 samples`);
   }
-}
-
-function quantiles(sorted: Float64Array): QuantileValue[] {
-  return QUANTILE_LEVELS.map((p) => ({ p, value: exactQuantile(sorted, p) }));
-}
-
-function histogramQuantiles(h: Histogram): QuantileValue[] {
-  return QUANTILE_LEVELS.map((p) => {
-    const v = quantileFromHistogram(h, p);
-    return { p, value: Number.isFinite(v) ? v : null };
-  });
-}
-
-/** |Vos| histogram folded from a signed one that is symmetric about 0. */
-function folded(h: Histogram): Histogram {
-  const bins = h.counts.length;
-  const half = bins / 2;
-  const out = createHistogram(0, h.hi, half);
-  for (let j = 0; j < half; j++) out.counts[j] = h.counts[half + j]! + h.counts[half - 1 - j]!;
-  out.overflow = h.overflow + h.underflow;
-  return out;
 }
 
 /**
@@ -264,7 +169,7 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
   let partial = false;
   let importance: HighSigmaReport | undefined;
   try {
-    await runChunks(executor, tasks, (r) => consume(r as MonteCarloResult), {
+    await runChunks(executor, tasks, consume, {
       signal: options.signal,
       onProgress: options.onProgress,
     });
@@ -291,103 +196,26 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
     throw new InputError('design', `only ${moments.count} of ${samples} offsets could be evaluated (the balance solve failed); check the bias and sizes`);
   }
 
-  const n = moments.count;
-  const sigma = Math.sqrt(moments.m2 / (n - 1));
-  const z = normalQuantile(1 - (1 - confidence) / 2);
-  const failures = failuresHigh + failuresLow;
-  const failInterval = method === 'wilson' ? wilson(failures, n, confidence) : clopperPearson(failures, n, confidence);
-  const y = 1 - failures / n;
-  const yLo = 1 - failInterval[1];
-  const yHi = 1 - failInterval[0];
-  const m = stage.design.spec.instances;
-  const chip = (v: number): number => Math.exp(m * Math.log(v));
-
-  let quantileMethod: 'exact' | 'histogram' = 'histogram';
-  let signed: QuantileValue[];
-  let absolute: QuantileValue[];
-  if (offsets !== undefined) {
-    quantileMethod = 'exact';
-    const kept = offsets.subarray(0, done).filter((x) => x === x);
-    const sorted = Float64Array.from(kept).sort();
-    signed = quantiles(sorted);
-    const abs = kept.map(Math.abs).sort();
-    absolute = quantiles(abs);
-  } else {
-    signed = histogramQuantiles(histogram);
-    absolute = histogramQuantiles(folded(histogram));
-  }
-
-  const se = sigma / Math.sqrt(2 * (n - 1));
-  const standardErrors = (sigma - analytic.sigma) / se;
-  let yieldAgreement: NonNullable<RunReport['analytic']['yieldAgreement']> | undefined;
-  if (!('gaussian' in analytic)) {
-    const p = analytic.yield.estimate;
-    const zy = (y - p) / Math.sqrt((p * (1 - p)) / n);
-    yieldAgreement = { difference: y - p, standardErrors: zy, consistent: Math.abs(zy) <= AGREEMENT_Z };
-  }
-  const response = partial ? undefined : responseAt(stage, spec, seed);
-  const warnings = [...stage.warnings];
-  if (nonConverged > 0) warnings.push(`${nonConverged} sample(s) whose balance solve did not converge were left out of every statistic`);
-  if (histogram.underflow + histogram.overflow > 0) {
-    warnings.push(`${histogram.underflow + histogram.overflow} sample(s) fell outside the histogram range +-${range.toExponential(3)} V (counted in every other statistic)`);
-  }
-  const seconds = (performance.now() - started) / 1000;
-  const report: RunReport = {
+  const report = assembleRunReport(stage, {
     samples,
-    evaluated: n,
     seed,
     workers: executor.threads === 0 ? 1 : executor.threads,
-    chunkSize: CHUNK_SIZE,
     partial,
-    design: { name: design.name, topology: design.topology },
-    offset: {
-      mean: moments.mean,
-      meanInterval: [moments.mean - (z * sigma) / Math.sqrt(n), moments.mean + (z * sigma) / Math.sqrt(n)],
-      sigma,
-      sigmaInterval: sigmaInterval(sigma, n, confidence),
-      min: moments.min,
-      max: moments.max,
-      quantileMethod,
-      quantiles: { signed, absolute },
-    },
-    histogram: {
-      lo: histogram.lo,
-      hi: histogram.hi,
-      binWidth: binWidth(histogram),
-      counts: Array.from(histogram.counts),
-      underflow: histogram.underflow,
-      overflow: histogram.overflow,
-    },
-    analytic: {
-      ...analytic,
-      agreement: {
-        relativeDifference: (sigma - analytic.sigma) / analytic.sigma,
-        standardErrors,
-        consistent: Math.abs(standardErrors) <= AGREEMENT_Z,
-      },
-      ...(yieldAgreement === undefined ? {} : { yieldAgreement }),
-    },
-    yield: {
-      spec,
-      failures,
-      failuresHigh,
-      failuresLow,
-      estimate: y,
-      interval: [yLo, yHi],
-      confidence,
-      method,
-      failure: { estimate: failures / n, interval: failInterval },
-      limitedBySamples: failures < FEW_FAILURES,
-    },
-    chip: { instances: m, estimate: chip(y), interval: [chip(yLo), chip(yHi)] },
-    ...(importance === undefined ? {} : { importance }),
-    ...(response === undefined ? {} : { response }),
+    spec,
+    confidence,
+    method,
+    analytic,
+    range,
+    moments,
+    histogram,
+    failuresHigh,
+    failuresLow,
     nonConverged,
-    seconds,
-    samplesPerSecond: n / seconds,
-    warnings,
-    figure: { name: fig.name, label: fig.label, symbol: fig.symbol, unit: fig.unit, sided: fig.sided },
-  };
+    kept: offsets === undefined ? undefined : offsets.subarray(0, done),
+    importance,
+    response: partial ? undefined : responseAt(stage, spec, seed),
+    started,
+  });
   return {
     report,
     ...(offsets === undefined ? {} : { offsets: partial ? offsets.subarray(0, done) : offsets }),

@@ -1,4 +1,6 @@
-import { compileStage, type Stage } from '@twinfet/core';
+// The compile entry alone: a worker needs no design-file reader (and so no YAML parser) to start.
+import { compileStage } from '@twinfet/core/compile';
+import type { Stage } from '@twinfet/core';
 import type { ChunkResult, ImportanceResult, ImportanceTask, MonteCarloResult, MonteCarloTask, ChunkTask } from './messages.js';
 import { addToHistogram, createHistogram } from '../stats/histogram.js';
 import { addBlock, emptyMoments } from '../stats/moments.js';

@@ -1,4 +1,4 @@
-import type { ChunkResult, ChunkTask } from './messages.js';
+import type { ChunkResult, ChunkTask, ImportanceResult, ImportanceTask, MonteCarloResult, MonteCarloTask } from './messages.js';
 import type { Executor } from './pool.js';
 
 /** Samples per chunk: big enough that a worker round trip (~50 us) is noise. */
@@ -27,26 +27,42 @@ export class RunAborted extends Error {
   }
 }
 
+/** The result a task of kind T answers with. */
+export type ResultOf<T extends ChunkTask> = T extends MonteCarloTask ? MonteCarloResult : T extends ImportanceTask ? ImportanceResult : never;
+
+/**
+ * The tasks of a run, made on demand so that a 1e12-sample run never holds millions of task
+ * objects: `at(i)` for i < length, and the samples they hold in all.
+ */
+export interface TaskList<T extends ChunkTask> {
+  readonly length: number;
+  readonly at: (index: number) => T;
+  readonly samples: number;
+}
+
+/** A task list over tasks made already. */
+export function taskList<T extends ChunkTask>(tasks: readonly T[]): TaskList<T> {
+  return { length: tasks.length, at: (i) => tasks[i]!, samples: tasks.reduce((a, t) => a + t.count, 0) };
+}
+
 /**
  * Runs the tasks on the executor, at most 2 per thread in flight, and hands the results to
  * `consume` strictly in chunk order (so floating-point merges are the same for any number of
  * workers). Cancels on `signal`: throws RunAborted with the finished prefix.
  */
-export async function runChunks(
+export async function runChunks<T extends ChunkTask>(
   executor: Executor,
-  tasks: readonly ChunkTask[] | { readonly length: number; readonly at: (index: number) => ChunkTask; readonly samples: number },
-  consume: (r: ChunkResult) => void,
+  tasks: TaskList<T>,
+  consume: (r: ResultOf<T>) => void,
   options: { signal?: AbortSignal | undefined; onProgress?: ((done: number, total: number) => void) | undefined } = {},
 ): Promise<void> {
   const { signal, onProgress } = options;
   const inFlight = Math.max(1, executor.threads * 2);
-  const pending = new Map<number, ChunkResult>();
+  const pending = new Map<number, ResultOf<T>>();
   let next = 0;
   let nextToConsume = 0;
   let samplesDone = 0;
-  // Tasks may be made on demand, so a 1e12-sample run never holds millions of task objects.
-  const taskAt = Array.isArray(tasks) ? (i: number) => (tasks as readonly ChunkTask[])[i]! : (tasks as { at: (i: number) => ChunkTask }).at;
-  const samplesTotal = Array.isArray(tasks) ? (tasks as readonly ChunkTask[]).reduce((a, t) => a + t.count, 0) : (tasks as { samples: number }).samples;
+  const samplesTotal = tasks.samples;
   let failure: unknown;
   let aborted = false;
 
@@ -58,9 +74,10 @@ export async function runChunks(
   const lane = async (): Promise<void> => {
     while (next < tasks.length && failure === undefined && !local.signal.aborted) {
       const index = next++;
-      let r: ChunkResult;
+      const task = tasks.at(index);
+      let r: ResultOf<T>;
       try {
-        r = await executor.run(taskAt(index), local.signal);
+        r = answerOf(task, await executor.run(task, local.signal));
       } catch (e) {
         if (local.signal.aborted && failure === undefined) aborted = true;
         else if (failure === undefined) {
@@ -90,4 +107,10 @@ export async function runChunks(
   if (aborted || (signal?.aborted ?? false)) {
     if (nextToConsume < tasks.length) throw new RunAborted(nextToConsume);
   }
+}
+
+/** The result, checked to be of the task's kind (a mismatch is a bug, never a user error). */
+function answerOf<T extends ChunkTask>(task: T, r: ChunkResult): ResultOf<T> {
+  if (r.kind !== task.kind || r.chunk !== task.chunk) throw new Error(`internal: chunk ${task.chunk} (${task.kind}) answered as chunk ${r.chunk} (${r.kind})`);
+  return r as ResultOf<T>;
 }

@@ -348,94 +348,29 @@ export async function sizeDesign(design: Design, options: SizeOptions): Promise<
   if (!(spec > 0 && Number.isFinite(spec))) throw new InputError('spec', `expected a positive offset limit in volts, got ${String(spec)}`);
   const confidence = options.confidence ?? 0.95;
   if (!(confidence > 0 && confidence < 1)) throw new InputError('confidence', `expected a level strictly between 0 and 1 such as 0.95, got ${String(confidence)}`);
-  const maxRefinements = options.maxRefinements ?? 8;
-  const seed = seedText(options.seed);
   const pl = plan(design, options, spec, confidence);
   const notes: string[] = [];
 
-  let split: AreaSplit | undefined;
-  let family: SizingFamily;
-  if (vary === 'both') {
-    split = areaSplit(design);
-    family = optimalSplitFamily(design, split);
-  } else family = singlePairFamily(design, vary);
-
+  const split = vary === 'both' ? areaSplit(design) : undefined;
+  const family = split === undefined ? singlePairFamily(design, vary) : optimalSplitFamily(design, split);
   const lin = solveLinearised(family, pl.sigmaTarget);
   if (!lin.reached) throw unreachable(pl.option, pl.targetText, vary, lin, family, spec, pl.allowed !== null);
   if (lin.atMinimum) notes.push(`the target is met already at the smallest size allowed (linearised sigma ${mvText(lin.sigma)}); the devices are set to that minimum`);
 
   const original = sizedPoint(design, vary, 1, spec);
   const linearised = { ...sizedPoint(lin.design, vary, lin.t, spec), atMinimum: lin.atMinimum };
-
-  const executor = options.executor ?? createExecutor(options.workers ?? defaultWorkers());
-  const confirmations: Confirmation[] = [];
-  let current: LinearisedSolution = lin;
-  try {
-    for (let i = 0; ; i++) {
-      const s = i === 0 ? seed : `${seed}/refine-${i}`;
-      const c = await confirm(current, vary, spec, pl, s, confidence, executor, options.signal);
-      confirmations.push(c);
-      if (c.met) break;
-      if (i >= maxRefinements) {
-        throw new InputError(pl.option, `${pl.targetText} was not confirmed on the exact model after ${i + 1} confirmations (last: ${describeFigure(c)}); use more samples or relax the target`);
-      }
-      const next = refine(family, current, c, pl);
-      if (!next.reached) {
-        throw new InputError(pl.option, `${pl.targetText} cannot be confirmed by varying ${vary}: the exact model needs a lower linearised sigma than ${mvText(next.floor.sigma)}, the lowest reachable, ${floorReason(vary, next, family)}`);
-      }
-      current = next;
-    }
-  } finally {
-    if (options.executor === undefined) await executor.close();
-  }
+  const { confirmations, current } = await confirmAlong(family, lin, { vary, spec, pl, confidence, seed: seedText(options.seed), options });
   const confirmed = confirmations[confirmations.length - 1]!;
   if (confirmations.length > 1) {
     notes.push(`the linearised solution was scaled up ${confirmations.length - 1} time(s) until the exact-model figure met the target with its interval`);
   }
-
   const result = confirmed.point;
   const sigmaOriginal = original.sigmaLinearised;
   const ruleArea = original.variedArea * (sigmaOriginal / pl.sigmaTarget) ** 2;
   const areaCost = { sigmaOriginal, sigmaTarget: pl.sigmaTarget, originalArea: original.variedArea, ruleArea, resultArea: result.variedArea, ratio: result.variedArea / ruleArea };
-  if (vary !== 'both' && sizableBlocks(design).length > 1) {
-    notes.push('the area rule assumes all of sigma^2 scales with the varied area; here the other pair keeps its part, so more area is needed than the rule says');
-  }
-  if (vary.endsWith('.w') || vary.endsWith('.l')) {
-    notes.push(`changing only ${vary.endsWith('.w') ? 'W' : 'L'} at fixed bias moves the inversion coefficient and gm/I_D, so the dbeta/beta and load terms change too`);
-  }
-  for (const role of variedRoles(design, vary)) {
-    const before = pairOf(design, role);
-    const after = pairOf(current.design, role);
-    const proc = before.polarity === undefined ? undefined : design.process[before.polarity];
-    if ((after.w < before.w || after.l < before.l) && proc?.minW === undefined && proc?.minL === undefined) {
-      const where = before.polarity === undefined ? 'the design gives no smallest size for resistor bodies' : `process.${before.polarity} gives no min_w/min_l`;
-      notes.push(`${where}, so the ${role} pair was not made smaller than ${formatQuantity(DEFAULT_MIN_DIMENSION_M, 'm')} in W or L${before.polarity === undefined ? '' : '; add them for your process'}`);
-    }
-  }
-  notes.push(`sized dimensions are rounded up to 4 significant digits${vary.endsWith('.area') || vary === 'both' ? ' (W/L kept to that rounding)' : ''}`);
+  notes.push(...sizingNotes(design, current.design, vary));
+  const splitReport = split === undefined ? null : splitComparison(design, split, lin, pl.sigmaTarget, notes);
 
-  let splitReport: SizeReport['split'] = null;
-  if (split !== undefined) {
-    const eq = solveLinearised(equalScalingFamily(design), pl.sigmaTarget);
-    const blocks = split.blocks;
-    const perDevice = (d: Design): Record<string, number> => Object.fromEntries(blocks.map((b) => { const g = pairOf(d, b); return [b, g.w * g.l]; }));
-    const total = (a: Record<string, number>): number => blocks.reduce((acc, b) => acc + a[b]!, 0);
-    const opt = perDevice(lin.design);
-    if (eq.reached) {
-      const e = perDevice(eq.design);
-      splitReport = {
-        inputCoefficient: split.inputCoefficient,
-        loadCoefficient: split.loadCoefficient,
-        inputShare: split.inputShare,
-        optimum: { input: opt['input']!, load: opt['load'] ?? 0, total: total(opt) },
-        equal: { input: e['input']!, load: e['load'] ?? 0, total: total(e), factor: eq.t },
-        saving: 1 - total(opt) / total(e),
-        blocks: blocks.map((b, k) => ({ block: b, coefficient: split.coefficients[k]!, share: split.shares[k]!, optimum: opt[b]!, equal: e[b]! })),
-      };
-    } else notes.push('scaling both pairs by one factor cannot reach the target within the allowed sizes, so there is no equal-scaling comparison');
-  }
-
-  const warnings = [...compileStage(current.design).warnings];
   return {
     vary,
     target: { ...options.target, sigmaEquivalent: pl.sigmaTarget, allowedFailure: pl.allowed },
@@ -452,7 +387,93 @@ export async function sizeDesign(design: Design, options: SizeOptions): Promise<
     split: splitReport,
     design: current.design,
     notes,
-    warnings,
+    warnings: [...compileStage(current.design).warnings],
+  };
+}
+
+/**
+ * Confirms the linearised solution on the exact model, each time on a stream of its own, and
+ * scales it up along the family until the confirmed figure meets the target with its interval.
+ * @throws InputError on the target's option when it cannot be confirmed
+ */
+async function confirmAlong(
+  family: SizingFamily,
+  lin: LinearisedSolution,
+  c: { readonly vary: SizeVary; readonly spec: number; readonly pl: Plan; readonly confidence: number; readonly seed: string; readonly options: SizeOptions },
+): Promise<{ confirmations: Confirmation[]; current: LinearisedSolution }> {
+  const { vary, spec, pl, confidence, seed, options } = c;
+  const maxRefinements = options.maxRefinements ?? 8;
+  const executor = options.executor ?? createExecutor(options.workers ?? defaultWorkers());
+  const confirmations: Confirmation[] = [];
+  let current = lin;
+  try {
+    for (let i = 0; ; i++) {
+      const s = i === 0 ? seed : `${seed}/refine-${i}`;
+      const conf = await confirm(current, vary, spec, pl, s, confidence, executor, options.signal);
+      confirmations.push(conf);
+      if (conf.met) return { confirmations, current };
+      if (i >= maxRefinements) {
+        throw new InputError(pl.option, `${pl.targetText} was not confirmed on the exact model after ${i + 1} confirmations (last: ${describeFigure(conf)}); use more samples or relax the target`);
+      }
+      const next = refine(family, current, conf, pl);
+      if (!next.reached) {
+        throw new InputError(pl.option, `${pl.targetText} cannot be confirmed by varying ${vary}: the exact model needs a lower linearised sigma than ${mvText(next.floor.sigma)}, the lowest reachable, ${floorReason(vary, next, family)}`);
+      }
+      current = next;
+    }
+  } finally {
+    if (options.executor === undefined) await executor.close();
+  }
+}
+
+/** What the reader of a sizing report should know about how the sized design was reached. */
+function sizingNotes(design: Design, sized: Design, vary: SizeVary): string[] {
+  const notes: string[] = [];
+  if (vary !== 'both' && sizableBlocks(design).length > 1) {
+    notes.push('the area rule assumes all of sigma^2 scales with the varied area; here the other pair keeps its part, so more area is needed than the rule says');
+  }
+  if (vary.endsWith('.w') || vary.endsWith('.l')) {
+    notes.push(`changing only ${vary.endsWith('.w') ? 'W' : 'L'} at fixed bias moves the inversion coefficient and gm/I_D, so the dbeta/beta and load terms change too`);
+  }
+  for (const role of variedRoles(design, vary)) {
+    const before = pairOf(design, role);
+    const after = pairOf(sized, role);
+    const proc = before.polarity === undefined ? undefined : design.process[before.polarity];
+    if ((after.w < before.w || after.l < before.l) && proc?.minW === undefined && proc?.minL === undefined) {
+      const where = before.polarity === undefined ? 'the design gives no smallest size for resistor bodies' : `process.${before.polarity} gives no min_w/min_l`;
+      notes.push(`${where}, so the ${role} pair was not made smaller than ${formatQuantity(DEFAULT_MIN_DIMENSION_M, 'm')} in W or L${before.polarity === undefined ? '' : '; add them for your process'}`);
+    }
+  }
+  notes.push(`sized dimensions are rounded up to 4 significant digits${vary.endsWith('.area') || vary === 'both' ? ' (W/L kept to that rounding)' : ''}`);
+  return notes;
+}
+
+/** For `both`: the optimum split's areas against scaling every block by one factor (linearised). */
+function splitComparison(design: Design, split: AreaSplit, lin: LinearisedSolution, sigmaTarget: number, notes: string[]): SizeReport['split'] {
+  const eq = solveLinearised(equalScalingFamily(design), sigmaTarget);
+  if (!eq.reached) {
+    notes.push('scaling both pairs by one factor cannot reach the target within the allowed sizes, so there is no equal-scaling comparison');
+    return null;
+  }
+  const blocks = split.blocks;
+  const perDevice = (d: Design): Record<string, number> =>
+    Object.fromEntries(
+      blocks.map((b) => {
+        const g = pairOf(d, b);
+        return [b, g.w * g.l];
+      }),
+    );
+  const total = (a: Record<string, number>): number => blocks.reduce((acc, b) => acc + a[b]!, 0);
+  const opt = perDevice(lin.design);
+  const e = perDevice(eq.design);
+  return {
+    inputCoefficient: split.inputCoefficient,
+    loadCoefficient: split.loadCoefficient,
+    inputShare: split.inputShare,
+    optimum: { input: opt['input']!, load: opt['load'] ?? 0, total: total(opt) },
+    equal: { input: e['input']!, load: e['load'] ?? 0, total: total(e), factor: eq.t },
+    saving: 1 - total(opt) / total(e),
+    blocks: blocks.map((b, k) => ({ block: b, coefficient: split.coefficients[k]!, share: split.shares[k]!, optimum: opt[b]!, equal: e[b]! })),
   };
 }
 
