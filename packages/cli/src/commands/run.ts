@@ -162,7 +162,8 @@ export function renderRun(r: RunReport, design: Design): string {
       [`chip yield (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, yieldWithInterval(r.chip.estimate, r.chip.interval, c)],
     ]),
   ];
-  if (!('gaussian' in r.analytic)) lines.push('', renderPairs(selectionPairs(r.analytic, mv)));
+  // The spec and the Bechhofer figures are in the yield lines above; the sigma and the leads are added.
+  if (!('gaussian' in r.analytic)) lines.push('', renderPairs(selectionPairs(r.analytic, mv).filter(([k]) => k.startsWith('per-cell') || k.startsWith('lead needed'))));
   const resp = r.response;
   if (resp !== undefined) {
     const qs = resp.quantiles.map((x) => `${x.p * 100}% ${pct(x.value, 4)}`).join(', ');
@@ -197,7 +198,7 @@ export function registerRun(program: Command, io: Io, setExit: (code: number) =>
       .option('--interval <M>', 'yield interval: clopper-pearson (default) or wilson')
       .option('--method <M>', 'plain (default), or importance to add the high-sigma estimate')
       .option('--samples-out <FILE.csv>', "write each sample's offset and mismatch draws")
-      .option('--plot <FILE.svg>', 'histogram with the fitted Gaussian and the +-spec lines'),
+      .option('--plot <FILE.svg>', "histogram with the fitted Gaussian and the +-spec lines (a selector: the winner's share against the lead, with its mismatch envelope)"),
   ).action(async (file: string, flags: RunFlags) => {
     const o = parseRunFlags(flags);
     const design = await loadDesign(file);
