@@ -100,7 +100,9 @@ export async function responsePlot(design: Design, report: RunReport, title: str
   let top = Math.max(3 * spec, 1e-3);
   for (let i = 0; i < 60 && curve.evaluate(zero, 0, top) < 0.9; i++) top *= 1.5;
   const xs = Array.from({ length: RESPONSE_POINTS }, (_, i) => -spec + ((top + spec) * i) / (RESPONSE_POINTS - 1));
-  const envelope = responseEnvelope(stage, xs, report.seed)!;
+  const envelope = responseEnvelope(stage, xs, report.seed);
+  // No sample could be evaluated at some lead (every solve failed): the histogram instead.
+  if (envelope === undefined) return runPlot(report, title);
   return responseSvg({ title, envelope, spec, subtitle: `seed ${report.seed}` });
 }
 

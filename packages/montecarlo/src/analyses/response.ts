@@ -43,22 +43,25 @@ export interface ResponseEnvelope {
   readonly seed: string;
 }
 
-function draws(stage: Stage, samples: number, seed: string): Float64Array {
-  const u = new Float64Array(samples * stage.dimension);
-  fillStandardNormals(chunkRng(seed, 'response', 0), u, 0, u.length);
-  return u;
-}
-
-/** The outputs of every sample at x, sorted, NaNs dropped. */
-function outputsAt(stage: Stage, u: Float64Array, samples: number, x: number): Float64Array {
+/**
+ * The outputs of every sample at each input of `xs`: one row of sorted values (NaNs dropped) per
+ * input. The draws are made one sample at a time from one stream, so memory stays O(dimension)
+ * whatever the cell count.
+ */
+function outputs(stage: Stage, xs: readonly number[], samples: number, seed: string): Float64Array[] {
   const curve = stage.response!;
-  const out = new Float64Array(samples);
-  let n = 0;
+  const rng = chunkRng(seed, 'response', 0);
+  const u = new Float64Array(stage.dimension);
+  const rows = xs.map(() => new Float64Array(samples));
+  const counts = xs.map(() => 0);
   for (let i = 0; i < samples; i++) {
-    const y = curve.evaluate(u, i * stage.dimension, x);
-    if (y === y) out[n++] = y;
+    fillStandardNormals(rng, u, 0, u.length);
+    xs.forEach((x, k) => {
+      const y = curve.evaluate(u, 0, x);
+      if (y === y) rows[k]![counts[k]!++] = y;
+    });
   }
-  return out.subarray(0, n).sort();
+  return rows.map((r, k) => r.subarray(0, counts[k]!).sort());
 }
 
 /**
@@ -68,8 +71,8 @@ function outputsAt(stage: Stage, u: Float64Array, samples: number, x: number): F
 export function responseAt(stage: Stage, x: number, seed: string, samples = RESPONSE_SAMPLES): ResponseSummary | undefined {
   const curve = stage.response;
   if (curve === undefined) return undefined;
-  const u = draws(stage, samples, seed);
-  const sorted = outputsAt(stage, u, samples, x);
+  const sorted = outputs(stage, [x], samples, seed)[0]!;
+  if (sorted.length === 0) return undefined; // no sample could be evaluated: nothing to report
   let mean = 0;
   for (const y of sorted) mean += y;
   mean /= Math.max(1, sorted.length);
@@ -93,9 +96,9 @@ export function responseAt(stage: Stage, x: number, seed: string, samples = RESP
 export function responseEnvelope(stage: Stage, xs: readonly number[], seed: string, samples = RESPONSE_SAMPLES): ResponseEnvelope | undefined {
   const curve = stage.response;
   if (curve === undefined) return undefined;
-  const u = draws(stage, samples, seed);
   const zero = new Float64Array(stage.dimension);
-  const sortedAt = xs.map((x) => outputsAt(stage, u, samples, x));
+  const sortedAt = outputs(stage, xs, samples, seed);
+  if (sortedAt.some((s) => s.length === 0)) return undefined;
   return {
     label: curve.label,
     input: curve.input,
