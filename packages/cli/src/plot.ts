@@ -5,8 +5,23 @@ import type { TopLevelSpec } from 'vega-lite';
 /** Most bars a histogram draws; finer input is merged into groups of adjacent bins. */
 export const MAX_DISPLAY_BINS = 200;
 
-/** Volts to the millivolts every plot shows. */
-const MV_PER_V = 1e3;
+/**
+ * The figure a plot shows and its display unit: `scale` takes the figure's SI value to `unit`.
+ * Without one, plots show an offset in millivolts.
+ */
+export interface PlotFigure {
+  /** Words for the axis ("offset", "current error"). */
+  label: string;
+  /** Its symbol ("Vos", "e"). */
+  symbol: string;
+  /** Display unit ("mV", "%"). */
+  unit: string;
+  /** Factor from the SI value to the display unit (1e3 for V to mV, 100 for a fraction in %). */
+  scale: number;
+}
+
+/** The offset in millivolts: what a plot shows when no figure is given. */
+export const OFFSET_PLOT_FIGURE: PlotFigure = { label: 'offset', symbol: 'Vos', unit: 'mV', scale: 1e3 };
 
 /** Points on the drawn Gaussian curve: smooth at the plot's width, still cheap. */
 const CURVE_POINTS = 401;
@@ -18,37 +33,39 @@ const GREEN = '#2a9d5c';
 const ORANGE = '#e08a1e';
 const GREY = '#555555';
 
-/** Histogram of sampled input-referred offsets, all values in volts. */
+/** Histogram of a sampled figure (input-referred offsets by default), all values in its SI unit (volts for an offset). */
 export interface HistogramInput {
   /** Plot title. */
   title: string;
-  /** Bin edges in volts, increasing, length `counts.length + 1`. */
+  /** Bin edges in the figure's SI unit, increasing, length `counts.length + 1`. */
   binEdges: readonly number[];
   /** Samples in each bin. */
   counts: readonly number[];
   /** Total Monte Carlo samples (including any that fell outside the bins). */
   samples: number;
-  /** Sample mean of the offset, volts. */
+  /** Sample mean of the figure. */
   mean: number;
-  /** Sample standard deviation of the offset, volts (> 0). */
+  /** Sample standard deviation of the figure (> 0). */
   sigma: number;
-  /** Offset specification in volts (> 0): rules are drawn at -spec and +spec. */
+  /** Specification of the figure (> 0): rules are drawn at -spec and +spec. */
   spec: number;
   /** Extra line under the title (the sample statistics line is always shown). */
   subtitle?: string;
+  /** What the values are (default: the offset in mV). */
+  figure?: PlotFigure;
 }
 
-/** One point of a parameter sweep; sigmas in volts, yields and probabilities as fractions. */
+/** One point of a parameter sweep; sigmas in the figure's SI unit (volts for an offset), yields and probabilities as fractions. */
 export interface SweepPoint {
   /** Swept value in the field's base unit (for example metres). */
   x: number;
-  /** Offset sigma from the linearised mismatch model, volts. */
+  /** Sigma from the linearised mismatch model. */
   analyticSigma: number;
-  /** Monte Carlo offset sigma, volts. */
+  /** Monte Carlo sigma. */
   mcSigma?: number;
-  /** Lower end of the Monte Carlo sigma's confidence interval, volts. */
+  /** Lower end of the Monte Carlo sigma's confidence interval. */
   mcSigmaLo?: number;
-  /** Upper end of the Monte Carlo sigma's confidence interval, volts. */
+  /** Upper end of the Monte Carlo sigma's confidence interval. */
   mcSigmaHi?: number;
   /** Monte Carlo yield, the fraction of samples within spec. */
   yield?: number;
@@ -78,15 +95,15 @@ export interface SweepInput {
   log: boolean;
   /** The swept points. */
   points: readonly SweepPoint[];
-  /** Offset sigma target in volts: drawn as a horizontal rule. */
+  /** Sigma target in the figure's SI unit: drawn as a horizontal rule. */
   sigmaTarget?: number;
   /** Yield target as a fraction: 1 - yieldTarget is drawn as the failure target. */
   yieldTarget?: number;
-  /** What the sigma is of, for the axis title (default "offset"). */
-  figureLabel?: string;
+  /** What the sigmas are of (default: the offset in mV). */
+  figure?: PlotFigure;
 }
 
-/** A histogram's bins after merging, edges in volts. */
+/** A histogram's bins after merging, edges in the figure's SI unit. */
 export interface Bins {
   /** Bin edges, length `counts.length + 1`. */
   edges: number[];
@@ -147,18 +164,21 @@ function validateHistogram(input: HistogramInput): void {
   requirePositive('histogram spec', input.spec);
 }
 
-/** Millivolts with three significant digits, for titles. */
-function mv(volts: number): string {
-  return `${Number((volts * MV_PER_V).toPrecision(3))} mV`;
+/** A value in the figure's display unit with three significant digits, for titles. */
+function shown(fig: PlotFigure, x: number): string {
+  return `${Number((x * fig.scale).toPrecision(3))} ${fig.unit}`;
 }
 
 /**
  * The vega-lite spec of an offset histogram: bars (rebinned to at most {@link MAX_DISPLAY_BINS}),
  * the Gaussian N(mean, sigma) scaled to samples * bin width, and rules at -spec and +spec.
- * The x axis is in millivolts. Throws RangeError naming the bad field.
+ * The x axis is in the figure's display unit (millivolts for an offset). Throws RangeError naming the bad field.
  */
 export function histogramSpec(input: HistogramInput): TopLevelSpec {
   validateHistogram(input);
+  const fig = input.figure ?? OFFSET_PLOT_FIGURE;
+  const toDisplay = fig.scale;
+  const mv = (x: number): string => shown(fig, x);
   const bins = rebin(input.binEdges, input.counts, MAX_DISPLAY_BINS);
   const nBins = bins.counts.length;
   const first = bins.edges[0]!;
@@ -168,8 +188,8 @@ export function histogramSpec(input: HistogramInput): TopLevelSpec {
   const binWidth = (last - first) / nBins;
 
   const bars = bins.counts.map((count, i) => ({
-    lo: bins.edges[i]! * MV_PER_V,
-    hi: bins.edges[i + 1]! * MV_PER_V,
+    lo: bins.edges[i]! * toDisplay,
+    hi: bins.edges[i + 1]! * toDisplay,
     count,
     series: 'histogram',
   }));
@@ -181,12 +201,12 @@ export function histogramSpec(input: HistogramInput): TopLevelSpec {
   for (let i = 0; i < CURVE_POINTS; i++) {
     const v = xLo + ((xHi - xLo) * i) / (CURVE_POINTS - 1);
     const z = (v - input.mean) / input.sigma;
-    curve.push({ x: v * MV_PER_V, y: scale * Math.exp(-0.5 * z * z), series: 'Gaussian fit' });
+    curve.push({ x: v * toDisplay, y: scale * Math.exp(-0.5 * z * z), series: 'Gaussian fit' });
   }
 
   const limits = [
-    { x: -input.spec * MV_PER_V, label: '-spec', series: 'spec' },
-    { x: input.spec * MV_PER_V, label: '+spec', series: 'spec' },
+    { x: -input.spec * toDisplay, label: '-spec', series: 'spec' },
+    { x: input.spec * toDisplay, label: '+spec', series: 'spec' },
   ];
 
   const stats = `${input.samples} samples, mean ${mv(input.mean)}, sigma ${mv(input.sigma)}, spec ±${mv(input.spec)}`;
@@ -198,7 +218,7 @@ export function histogramSpec(input: HistogramInput): TopLevelSpec {
     scale: { domain: ['histogram', 'Gaussian fit', 'spec'], range: [BLUE, RED, GREEN] },
     legend: { title: null },
   } as const;
-  const xAxis = { title: 'offset Vos (mV)' };
+  const xAxis = { title: `${fig.label} ${fig.symbol} (${fig.unit})` };
 
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
@@ -290,7 +310,7 @@ const TAIL_FAILURE = 'importance-sampling tail';
 const FAILURE_TARGET = 'target failure';
 
 /**
- * The vega-lite spec of a sweep: offset sigma (mV) on top, failure probability on a log axis
+ * The vega-lite spec of a sweep: the figure's sigma (offset in mV by default) on top, failure probability on a log axis
  * below, against the swept field (`x * xScale`, in `fieldUnit`). Values that are zero cannot sit
  * on the log axis; they are left out and counted in the subtitle. Interval ends at zero are
  * drawn to the bottom of the axis. Throws RangeError naming the bad field.
@@ -299,14 +319,16 @@ export function sweepSpec(input: SweepInput): TopLevelSpec {
   validateSweep(input);
   const xTitle = input.fieldUnit === '' ? input.field : `${input.field} (${input.fieldUnit})`;
   const xOf = (p: SweepPoint): number => p.x * input.xScale;
+  const fig = input.figure ?? OFFSET_PLOT_FIGURE;
+  const toDisplay = fig.scale;
 
-  // Top panel: sigma in millivolts.
-  const analytic = input.points.map((p) => ({ x: xOf(p), sigma: p.analyticSigma * MV_PER_V, series: 'analytic' }));
-  const mcPoints = input.points.flatMap((p) => (p.mcSigma === undefined ? [] : [{ x: xOf(p), sigma: p.mcSigma * MV_PER_V, series: 'Monte Carlo' }]));
+  // Top panel: sigma in the figure's display unit (mV for an offset).
+  const analytic = input.points.map((p) => ({ x: xOf(p), sigma: p.analyticSigma * toDisplay, series: 'analytic' }));
+  const mcPoints = input.points.flatMap((p) => (p.mcSigma === undefined ? [] : [{ x: xOf(p), sigma: p.mcSigma * toDisplay, series: 'Monte Carlo' }]));
   const mcBars = input.points.flatMap((p) =>
     p.mcSigmaLo === undefined || p.mcSigmaHi === undefined
       ? []
-      : [{ x: xOf(p), lo: p.mcSigmaLo * MV_PER_V, hi: p.mcSigmaHi * MV_PER_V, series: 'Monte Carlo' }],
+      : [{ x: xOf(p), lo: p.mcSigmaLo * toDisplay, hi: p.mcSigmaHi * toDisplay, series: 'Monte Carlo' }],
   );
   const sigmaSeries = ['analytic', ...(mcPoints.length > 0 || mcBars.length > 0 ? ['Monte Carlo'] : [])];
   const sigmaColors = [BLUE, ...(sigmaSeries.length > 1 ? [RED] : [])];
@@ -396,7 +418,7 @@ export function sweepSpec(input: SweepInput): TopLevelSpec {
     scale: { domain: failSeries, range: failColors },
     legend: { title: null, labelLimit: 260 },
   } as const;
-  const ySigma = { type: 'quantitative' as const, axis: { title: `${input.figureLabel ?? 'offset'} sigma (mV)` } };
+  const ySigma = { type: 'quantitative' as const, axis: { title: `${fig.label} sigma (${fig.unit})` } };
   const width = 560;
   const height = 220;
 
@@ -427,7 +449,7 @@ export function sweepSpec(input: SweepInput): TopLevelSpec {
   if (input.sigmaTarget !== undefined) {
     sigmaLayers.push({
       name: 'sigmaTarget',
-      data: { values: [{ y: input.sigmaTarget * MV_PER_V, series: 'target sigma' }] },
+      data: { values: [{ y: input.sigmaTarget * toDisplay, series: 'target sigma' }] },
       mark: { type: 'rule', strokeDash: [6, 4], strokeWidth: 1.5 },
       encoding: { y: { ...ySigma, field: 'y' }, color: sigmaColor },
     });
@@ -485,7 +507,7 @@ export interface ResponseInput {
     /** What the output is ("winner's share of the tail") and what the input is ("lead"). */
     readonly label: string;
     readonly input: string;
-    /** Input values, volts, increasing. */
+    /** Input values in the figure's SI unit (volts for a lead), increasing. */
     readonly x: readonly number[];
     /** Output without mismatch at each x, a fraction. */
     readonly nominal: readonly number[];
@@ -493,8 +515,10 @@ export interface ResponseInput {
     readonly bands: readonly { readonly p: number; readonly values: readonly number[] }[];
     readonly samples: number;
   };
-  /** The spec on the input (volts, > 0): drawn as a rule. */
+  /** The spec on the input (in the figure's SI unit, > 0): drawn as a rule. */
   spec: number;
+  /** The figure the input is in (default: volts shown in mV). */
+  figure?: PlotFigure;
 }
 
 function validateResponse(input: ResponseInput): void {
@@ -513,14 +537,15 @@ function validateResponse(input: ResponseInput): void {
 
 /**
  * The vega-lite spec of a transfer curve under mismatch: the nominal output against the input
- * (millivolts), the bands between the quantile levels that pair about the median (1-99%, 10-90%)
+ * (in the figure's display unit, mV for a lead), the bands between the quantile levels that pair about the median (1-99%, 10-90%)
  * shaded, the median dashed, and the spec marked. Throws RangeError naming the bad field.
  */
 export function responseSpec(input: ResponseInput): TopLevelSpec {
   validateResponse(input);
   const e = input.envelope;
   const pct = (v: number): number => 100 * v;
-  const x = (i: number): number => e.x[i]! * MV_PER_V;
+  const fig = input.figure ?? OFFSET_PLOT_FIGURE;
+  const x = (i: number): number => e.x[i]! * fig.scale;
   const sorted = [...e.bands].sort((a, b) => a.p - b.p);
   const areas: { x: number; lo: number; hi: number; series: string }[] = [];
   const bandNames: string[] = [];
@@ -537,7 +562,7 @@ export function responseSpec(input: ResponseInput): TopLevelSpec {
   const domain = [...bandNames, 'nominal', ...(median === undefined ? [] : ['median']), 'spec'];
   const range = [...bandNames.map((_, i) => (i === 0 ? '#c9d7ee' : '#8fabd9')), RED, ...(median === undefined ? [] : [BLUE]), GREEN];
   const color = { field: 'series', type: 'nominal', scale: { domain, range }, legend: { title: null, labelLimit: 260 } } as const;
-  const xEnc = { field: 'x', type: 'quantitative', title: `${e.input} (mV)`, scale: { zero: false, nice: false } } as const;
+  const xEnc = { field: 'x', type: 'quantitative', title: `${e.input} (${fig.unit})`, scale: { zero: false, nice: false } } as const;
   const yTitle = `${e.label} (%)`;
   const subtitle = [`${e.samples} mismatch samples; shaded: the spread between quantiles at each ${e.input}`];
   return {
@@ -566,7 +591,7 @@ export function responseSpec(input: ResponseInput): TopLevelSpec {
       },
       {
         name: 'specRule',
-        data: { values: [{ x: input.spec * MV_PER_V, series: 'spec' }] },
+        data: { values: [{ x: input.spec * fig.scale, series: 'spec' }] },
         mark: { type: 'rule', strokeWidth: 2, strokeDash: [6, 4] },
         encoding: { x: { field: 'x', type: 'quantitative' }, color },
       },

@@ -1,11 +1,13 @@
 import { compileStage, formatQuantity, stageDefinition, type Design, type Stage } from '@twinfet/core';
 import { linearisedSummary, chipFailure, type LinearisedSummary, type SelectionSummary } from '@twinfet/montecarlo';
 import { renderPairs, renderTable } from '../table.js';
-import { designSummary, figureText, headerLine, pct, sci, shareLabel } from '../describe.js';
+import { designSummary, figureSummary, figureText, headerLine, pct, sci, shareLabel } from '../describe.js';
 
-/** The inspect report: operating point and the linearised offset picture. */
+/** The inspect report: operating point and the linearised picture of the stage's figure. */
 export interface InspectReport {
   readonly design: ReturnType<typeof designSummary>;
+  /** What the sigmas and the spec are of (`offset` in volts, `currentError` as a fraction). */
+  readonly figure: ReturnType<typeof figureSummary>;
   readonly operatingPoint: Stage['operatingPoint'];
   /** Resistor rows, for stages that have resistors. */
   readonly resistors?: NonNullable<Stage['resistors']>;
@@ -18,6 +20,7 @@ export function inspectDesign(design: Design): InspectReport {
   const stage = compileStage(design);
   return {
     design: designSummary(design),
+    figure: figureSummary(design),
     operatingPoint: stage.operatingPoint,
     ...(stage.resistors === undefined ? {} : { resistors: stage.resistors }),
     analytic: linearisedSummary(stage),
@@ -68,10 +71,15 @@ export function renderResistors(rows: NonNullable<Stage['resistors']>): string {
   return renderTable(header, body, header.map((_, c) => (c <= 1 ? 'left' : 'right')));
 }
 
-/** The variance-budget table (of the figure's sigma^2, or of the per-cell sigma_c^2 of a selector). */
-export function renderBudget(a: LinearisedSummary): string {
+/**
+ * The variance-budget table, in the unit of the stage's figure (of the figure's sigma^2, or of
+ * the per-cell sigma_c^2 of a selector's Bechhofer form).
+ */
+export function renderBudget(a: LinearisedSummary, design: Pick<Design, 'topology'>): string {
+  const def = stageDefinition(design.topology);
+  const f = figureText(def.figure);
   const whose = 'gaussian' in a ? undefined : 'each cell';
-  const rows = a.grouped.map((g) => [shareLabel(g.role, g.parameter, whose), pct(g.share, 3), formatQuantity(Math.sqrt(g.variance), 'V', 4)]);
+  const rows = a.grouped.map((g) => [shareLabel(g.role, g.parameter, def, whose), pct(g.share, 3), f.format(Math.sqrt(g.variance))]);
   return renderTable(['contribution', `share of ${whose === undefined ? 'sigma' : 'sigma_c'}^2`, 'sigma part'], rows);
 }
 
@@ -92,7 +100,7 @@ export function selectionPairs(a: SelectionSummary, format: (x: number) => strin
 /** Text form of the inspect report. */
 export function renderInspect(r: InspectReport): string {
   const a = r.analytic;
-  const f = figureText(stageDefinition(r.design.topology).figure);
+  const f = figureText(r.figure);
   let linearised: [string, string][];
   if ('gaussian' in a) {
     const g = a.gaussian;
@@ -113,7 +121,7 @@ export function renderInspect(r: InspectReport): string {
     '',
     renderPairs(linearised),
     '',
-    renderBudget(a),
+    renderBudget(a, r.design),
   ];
   for (const w of r.warnings) parts.push(`warning: ${w}`);
   return parts.join('\n');

@@ -1,8 +1,8 @@
-import { formatQuantity, InputError, MISMATCH_PARAMETERS, stageDefinition, type MismatchParameter } from '@twinfet/core';
+import { formatQuantity, InputError, MISMATCH_PARAMETERS, stageDefinition, type Design, type MismatchParameter } from '@twinfet/core';
 import { estimateHighSigma, type HighSigmaReport } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
-import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
-import { designSummary, figureText, headerLine, sci, type FigureText } from '../describe.js';
+import { readCommon, readSpec, withCommonOptions, type CommonFlags } from '../commonOptions.js';
+import { designSummary, figureSummary, figureText, headerLine, sci } from '../describe.js';
 import { loadDesign } from '../designFile.js';
 import { warnUnitSlips } from '../unitWarnings.js';
 import { parseCount, parseFraction } from '../options.js';
@@ -17,11 +17,9 @@ interface TailFlags extends CommonFlags {
 
 const sig = (x: number | null): string => (x === null ? 'unbounded' : x.toFixed(3));
 
-/** How an offset is written: the default figure of renderTail. */
-const OFFSET_TEXT = figureText({ label: 'offset', symbol: 'Vos', unit: 'V', sided: 'two' });
-
-/** Text form of a high-sigma estimate (also used inside `run --method importance`), for the figure `f`. */
-export function renderTail(r: HighSigmaReport, f: FigureText = OFFSET_TEXT): string {
+/** Text form of a high-sigma estimate of the design's figure (also used inside `run --method importance`). */
+export function renderTail(r: HighSigmaReport, design: Pick<Design, 'topology'>): string {
+  const f = figureText(stageDefinition(design.topology).figure);
   const c = `${Math.round(r.confidence * 1000) / 10}%`;
   const pts = r.designPoints.map((p) => {
     const top = [...p.coordinates].sort((a, b) => Math.abs(b.u) - Math.abs(a.u)).slice(0, 4);
@@ -45,6 +43,7 @@ export function renderTail(r: HighSigmaReport, f: FigureText = OFFSET_TEXT): str
       renderTable(['side', 'distance', 'FORM p', 'found by', 'dominant mismatch'], pts, ['left', 'right', 'right', 'left', 'left']),
     ].join('\n');
   }
+  // Mirror-image regions (a selector's competitors) are named as such; a one-sided figure has one side.
   const regions: [string, string][] =
     r.mirrorRegions !== undefined
       ? [['failure regions', `${r.mirrorRegions} mirror images of one another (${r.designPoints[0]?.side ?? ''} and the like), one mixture centre each; the first one's point is shown`]]
@@ -70,14 +69,30 @@ export function renderTail(r: HighSigmaReport, f: FigureText = OFFSET_TEXT): str
   ].join('\n');
 }
 
+/**
+ * The report with each design point's figure value under the figure's own name (`offset` for the
+ * differential stages, so their output is unchanged; `currentError` for a current mirror).
+ */
+function figureNamed(r: HighSigmaReport, design: Pick<Design, 'topology'>): Record<string, unknown> {
+  const name = stageDefinition(design.topology).figure.name;
+  if (name === 'offset') return { ...r };
+  return {
+    ...r,
+    designPoints: r.designPoints.map((p) => {
+      const { offset, ...rest } = p;
+      return { ...rest, [name]: offset };
+    }),
+  };
+}
+
 /** Registers `twinfet tail`. */
 export function registerTail(program: Command, io: Io, setExit: (code: number) => void): void {
   withCommonOptions(
     program
       .command('tail')
-      .description('high-sigma failure probability P(|Vos| > spec), or P(L > separation) for a selector, by importance sampling about the most probable failure points')
+      .description('high-sigma failure probability P(|Vos| > spec) (or of the current error, or P(L > separation) for a selector) by importance sampling about the most probable failure points')
       .argument('<design>', 'design file (YAML or JSON)')
-      .option('--spec <V>', "offset limit overriding the design's spec, e.g. 20mV")
+      .option('--spec <V>', "limit overriding the design's spec, e.g. 20mV (an offset) or 1% (a current error)")
       .option('--rel-error <E>', 'stop when the interval half-width is this fraction of the estimate (default 0.05)')
       .option('--samples <N>', 'a fixed sample count instead of the relative-error rule'),
   ).action(async (file: string, flags: TailFlags) => {
@@ -88,7 +103,8 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
     const relError = flags.relError === undefined ? undefined : parseFraction(flags.relError, '--rel-error', '0.05');
     const samples = flags.samples === undefined ? undefined : parseCount(flags.samples, '--samples', 100, 1e10);
     const design = await loadDesign(file);
-    warnUnitSlips(io, design, common.spec);
+    const spec = readSpec(flags, design);
+    warnUnitSlips(io, design, spec);
     const done = await withInterrupt(io, 'tail', (signal, onProgress) =>
       estimateHighSigma(design, {
         workers: common.workers,
@@ -96,7 +112,7 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
         signal,
         onProgress,
         ...(common.seed === undefined ? {} : { seed: common.seed }),
-        ...(common.spec === undefined ? {} : { spec: common.spec }),
+        ...(spec === undefined ? {} : { spec }),
         ...(relError === undefined ? {} : { relError }),
         ...(samples === undefined ? {} : { samples }),
       }),
@@ -109,10 +125,9 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
     }
     const report = done.value;
     assertFinite(report);
-    if (flags.json === true) printJson(io, { design: designSummary(design), ...report });
+    if (flags.json === true) printJson(io, { design: designSummary(design), figure: figureSummary(design), ...figureNamed(report, design) });
     else {
-      const f = figureText(stageDefinition(design.topology).figure);
-      io.out(`${headerLine(design, { withTemperature: false })}\nimportance sampling on the exact model\n\n${renderTail(report, f)}`);
+      io.out(`${headerLine(design, { withTemperature: false })}\nimportance sampling on the exact model\n\n${renderTail(report, design)}`);
     }
     setExit(0);
   });
