@@ -1,3 +1,4 @@
+import type { DeviceGeometry } from '../src/design.js';
 /**
  * Closed forms written out for the tests, from the published formulas only (never from a
  * compiled stage): U_T = kT/q, the EKV 1995 I_D/gm (Enz, Krummenacher & Vittoz, AICSP 8, 1995),
@@ -38,15 +39,15 @@ export function correlatedSigma(d: Design): number {
   const areaIn = d.input.w * d.input.l;
   const s = pin.avt / Math.sqrt(areaIn);
   const b = pin.abeta / Math.sqrt(areaIn);
-  const k = idOverGm(pin, d.input.w, d.input.l, d.tail / 2, d.temperature);
-  let v = s * s + k * k * b * b - 2 * pin.rho * k * s * b;
-  if (d.load !== undefined) {
-    const pl = d.process[d.load.polarity]!;
-    const areaL = d.load.w * d.load.l;
+  const k = idOverGm(pin, d.input.w, d.input.l, d.tail! / 2, d.temperature);
+  let v = s * s + k * k * b * b - 2 * (pin.rho ?? 0) * k * s * b;
+  if ((d['load'] as DeviceGeometry | undefined) !== undefined) {
+    const pl = d.process[(d['load'] as DeviceGeometry).polarity]!;
+    const areaL = (d['load'] as DeviceGeometry).w * (d['load'] as DeviceGeometry).l;
     const sl = pl.avt / Math.sqrt(areaL);
     const bl = pl.abeta / Math.sqrt(areaL);
-    const g = 1 / idOverGm(pl, d.load.w, d.load.l, d.tail / 2, d.temperature);
-    v += k * k * (bl * bl + g * g * sl * sl - 2 * pl.rho * g * sl * bl);
+    const g = 1 / idOverGm(pl, (d['load'] as DeviceGeometry).w, (d['load'] as DeviceGeometry).l, d.tail! / 2, d.temperature);
+    v += k * k * (bl * bl + g * g * sl * sl - 2 * (pl.rho ?? 0) * g * sl * bl);
   }
   return Math.sqrt(v);
 }

@@ -1,3 +1,4 @@
+import type { DeviceGeometry } from '../src/design.js';
 /**
  * The per-device quantities a compiled stage reports (operating point, sigmas, warnings), the
  * report form of the current-factor rule, and the edges of the EKV helpers, each against a
@@ -6,7 +7,7 @@
  * per device, U_T = kT/q with the exact 2019 SI constants.
  */
 import { describe, expect, it } from 'vitest';
-import { processFor } from '../src/deviceConstants.js';
+import { processFor } from '../src/elements.js';
 import { compileStage, currentFactorDeviation, ekvInverseDifference, normalisedGmOverId, type Design } from '../src/index.js';
 import { demoProcess, mirrorDesign, simpleDesign } from './designs.js';
 
@@ -23,12 +24,12 @@ describe('operating point of each device, computed by hand (EKV 1995)', () => {
   const cases = [
     ['M1', 0, demoProcess.n, design.input, 'input', 8.6e-3],
     ['M2', 1, demoProcess.n, design.input, 'input', 8.6e-3],
-    ['M3', 2, demoProcess.p, design.load!, 'load', undefined],
-    ['M4', 3, demoProcess.p, design.load!, 'load', undefined],
+    ['M3', 2, demoProcess.p, (design['load'] as DeviceGeometry | undefined)!, 'load', undefined],
+    ['M4', 3, demoProcess.p, (design['load'] as DeviceGeometry | undefined)!, 'load', undefined],
   ] as const;
   it.each(cases)('%s: I_S, IC, region, gm/I_D, gm, overdrive, area, capacitance, sigmas (1e-12: rounding)', (name, index, p, g, role, cox) => {
     const op = st.operatingPoint[index]!;
-    const id = design.tail / 2;
+    const id = design.tail! / 2;
     const is = 2 * p.slope * p.kp * (g.w / g.l) * ut * ut;
     const ic = id / is;
     const s = Math.sqrt(ic);
@@ -70,9 +71,9 @@ describe('operating point of each device, computed by hand (EKV 1995)', () => {
 describe('small-device warnings (area law near the process minimum: Drennan & McAndrew, IEEE JSSC 38(3), 2003)', () => {
   // The rule: a warning when W < 2 W_min or L < 2 L_min (this project's threshold, common
   // practice, no source); exactly 2x is not "within 2x".
-  const withMin = (wmin: number, lmin: number): Design => ({
+  const withMin = (minW: number, minL: number): Design => ({
     ...mirrorDesign,
-    process: { n: { ...demoProcess.n, wmin, lmin }, p: { ...demoProcess.p, wmin, lmin } },
+    process: { n: { ...demoProcess.n, minW, minL }, p: { ...demoProcess.p, minW, minL } },
   });
   it('W and L at exactly twice the minimum: no warning', () => {
     // Input 2 um x 1 um, load 4 um x 2 um: minimum 1 um / 0.5 um gives 2x for the input.
@@ -93,8 +94,14 @@ describe('small-device warnings (area law near the process minimum: Drennan & Mc
       expect.stringMatching(/^load\.l /),
     ]);
   });
+  it('a device below the minimum is said to be below it, naming both values (not "within 2x")', () => {
+    // Input W = 2 um against a smallest drawn width of 3 um; the load (4 um) is within 2x.
+    const w = compileStage(withMin(3e-6, 0.1e-6)).warnings;
+    expect(w[0]).toBe("input.w = 2 um is below the process's smallest drawn width process.n.min_w = 3 um: such a device cannot be drawn, and the area law does not hold for it");
+    expect(w[1]).toMatch(/^load\.w is within 2x of the process minimum width/);
+  });
   it('the simple stage warns for its input pair the same way', () => {
-    const d: Design = { ...simpleDesign, process: { n: { ...demoProcess.n, wmin: 1.5e-6 } } };
+    const d: Design = { ...simpleDesign, process: { n: { ...demoProcess.n, minW: 1.5e-6 } } };
     expect(compileStage(d).warnings).toEqual([expect.stringMatching(/^input\.w is within 2x/)]);
   });
 });
@@ -125,10 +132,10 @@ describe('simple stage: a current factor beyond the range of doubles gives NaN, 
     // sqrt(IC1) = sqrt(IC) e^{-750} underflows to 0.
     const side = Math.sqrt((1e-8 / 0.3) ** 2 / 2);
     const st = compileStage({ ...simpleDesign, input: { polarity: 'n', w: side, l: side } });
-    expect(Number.isNaN(st.offset(Float64Array.of(0, 5000, 0, 0), 0))).toBe(true);
-    expect(Number.isNaN(st.offset(Float64Array.of(0, 0, 0, -5000), 0))).toBe(true);
+    expect(Number.isNaN(st.figure(Float64Array.of(0, 5000, 0, 0), 0))).toBe(true);
+    expect(Number.isNaN(st.figure(Float64Array.of(0, 0, 0, -5000), 0))).toBe(true);
     const out = new Float64Array(3);
-    const failed = st.offsets(Float64Array.of(0, 5000, 0, 0, 1, 0, 0, 0, 0, 0, 0, -5000), 3, out, 0);
+    const failed = st.figures(Float64Array.of(0, 5000, 0, 0, 1, 0, 0, 0, 0, 0, 0, -5000), 3, out, 0);
     expect(failed).toBe(2);
     // The finite one is M1's V_T one sigma high: exactly sigma(dV_T) (stageReference.test.ts).
     expect(rel(out[1]!, 5e-9 / Math.sqrt(2 * side * side))).toBeLessThan(1e-12);

@@ -1,3 +1,4 @@
+import type { DeviceGeometry } from '../src/design.js';
 /**
  * Reference checks of the stages that do not go through the code's own formulas: the linearised
  * sigma with a V_T / current-factor correlation in closed form, the sign of the offset for a
@@ -66,7 +67,7 @@ function oneDraw(d: Design, j: number, value = 1): number {
   const st = compileStage(d);
   const u = new Float64Array(st.dimension);
   u[j] = value;
-  return st.offset(u, 0);
+  return st.figure(u, 0);
 }
 
 /** Per-device sigma of dV_T, A_VT / sqrt(2 W L) (Pelgrom 1989, per-device convention). */
@@ -113,11 +114,11 @@ describe('sign of the offset for a one-sigma |V_T| shift (derived from the sign 
     // Size, to first order: |Vos| = (gm_load / gm_in) sigma(dV_T,load) (Kinget 2005), computed
     // here from the EKV gm/I_D. The Taylor remainder of that first order is of relative size
     // (gm/I_D)_load sigma(dV_T,load), the relative change of M4's current (1.2% and 1.6% here).
-    const pl = d.process[d.load!.polarity]!;
+    const pl = d.process[(d['load'] as DeviceGeometry).polarity]!;
     const pin = d.process[d.input.polarity]!;
-    const kIn = idOverGm(pin, d.input.w, d.input.l, d.tail / 2, d.temperature);
-    const kL = idOverGm(pl, d.load!.w, d.load!.l, d.tail / 2, d.temperature);
-    const delta = sigmaVt(pl, d.load!.w, d.load!.l);
+    const kIn = idOverGm(pin, d.input.w, d.input.l, d.tail! / 2, d.temperature);
+    const kL = idOverGm(pl, (d['load'] as DeviceGeometry).w, (d['load'] as DeviceGeometry).l, d.tail! / 2, d.temperature);
+    const delta = sigmaVt(pl, (d['load'] as DeviceGeometry).w, (d['load'] as DeviceGeometry).l);
     const first = (kIn / kL) * delta;
     expect(rel(Math.abs(m3), first)).toBeLessThan(delta / kL);
     expect(rel(Math.abs(m4), first)).toBeLessThan(delta / kL);
@@ -156,10 +157,10 @@ describe('mirror orientation where the balance solves by hand', () => {
   ] as const)('%s: a one-sigma |V_T| shift of M3 and of M4 gives Vos = -/+ delta sqrt(K_L/K_in)', (_name, pol, sign) => {
     const d = square(pol);
     const pin = d.process[pol]!;
-    const pl = d.process[d.load!.polarity]!;
+    const pl = d.process[(d['load'] as DeviceGeometry).polarity]!;
     const kIn = (pin.kp * d.input.w) / d.input.l / (2 * pin.slope);
-    const kL = (pl.kp * d.load!.w) / d.load!.l / (2 * pl.slope);
-    const delta = sigmaVt(pl, d.load!.w, d.load!.l);
+    const kL = (pl.kp * (d['load'] as DeviceGeometry).w) / (d['load'] as DeviceGeometry).l / (2 * pl.slope);
+    const delta = sigmaVt(pl, (d['load'] as DeviceGeometry).w, (d['load'] as DeviceGeometry).l);
     const want = sign * delta * Math.sqrt(kL / kIn);
     expect(rel(oneDraw(d, 4), want)).toBeLessThan(1e-8);
     expect(rel(oneDraw(d, 6), -want)).toBeLessThan(1e-8);
@@ -187,14 +188,14 @@ describe('mirror orientation where the balance solves by hand', () => {
   ] as const)('%s: a one-sigma |V_T| shift of M3 and of M4 gives Vos = -/+ (n_in/n_L) delta', (_name, pol, sign) => {
     const d = weak(pol);
     const pin = d.process[pol]!;
-    const pl = d.process[d.load!.polarity]!;
+    const pl = d.process[(d['load'] as DeviceGeometry).polarity]!;
     const ut = thermal(d.temperature);
     const icMax = Math.max(
-      d.tail / 2 / (2 * pin.slope * pin.kp * (d.input.w / d.input.l) * ut * ut),
-      d.tail / 2 / (2 * pl.slope * pl.kp * (d.load!.w / d.load!.l) * ut * ut),
+      d.tail! / 2 / (2 * pin.slope * pin.kp * (d.input.w / d.input.l) * ut * ut),
+      d.tail! / 2 / (2 * pl.slope * pl.kp * ((d['load'] as DeviceGeometry).w / (d['load'] as DeviceGeometry).l) * ut * ut),
     );
     expect(icMax).toBeLessThan(1e-6); // deep weak inversion, so the bound below is < 0.2%
-    const delta = sigmaVt(pl, d.load!.w, d.load!.l);
+    const delta = sigmaVt(pl, (d['load'] as DeviceGeometry).w, (d['load'] as DeviceGeometry).l);
     const want = sign * (pin.slope / pl.slope) * delta;
     expect(rel(oneDraw(d, 4), want)).toBeLessThan(2 * Math.sqrt(icMax));
     expect(rel(oneDraw(d, 6), -want)).toBeLessThan(2 * Math.sqrt(icMax));
