@@ -374,6 +374,100 @@ export function sweepChart(input: SweepInput): Chart {
   };
 }
 
+/** A transfer curve under mismatch: its nominal curve and percentile bands over samples. */
+export interface ResponseInput {
+  /** Plot title. */
+  title: string;
+  /** Extra line under the title. */
+  subtitle?: string;
+  envelope: {
+    /** What the output is ("winner's share of the tail") and what the input is ("lead"). */
+    readonly label: string;
+    readonly input: string;
+    /** Input values in the figure's SI unit (volts for a lead), increasing. */
+    readonly x: readonly number[];
+    /** Output without mismatch at each x, a fraction. */
+    readonly nominal: readonly number[];
+    /** Output quantiles at each x: levels symmetric about 0.5 pair into bands. */
+    readonly bands: readonly { readonly p: number; readonly values: readonly number[] }[];
+    readonly samples: number;
+  };
+  /** The spec on the input (in the figure's SI unit, > 0): drawn as a rule. */
+  spec: number;
+  /** The quantity the input is in (default: the offset in mV). */
+  quantity?: DisplayQuantity;
+}
+
+function validateResponse(input: ResponseInput): void {
+  const e = input.envelope;
+  if (e.x.length < 2) throw new RangeError('response x must hold at least two points');
+  e.x.forEach((v, i) => requireFinite(`response x[${i}]`, v));
+  const series = [e.nominal, ...e.bands.map((b) => b.values)];
+  for (const ys of series) {
+    if (ys.length !== e.x.length) throw new RangeError(`response series must have ${e.x.length} values, got ${ys.length}`);
+    ys.forEach((v, i) => {
+      if (!(v >= 0 && v <= 1)) throw new RangeError(`response value ${i} must be a fraction in [0, 1], got ${v}`);
+    });
+  }
+  requirePositive('response spec', input.spec);
+}
+
+/**
+ * A transfer curve under mismatch: the nominal output against the input (in the quantity's
+ * display unit, mV for a lead), the bands between the quantile levels that pair about the median
+ * (1-99%, 10-90%) shaded, the median dashed, and the spec marked with its value. Throws RangeError
+ * naming the bad field.
+ */
+export function responseChart(input: ResponseInput): Chart {
+  validateResponse(input);
+  const e = input.envelope;
+  const q = input.quantity ?? OFFSET_MV;
+  const xs = e.x.map((v) => v * q.scale);
+  const pct = (v: number): number => 100 * v;
+  const sorted = [...e.bands].sort((a, b) => a.p - b.p);
+  const layers: Layer[] = [];
+  for (let i = 0; i < sorted.length / 2 - 0.5; i++) {
+    const lo = sorted[i]!;
+    const hi = sorted[sorted.length - 1 - i]!;
+    layers.push({
+      kind: 'band',
+      name: `band-${Math.round(lo.p * 100)}-${Math.round(hi.p * 100)}`,
+      legend: `${Math.round(lo.p * 100)}-${Math.round(hi.p * 100)}% of samples`,
+      x: xs,
+      lo: lo.values.map(pct),
+      hi: hi.values.map(pct),
+      fill: i === 0 ? COLOR.bandWide : COLOR.bandNarrow,
+    });
+  }
+  const median = sorted.find((b) => b.p === 0.5);
+  if (median !== undefined) {
+    layers.push({ kind: 'line', name: 'median', legend: 'median', points: xs.map((x, j) => [x, pct(median.values[j]!)] as const), stroke: COLOR.fit, width: 1.5, dash: DASH.target });
+  }
+  layers.push({ kind: 'line', name: 'nominal', legend: 'nominal (no mismatch)', points: xs.map((x, j) => [x, pct(e.nominal[j]!)] as const), stroke: COLOR.main, width: 2 });
+  const spec = input.spec * q.scale;
+  layers.push({ kind: 'rule', name: 'spec', legend: 'spec', axis: 'x', value: spec, label: `spec ${shown(spec, q.unit)}`, stroke: COLOR.limit, dash: DASH.spec });
+  const note = `${e.samples} mismatch samples; shaded: the spread between quantiles at each ${e.input}`;
+  return {
+    id: 'response',
+    title: input.title,
+    subtitle: input.subtitle === undefined ? [note] : [input.subtitle, note],
+    description: `${e.label} against ${e.input}: the nominal curve and the spread over ${e.samples} mismatch samples, with the spec at ${shown(spec, q.unit)}.`,
+    panels: [
+      {
+        x: linearAxis(`${e.input} (${q.unit})`, [...xs, spec]),
+        y: linearAxis(`${e.label} (%)`, [0, 100], { zero: true, pad: 0.02 }),
+        layers,
+        height: 300,
+      },
+    ],
+  };
+}
+
+/** SVG of a transfer curve under mismatch; see {@link responseChart}. */
+export function responseSvg(input: ResponseInput): string {
+  return chartSvg(responseChart(input));
+}
+
 /**
  * SVG of a histogram with its Gaussian fit and the spec lines; see {@link histogramChart}.
  * @example histogramSvg({ title: 'offset', binEdges, counts, samples: 1e5, mean: 0, sigma: 2e-3, spec: 5e-3 })

@@ -24,13 +24,24 @@ export {
   twoSidedTail,
 } from './stats/normal.js';
 export { allowedFailure, chipFailure, chipYield, chipYieldFromFailure } from './stats/yield.js';
+export { correctSelection, lnWrongSelection, maxOfNormals, selectionSeparation, wrongSelection } from './stats/bechhofer.js';
 
 // engine/: chunks, executors, schedule
 export { CHUNK_SIZE, RunAborted } from './engine/schedule.js';
 export { ChunkError, createExecutor, defaultWorkers, type Executor } from './engine/pool.js';
 
 // analyses/
-export { linearisedSummary, type LinearisedSummary } from './analyses/linearisedSummary.js';
+export {
+  linearisedEstimate,
+  linearisedSummary,
+  SELECTION_CHIP_YIELD,
+  SELECTION_PROBABILITIES,
+  type GaussianSummary,
+  type LinearisedSummary,
+  type SelectionSummary,
+} from './analyses/linearisedSummary.js';
+export { figureLaw, linearisedFigureSigma, type FigureLaw } from './analyses/linearisedLaw.js';
+export { RESPONSE_LEVELS, RESPONSE_SAMPLES, responseAt, responseEnvelope, type ResponseEnvelope, type ResponseSummary } from './analyses/response.js';
 export { findDesignPoint, type DesignPoint } from './analyses/designPoint.js';
 export {
   simulate,

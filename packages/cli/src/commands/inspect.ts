@@ -1,5 +1,5 @@
 import { compileStage, formatQuantity, stageDefinition, type Design, type Stage } from '@twinfet/core';
-import { linearisedSummary, chipFailure, type LinearisedSummary } from '@twinfet/montecarlo';
+import { linearisedSummary, chipFailure, type LinearisedSummary, type SelectionSummary } from '@twinfet/montecarlo';
 import { renderPairs, renderTable } from '../table.js';
 import { designSummary, figureSummary, figureText, headerLine, pct, sci, shareLabel } from '../describe.js';
 
@@ -71,31 +71,55 @@ export function renderResistors(rows: NonNullable<Stage['resistors']>): string {
   return renderTable(header, body, header.map((_, c) => (c <= 1 ? 'left' : 'right')));
 }
 
-/** The variance-budget table, in the unit of the stage's figure. */
+/**
+ * The variance-budget table, in the unit of the stage's figure (of the figure's sigma^2, or of
+ * the per-cell sigma_c^2 of a selector's Bechhofer form).
+ */
 export function renderBudget(a: LinearisedSummary, design: Pick<Design, 'topology'>): string {
   const def = stageDefinition(design.topology);
   const f = figureText(def.figure);
-  const rows = a.grouped.map((g) => [shareLabel(g.role, g.parameter, def), pct(g.share, 3), f.format(Math.sqrt(g.variance))]);
-  return renderTable(['contribution', 'share of sigma^2', 'sigma part'], rows);
+  const whose = 'gaussian' in a ? undefined : 'each cell';
+  const rows = a.grouped.map((g) => [shareLabel(g.role, g.parameter, def, whose), pct(g.share, 3), f.format(Math.sqrt(g.variance))]);
+  return renderTable(['contribution', `share of ${whose === undefined ? 'sigma' : 'sigma_c'}^2`, 'sigma part'], rows);
+}
+
+/** The linearised lines of a selector (Bechhofer's form) for inspect and run. */
+export function selectionPairs(a: SelectionSummary, format: (x: number) => string): [string, string][] {
+  const y = a.yield;
+  const needed = a.leadFor.map((l) => `${l.probability}: ${format(l.lead)}`).join(', ');
+  return [
+    ['per-cell sigma sigma_c', `${format(a.cellSigma)}  (cell i's input offset dV_T,i - (I_D/gm) dbeta_i/beta at the tie, I_B/N each)`],
+    [`spec L <=`, `${format(y.spec)}  (tau = spec / sigma_c = ${y.tau.toFixed(4)}, ${y.populations} cells)`],
+    ['Bechhofer correct selection', `${yieldFromFailure(y.failure)}  (wrong selection ${sci(y.failure, 4)})`],
+    [`Bechhofer chip yield (${y.chipInstances} selector${y.chipInstances === 1 ? '' : 's'})`, yieldFromFailure(chipFailure(y.failure, y.chipInstances))],
+    ['lead needed for P(correct)', needed],
+    [`lead needed for chip yield ${a.chipLeadFor.chipYield}`, `${format(a.chipLeadFor.lead)} over ${a.chipLeadFor.instances} selector${a.chipLeadFor.instances === 1 ? '' : 's'}`],
+  ];
 }
 
 /** Text form of the inspect report. */
 export function renderInspect(r: InspectReport): string {
   const a = r.analytic;
-  const g = a.gaussian;
   const f = figureText(r.figure);
+  let linearised: [string, string][];
+  if ('gaussian' in a) {
+    const g = a.gaussian;
+    linearised = [
+      [`${f.label} sigma (linearised)`, f.format(a.sigma)],
+      [`spec ${f.magnitude} <=`, `${f.format(g.spec)}  (${g.sigmaLevel.toFixed(3)} sigma)`],
+      ['Gaussian instance yield', `${yieldFromFailure(g.failure)}  (failure ${sci(g.failure, 4)})`],
+      [`Gaussian chip yield (${g.chipInstances} instance${g.chipInstances === 1 ? '' : 's'})`, yieldFromFailure(chipFailure(g.failure, g.chipInstances))],
+    ];
+  } else {
+    linearised = [[`${f.label} (linearised)`, `mean ${f.format(a.mean)}, sigma ${f.format(a.sigma)}`], ...selectionPairs(a, f.format)];
+  }
   const parts = [
     headerLine(r.design, { stageWord: false }),
     '',
     renderOperatingPoint(r.operatingPoint),
     ...(r.resistors === undefined ? [] : ['', renderResistors(r.resistors)]),
     '',
-    renderPairs([
-      [`${f.label} sigma (linearised)`, f.format(a.sigma)],
-      [`spec ${f.magnitude} <=`, `${f.format(g.spec)}  (${g.sigmaLevel.toFixed(3)} sigma)`],
-      ['Gaussian instance yield', `${yieldFromFailure(g.failure)}  (failure ${sci(g.failure, 4)})`],
-      [`Gaussian chip yield (${g.chipInstances} instance${g.chipInstances === 1 ? '' : 's'})`, yieldFromFailure(chipFailure(g.failure, g.chipInstances))],
-    ]),
+    renderPairs(linearised),
     '',
     renderBudget(a, r.design),
   ];

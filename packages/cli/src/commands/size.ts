@@ -1,5 +1,5 @@
-import { closestWord, formatQuantity, InputError, isInputError, parseQuantity, stageDefinition, writeDesign, type Design } from '@twinfet/core';
-import { SIZE_VARIATIONS, sizeDesign, type Confirmation, type SizedPoint, type SizeReport, type SizeTarget, type SizeVary } from '@twinfet/montecarlo';
+import { closestWord, compileStage, formatQuantity, InputError, isInputError, parseQuantity, stageDefinition, writeDesign, type Design } from '@twinfet/core';
+import { figureLaw, SIZE_VARIATIONS, sizeDesign, type Confirmation, type SizedPoint, type SizeReport, type SizeTarget, type SizeVary } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
 import { readCommon, readSpec, withCommonOptions, type CommonFlags } from '../commonOptions.js';
 import { figureSummary, figureText, headerLine, parseFigureOption, pct, sci, type FigureText } from '../describe.js';
@@ -133,7 +133,7 @@ export function renderSize(r: SizeReport, source: string, design: Design): strin
   }
   pairs.push(
     ['failure at spec', `${sci(c.failure, 4)}   ${cl} [${sci(c.failureInterval[0], 4)}, ${sci(c.failureInterval[1], 4)}] (${f.magnitude} > ${mv(r.spec)}${c.sigma === null ? `; ${method}` : ''})`],
-    ['instance yield', `${c.failure === 0 ? `1 (no failures in ${c.samples} samples)` : bound(1 - c.failure)}   Gaussian estimate ${yieldText(1 - r.result.gaussianFailure)}`],
+    ['instance yield', `${c.failure === 0 ? `1 (no failures in ${c.samples} samples)` : bound(1 - c.failure)}   ${figureLaw(compileStage(design)).name} estimate ${yieldText(1 - r.result.gaussianFailure)}`],
     [`chip yield (${r.instances})`, `${bound(c.chipYield)}   ${cl} [${bound(c.chipYieldInterval[0])}, ${bound(c.chipYieldInterval[1])}]`],
     ['target', c.met ? `met: ${r.rule}` : `NOT met (${r.rule})`],
     ['gate area', `varied devices ${um2(r.original.variedArea)} -> ${um2(r.result.variedArea)}; whole stage ${um2(r.original.totalGateArea)} -> ${um2(r.result.totalGateArea)}`],

@@ -70,14 +70,21 @@ export function renderTail(r: HighSigmaReport, design: Pick<Design, 'topology'>)
         ]
       : [`chip failure (${instances})`, `${sci(r.chip.failure, 4)}   ${c} [${sci(r.chip.interval[0], 4)}, ${sci(r.chip.interval[1], 4)}]`];
   const halfWidth = r.relativeHalfWidth === null ? 'n/a' : `${Number((r.relativeHalfWidth * 100).toPrecision(3))}%`;
+  // Mirror-image regions (a selector's competitors) are named as such; a one-sided figure has one side.
+  const regions: [string, string][] =
+    r.mirrorRegions !== undefined
+      ? [['failure regions', `${r.mirrorRegions} mirror images of one another (${r.designPoints[0]?.side ?? ''} and the like), one mixture centre each; the first one's point is shown`]]
+      : f.magnitude === f.symbol
+        ? []
+        : [['by side', `+spec ${sci(r.high, 4)}, -spec ${sci(r.low, 4)}`]];
   return [
     renderPairs([
       ...(plain ? [['method', `plain Monte Carlo with a Clopper-Pearson interval: ${r.methodReason ?? ''}. For the whole distribution use \`twinfet run\``] as [string, string]] : []),
       [`spec ${f.magnitude} <=`, f.format(r.spec)],
       ['failure probability', `${probWithInterval(r.failureProbability, r.interval, c)}${plain ? ' (Clopper-Pearson)' : ''}`],
       ['equivalent sigma level', `${sig(r.sigmaLevel)}   ${c} [${sig(r.sigmaLevelInterval[0])}, ${sig(r.sigmaLevelInterval[1])}] (two-sided)`],
-      ['by side', `+spec ${sci(r.high, 4)}, -spec ${sci(r.low, 4)}`],
-      ['FORM estimate', `${prob(r.form.failureProbability)} (${sig(r.form.sigmaLevel)} sigma)`],
+      ...regions,
+      [r.mirrorRegions === undefined ? 'FORM estimate' : 'FORM estimate (sum over regions)', `${prob(r.form.failureProbability)} (${sig(r.form.sigmaLevel)} sigma)`],
       chip,
       ['samples', `${r.samples} (${r.hits} failing; stop rule ${r.stopRule}; relative half-width ${halfWidth})`],
       ...(plain
@@ -113,7 +120,7 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
   withCommonOptions(
     program
       .command('tail')
-      .description('high-sigma failure probability P(|Vos| > spec) (or of the current error) by importance sampling about the most probable failure points')
+      .description('high-sigma failure probability P(|Vos| > spec) (or of the current error, or P(L > separation) for a selector) by importance sampling about the most probable failure points')
       .argument('<design>', 'design file (YAML or JSON)')
       .option('--spec <V>', "limit overriding the design's spec, e.g. 20mV (an offset) or 1% (a current error)")
       .option('--rel-error <E>', 'stop when the interval half-width is this fraction of the estimate (default 0.05)')

@@ -3,6 +3,7 @@
  * fetched: a content-security policy forbids every load) built from ReportData.
  */
 import type { ConditionsData, ReportData } from './data.js';
+import { linearisedEstimate } from '@twinfet/montecarlo';
 import { esc, num, shellWord, type Section } from './html.js';
 import { areaSection } from './sections/area.js';
 import { budgetSection } from './sections/budget.js';
@@ -36,7 +37,7 @@ function summary(d: ReportData): string {
   const yv = (path: string, y: number, lo: number): string => num(y, y === 1 ? '1' : yieldText(y, yieldDigits(lo)), { path });
   const items: [string, string][] = [
     [`sigma of the ${d.stage.figure.label}`, `${num(r.offset.sigma, q(r.offset.sigma, u), { path: `${F}.sigma`, unit: u })} <small>(${c} [${num(r.offset.sigmaInterval[0], q(r.offset.sigmaInterval[0], u), { path: `${F}.sigmaInterval.0`, unit: u })}, ${num(r.offset.sigmaInterval[1], q(r.offset.sigmaInterval[1], u), { path: `${F}.sigmaInterval.1`, unit: u })}])</small>`],
-    ['spec', `${d.stage.figure.sided === 'two' ? '\u00b1' : '\u2264 '}${num(r.yield.spec, q(r.yield.spec, u), { path: 'yield.spec', unit: u })} <small>(${plain(r.analytic.gaussian.sigmaLevel, 3)} sigma)</small>`],
+    ['spec', `${d.stage.figure.sided === 'two' ? '\u00b1' : '\u2264 '}${num(r.yield.spec, q(r.yield.spec, u), { path: 'yield.spec', unit: u })} <small>(${plain(linearisedEstimate(r.analytic).level, 3)} sigma)</small>`],
     ['instance yield', `${yv('yield.estimate', r.yield.estimate, r.yield.interval[0])} <small>(Monte Carlo, ${r.yield.failures} failures)</small>`],
     [`chip yield (${r.chip.instances})`, yv('chip.estimate', r.chip.estimate, r.chip.interval[0])],
   ];

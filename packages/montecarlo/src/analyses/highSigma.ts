@@ -1,5 +1,6 @@
 import { compileStage, InputError, specLimit, variableDeviation, type Design, type Stage } from '@twinfet/core';
 import { findDesignPoint, type DesignPoint } from './designPoint.js';
+import { findMirroredDesignPoint, type MirroredDesignPoint } from './mirroredDesignPoint.js';
 import type { ImportanceResult, ImportanceTask } from '../engine/messages.js';
 import { normalQuantile, sigmaLevel, sigmaLevelOfTails } from '../stats/normal.js';
 import { createExecutor, defaultWorkers, inThreadExecutor, type Executor } from '../engine/pool.js';
@@ -92,6 +93,12 @@ export interface HighSigmaReport {
   /** Plain Monte Carlo samples for the same relative half-width h: z^2 (1 - p) / (p h^2) (null when this is plain Monte Carlo). */
   readonly equivalentPlainSamples: number | null;
   readonly designPoints: readonly ReportedDesignPoint[];
+  /**
+   * Set when the failure regions are mirror images of one another (a selector's competitors):
+   * how many there are. `designPoints` then holds the first region's point only; every other
+   * region's is its mirror image, at the same distance, and the mixture has one centre per region.
+   */
+  readonly mirrorRegions?: number;
   readonly form: { readonly failureProbability: number; readonly sigmaLevel: number };
   /**
    * Chip failure 1 - (1 - p)^M over M instances and its interval; the chip yield (1 - p)^M and
@@ -159,7 +166,20 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
   const relError = options.relError ?? 0.05;
   const seed = seedText(options.seed);
   const z = normalQuantile(1 - (1 - confidence) / 2);
-  const points = stage.failureComponents(spec).map((c) => findDesignPoint(stage, c));
+  const components = stage.failureComponents(spec);
+  const symmetry = stage.failureSymmetry;
+  let mirrored: MirroredDesignPoint | undefined;
+  let points: DesignPoint[];
+  if (symmetry !== undefined) {
+    mirrored = findMirroredDesignPoint(stage, components[0]!, symmetry.groupSize);
+    points = [mirrored.point];
+  } else points = components.map((c) => findDesignPoint(stage, c));
+  const mixture: Pick<ImportanceTask, 'shifts' | 'mirrored'> =
+    mirrored === undefined
+      ? { shifts: points.map((p) => p.u) }
+      : { shifts: [], mirrored: { groupSize: mirrored.groupSize, groups: mirrored.groups, fixed: mirrored.fixed, own: mirrored.own, rest: mirrored.rest } };
+  // Every mirror image has the same distance, so the regions' FORM sum is copies of the first's.
+  const regions = components.length;
   const fixed = options.samples;
   const maxSamples = fixed ?? options.maxSamples ?? 1e7;
 
@@ -196,7 +216,7 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
     const variance = Math.max(0, sumSquares / n - ps * ps);
     return { ps, ses: Math.sqrt(variance / n), variance };
   };
-  const formTails = points.reduce((acc, p) => acc + p.form, 0);
+  const formTails = mirrored === undefined ? points.reduce((acc, p) => acc + p.form, 0) : regions * points[0]!.form;
   const nearest = Math.min(...points.map((p) => p.distance));
   const inBulk = nearest < BULK_DISTANCE || formTails > BULK_FAILURE;
   const belowDoubleRange = !inBulk && formTails < 1e-300 && Math.exp(-logScale) === 0;
@@ -261,7 +281,7 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
       let planned = 0;
       for (let c = 0; c < round && planned < remaining; c++) {
         const count = Math.min(IMPORTANCE_CHUNK, remaining - planned);
-        tasks.push({ kind: 'importance', design, seed, chunk: chunk++, count, spec, shifts: points.map((p) => p.u), logScale });
+        tasks.push({ kind: 'importance', design, seed, chunk: chunk++, count, spec, ...mixture, logScale });
         planned += count;
       }
       await runChunks(executor, taskList(tasks), consume, {
@@ -295,7 +315,7 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
   const formP = formTails;
   const has = ps > 0;
   const relHalf = has ? (z * ses) / ps : null;
-  const formLevel = sigmaLevelOfTails(points.map((p) => p.distance));
+  const formLevel = sigmaLevelOfTails(mirrored === undefined ? points.map((p) => p.distance) : new Array<number>(regions).fill(points[0]!.distance));
   return {
     spec,
     method: 'importance-sampling',
@@ -318,6 +338,7 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
     relativeVariancePerSample: has ? variance / (ps * ps) : null,
     equivalentPlainSamples: relHalf !== null && relHalf > 0 && p > 0 ? finiteOrNull((z * z * (1 - p)) / p / relHalf / relHalf) : null,
     designPoints: points.map((pt) => describePoint(stage, pt)),
+    ...(mirrored === undefined ? {} : { mirrorRegions: regions }),
     // From the distances, not from formP: beyond ~38 sigma formP underflows to 0 and its level would be Infinity.
     form: { failureProbability: formP, sigmaLevel: formLevel },
     chip: chipFigures(p, lo, hi, instances),

@@ -14,6 +14,7 @@ import { wilson } from '../stats/wilson.js';
 import { CHUNK_SIZE } from '../engine/schedule.js';
 import type { HighSigmaReport } from './highSigma.js';
 import type { LinearisedSummary } from './linearisedSummary.js';
+import type { ResponseSummary } from './response.js';
 
 /** Quantile levels reported for the signed figure and for its magnitude. */
 export const QUANTILE_LEVELS = [0.001, 0.01, 0.5, 0.99, 0.999] as const;
@@ -66,6 +67,11 @@ export interface RunReport {
   readonly histogram: { readonly lo: number; readonly hi: number; readonly binWidth: number; readonly counts: readonly number[]; readonly underflow: number; readonly overflow: number };
   readonly analytic: LinearisedSummary & {
     readonly agreement: { readonly relativeDifference: number; readonly standardErrors: number; readonly consistent: boolean };
+    /**
+     * For a law other than the Gaussian (a selector's Bechhofer form): the Monte Carlo yield
+     * against the law's, in binomial standard errors sqrt(P (1 - P) / N) of the law's P.
+     */
+    readonly yieldAgreement?: { readonly difference: number; readonly standardErrors: number; readonly consistent: boolean };
   };
   readonly yield: {
     readonly spec: number;
@@ -82,6 +88,8 @@ export interface RunReport {
   };
   readonly chip: { readonly instances: number; readonly estimate: number; readonly interval: readonly [number, number] };
   readonly importance?: HighSigmaReport;
+  /** The stage's transfer curve at the spec (a selector's winner's share), nominal and spread. */
+  readonly response?: ResponseSummary;
   readonly nonConverged: number;
   readonly seconds: number;
   readonly samplesPerSecond: number;
@@ -113,6 +121,8 @@ export interface RunTally {
   /** Every finished sample's figure (NaN where a solve failed), when kept. */
   readonly kept: Float64Array | undefined;
   readonly importance: HighSigmaReport | undefined;
+  /** The stage's transfer curve at the spec, for a stage that has one. */
+  readonly response?: ResponseSummary | undefined;
   /** performance.now() at the start of the run. */
   readonly started: number;
 }
@@ -178,6 +188,13 @@ export function assembleRunReport(stage: Stage, t: RunTally): RunReport {
   // (Bonett 2006): sigma / sqrt(2 (n-1)) for a Gaussian, wider for heavy tails.
   const se = 0.5 * sigma * Math.sqrt(Math.max(0, k - (n - 3) / n) / (n - 1));
   const standardErrors = (sigma - analytic.sigma) / se;
+  let yieldAgreement: NonNullable<RunReport['analytic']['yieldAgreement']> | undefined;
+  if (!('gaussian' in analytic)) {
+    const p = analytic.yield.estimate;
+    const zy = (y - p) / Math.sqrt((p * (1 - p)) / n);
+    yieldAgreement = { difference: y - p, standardErrors: zy, consistent: Math.abs(zy) <= AGREEMENT_Z };
+  }
+  const response = t.response;
   const warnings = [...stage.warnings];
   if (nonConverged > 0) warnings.push(`${nonConverged} sample(s) whose balance solve did not converge were left out of every statistic`);
   if (histogram.underflow + histogram.overflow > 0) {
@@ -220,6 +237,7 @@ export function assembleRunReport(stage: Stage, t: RunTally): RunReport {
         standardErrors,
         consistent: Math.abs(standardErrors) <= AGREEMENT_Z,
       },
+      ...(yieldAgreement === undefined ? {} : { yieldAgreement }),
     },
     yield: {
       spec,
@@ -235,6 +253,7 @@ export function assembleRunReport(stage: Stage, t: RunTally): RunReport {
     },
     chip: { instances: m, estimate: chip(y), interval: [chip(yLo), chip(yHi)] },
     ...(importance === undefined ? {} : { importance }),
+    ...(response === undefined ? {} : { response }),
     nonConverged,
     seconds,
     samplesPerSecond: n / seconds,

@@ -8,6 +8,7 @@ import { CHUNK_SIZE, chunkCount, chunkLength, runChunks, RunAborted } from '../e
 import { seedText } from '../random/seed.js';
 import { estimateHighSigma, type HighSigmaReport } from './highSigma.js';
 import { assembleRunReport, type IntervalMethod, type RunReport } from './runReport.js';
+import { responseAt } from './response.js';
 
 export { QUANTILE_LEVELS, AGREEMENT_Z, FEW_FAILURES, type IntervalMethod, type QuantileValue, type RunReport } from './runReport.js';
 /** Offsets are kept (exact quantiles) up to this many samples unless told otherwise. */
@@ -212,6 +213,7 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
     nonConverged,
     kept: offsets === undefined ? undefined : offsets.subarray(0, done),
     importance,
+    response: partial ? undefined : responseAt(stage, spec, seed),
     started,
   });
   return {

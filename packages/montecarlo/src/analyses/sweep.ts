@@ -3,7 +3,8 @@
  * Every point uses the same seed, so neighbouring points share their random streams (common
  * random numbers) and the differences between them are not masked by sampling noise.
  */
-import { compileStage, InputError, linearisedSigma, specLimit, type Design } from '@twinfet/core';
+import { compileStage, InputError, specLimit, type Design } from '@twinfet/core';
+import { linearisedFigureSigma } from './linearisedLaw.js';
 import { createExecutor, defaultWorkers, type Executor } from '../engine/pool.js';
 import { seedText } from '../random/seed.js';
 import { simulate } from './simulate.js';
@@ -38,7 +39,7 @@ export interface SweepPointResult {
   /** |Vos| limit and instances per chip used at this point. */
   readonly spec: number;
   readonly instances: number;
-  /** Linearised offset sigma, volts. */
+  /** Linearised sigma of the figure, volts. */
   readonly analyticSigma: number;
   readonly monteCarlo: {
     readonly samples: number;
@@ -134,7 +135,7 @@ export async function sweepDesigns(designs: readonly Design[], options: SweepOpt
       index,
       spec,
       instances: stage.design.spec.instances,
-      analyticSigma: linearisedSigma(stage),
+      analyticSigma: linearisedFigureSigma(stage),
       monteCarlo: {
         samples: r.evaluated,
         sigma: r.offset.sigma,

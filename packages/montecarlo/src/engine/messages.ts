@@ -39,6 +39,18 @@ export interface ImportanceTask extends TaskBase {
   /** Mixture centres in standard-normal space, each of the stage's dimension. */
   readonly shifts: readonly (readonly number[])[];
   /**
+   * Instead of `shifts`: the groups - 1 centres of mirror-image regions (FailureSymmetry), centre
+   * c having `fixed` on group 0, `own` on group c and `rest` on every other group, so that the
+   * weight of a sample costs O(dimension) rather than O(centres x dimension).
+   */
+  readonly mirrored?: {
+    readonly groupSize: number;
+    readonly groups: number;
+    readonly fixed: readonly number[];
+    readonly own: readonly number[];
+    readonly rest: readonly number[];
+  };
+  /**
    * Weights are accumulated as w e^{logScale}, so that at 26-37 sigma (w ~ e^{-b^2/2}) neither
    * w nor w^2 underflows; the caller divides the sums back.
    */

@@ -50,9 +50,9 @@ export class ChunkRng {
 }
 
 /** Independent purposes draw from disjoint stream families. */
-export type StreamKind = 'montecarlo' | 'importance' | 'coverage';
+export type StreamKind = 'montecarlo' | 'importance' | 'coverage' | 'response';
 
-const STREAM_TAG: Record<StreamKind, number> = { montecarlo: 0x6d6f6e74, importance: 0x696d7073, coverage: 0x636f7665 };
+const STREAM_TAG: Record<StreamKind, number> = { montecarlo: 0x6d6f6e74, importance: 0x696d7073, coverage: 0x636f7665, response: 0x72657370 };
 
 /** 32-bit finaliser of MurmurHash3 (Appleby): a bijection with full avalanche. */
 function fmix32(h: number): number {

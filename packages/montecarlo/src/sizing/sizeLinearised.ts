@@ -7,7 +7,8 @@
  * bisected over the whole range, because sigma need not fall monotonically: lengthening the input
  * pair at fixed bias raises I_D/gm, and in a mirror stage that raises the load terms.
  */
-import { compileStage, groupedBudget, linearisedSigma, type Design, type MismatchParameter } from '@twinfet/core';
+import { compileStage, groupedBudget, type Design, type MismatchParameter } from '@twinfet/core';
+import { linearisedFigureSigma } from '../analyses/linearisedLaw.js';
 import type { SizingFamily } from './resize.js';
 
 /** Grid points per decade of the scale (the floor is located to about 6% in scale). */
@@ -19,7 +20,7 @@ export const BISECTION_RELATIVE_WIDTH = 1e-9;
 export interface FamilyPoint {
   readonly t: number;
   readonly design: Design;
-  /** Linearised offset sigma, volts. */
+  /** Linearised sigma of the figure, volts (the law's figure sigma: see linearisedLaw.ts). */
   readonly sigma: number;
 }
 
@@ -51,7 +52,7 @@ export interface LinearisedFloor {
 /** Linearised sigma of a family at t, volts. */
 export function familySigma(family: SizingFamily, t: number): FamilyPoint {
   const design = family.at(t);
-  return { t, design, sigma: linearisedSigma(compileStage(design)) };
+  return { t, design, sigma: linearisedFigureSigma(compileStage(design)) };
 }
 
 /** The term with the largest share of the linearised sigma^2 of a design. */

@@ -9,6 +9,7 @@ import { compileStage, InputError, stageDefinition, validateDesign, type Design 
 import {
   allowedFailure,
   areaSplit,
+  linearisedEstimate,
   linearisedSummary,
   sigmaLevel,
   SWEEP_SAMPLES,
@@ -106,7 +107,7 @@ export function scaledInput(design: Design, factor: number): Design {
 function point(design: Design, factor: number, spec: number): AreaPoint {
   const d = scaledInput(design, factor);
   const s = linearisedSummary(compileStage(d), spec);
-  return { factor, inputArea: d.input.w * d.input.l, sigma: s.sigma, chipYield: s.gaussian.chipYield };
+  return { factor, inputArea: d.input.w * d.input.l, sigma: s.sigma, chipYield: linearisedEstimate(s).chipYield };
 }
 
 /** Factors of the range that validate, and the first refusal of those that do not. */

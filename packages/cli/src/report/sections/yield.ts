@@ -1,4 +1,5 @@
 /** Section 5: instance and chip yield, the Gaussian estimate and the high-sigma tail. */
+import { linearisedEstimate } from '@twinfet/montecarlo';
 import { chartSvg, type Layer } from '../../chart/chart.js';
 import { categoryAxis, logAxis } from '../../chart/axis.js';
 import { COLOR, DASH, OUTLINE } from '../../chart/style.js';
@@ -22,7 +23,9 @@ function pNum(path: string, p: number): string {
 export function yieldSection(d: ReportData): Section {
   const r = d.run;
   const y = r.yield;
-  const g = r.analytic.gaussian;
+  // The linearised estimate in the figure's own law (Gaussian, or Bechhofer's for a selector).
+  const e = linearisedEstimate(r.analytic);
+  const g = { ...e, sigmaLevel: e.level, yield: 1 - e.failure };
   const is = r.importance;
   const c = `${plain(y.confidence * 100, 3)}%`;
   // Each row gets the decimals that show its own failure part (an interval shares its estimate's).
