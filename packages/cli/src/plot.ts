@@ -1,13 +1,13 @@
 import * as vega from 'vega';
 import { compile } from 'vega-lite';
 import type { TopLevelSpec } from 'vega-lite';
-import type { HistogramInput, SweepInput, SweepPoint } from './plotInput.js';
+import type { HistogramInput, PlotFigure, SweepInput, SweepPoint } from './plotInput.js';
 
 /** Most bars a histogram draws; finer input is merged into groups of adjacent bins. */
 export const MAX_DISPLAY_BINS = 200;
 
-/** Volts to the millivolts every plot shows. */
-const MV_PER_V = 1e3;
+/** The offset in millivolts: what a plot shows when no figure is given. */
+export const OFFSET_PLOT_FIGURE: PlotFigure = { label: 'offset', symbol: 'Vos', unit: 'mV', scale: 1e3 };
 
 /** Points on the drawn Gaussian curve: smooth at the plot's width, still cheap. */
 const CURVE_POINTS = 401;
@@ -19,9 +19,9 @@ const GREEN = '#2a9d5c';
 const ORANGE = '#e08a1e';
 const GREY = '#555555';
 
-export type { HistogramInput, SweepInput, SweepPoint } from './plotInput.js';
+export type { HistogramInput, PlotFigure, SweepInput, SweepPoint } from './plotInput.js';
 
-/** A histogram's bins after merging, edges in volts. */
+/** A histogram's bins after merging, edges in the figure's SI unit. */
 export interface Bins {
   /** Bin edges, length `counts.length + 1`. */
   edges: number[];
@@ -82,18 +82,21 @@ function validateHistogram(input: HistogramInput): void {
   requirePositive('histogram spec', input.spec);
 }
 
-/** Millivolts with three significant digits, for titles. */
-function mv(volts: number): string {
-  return `${Number((volts * MV_PER_V).toPrecision(3))} mV`;
+/** A value in the figure's display unit with three significant digits, for titles. */
+function shown(fig: PlotFigure, x: number): string {
+  return `${Number((x * fig.scale).toPrecision(3))} ${fig.unit}`;
 }
 
 /**
  * The vega-lite spec of an offset histogram: bars (rebinned to at most {@link MAX_DISPLAY_BINS}),
  * the Gaussian N(mean, sigma) scaled to samples * bin width, and rules at -spec and +spec.
- * The x axis is in millivolts. Throws RangeError naming the bad field.
+ * The x axis is in the figure's display unit (millivolts for an offset). Throws RangeError naming the bad field.
  */
 export function histogramSpec(input: HistogramInput): TopLevelSpec {
   validateHistogram(input);
+  const fig = input.figure ?? OFFSET_PLOT_FIGURE;
+  const toDisplay = fig.scale;
+  const mv = (x: number): string => shown(fig, x);
   const bins = rebin(input.binEdges, input.counts, MAX_DISPLAY_BINS);
   const nBins = bins.counts.length;
   const first = bins.edges[0]!;
@@ -103,8 +106,8 @@ export function histogramSpec(input: HistogramInput): TopLevelSpec {
   const binWidth = (last - first) / nBins;
 
   const bars = bins.counts.map((count, i) => ({
-    lo: bins.edges[i]! * MV_PER_V,
-    hi: bins.edges[i + 1]! * MV_PER_V,
+    lo: bins.edges[i]! * toDisplay,
+    hi: bins.edges[i + 1]! * toDisplay,
     count,
     series: 'histogram',
   }));
@@ -116,12 +119,12 @@ export function histogramSpec(input: HistogramInput): TopLevelSpec {
   for (let i = 0; i < CURVE_POINTS; i++) {
     const v = xLo + ((xHi - xLo) * i) / (CURVE_POINTS - 1);
     const z = (v - input.mean) / input.sigma;
-    curve.push({ x: v * MV_PER_V, y: scale * Math.exp(-0.5 * z * z), series: 'Gaussian fit' });
+    curve.push({ x: v * toDisplay, y: scale * Math.exp(-0.5 * z * z), series: 'Gaussian fit' });
   }
 
   const limits = [
-    { x: -input.spec * MV_PER_V, label: '-spec', series: 'spec' },
-    { x: input.spec * MV_PER_V, label: '+spec', series: 'spec' },
+    { x: -input.spec * toDisplay, label: '-spec', series: 'spec' },
+    { x: input.spec * toDisplay, label: '+spec', series: 'spec' },
   ];
 
   const stats = `${input.samples} samples, mean ${mv(input.mean)}, sigma ${mv(input.sigma)}, spec ±${mv(input.spec)}`;
@@ -133,7 +136,7 @@ export function histogramSpec(input: HistogramInput): TopLevelSpec {
     scale: { domain: ['histogram', 'Gaussian fit', 'spec'], range: [BLUE, RED, GREEN] },
     legend: { title: null },
   } as const;
-  const xAxis = { title: 'offset Vos (mV)' };
+  const xAxis = { title: `${fig.label} ${fig.symbol} (${fig.unit})` };
 
   return {
     $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
@@ -225,7 +228,7 @@ const TAIL_FAILURE = 'importance-sampling tail';
 const FAILURE_TARGET = 'target failure';
 
 /**
- * The vega-lite spec of a sweep: offset sigma (mV) on top, failure probability on a log axis
+ * The vega-lite spec of a sweep: the figure's sigma (offset in mV by default) on top, failure probability on a log axis
  * below, against the swept field (`x * xScale`, in `fieldUnit`). Values that are zero cannot sit
  * on the log axis; they are left out and counted in the subtitle. Interval ends at zero are
  * drawn to the bottom of the axis. Throws RangeError naming the bad field.
@@ -234,14 +237,16 @@ export function sweepSpec(input: SweepInput): TopLevelSpec {
   validateSweep(input);
   const xTitle = input.fieldUnit === '' ? input.field : `${input.field} (${input.fieldUnit})`;
   const xOf = (p: SweepPoint): number => p.x * input.xScale;
+  const fig = input.figure ?? OFFSET_PLOT_FIGURE;
+  const toDisplay = fig.scale;
 
-  // Top panel: sigma in millivolts.
-  const analytic = input.points.map((p) => ({ x: xOf(p), sigma: p.analyticSigma * MV_PER_V, series: 'analytic' }));
-  const mcPoints = input.points.flatMap((p) => (p.mcSigma === undefined ? [] : [{ x: xOf(p), sigma: p.mcSigma * MV_PER_V, series: 'Monte Carlo' }]));
+  // Top panel: sigma in the figure's display unit (mV for an offset).
+  const analytic = input.points.map((p) => ({ x: xOf(p), sigma: p.analyticSigma * toDisplay, series: 'analytic' }));
+  const mcPoints = input.points.flatMap((p) => (p.mcSigma === undefined ? [] : [{ x: xOf(p), sigma: p.mcSigma * toDisplay, series: 'Monte Carlo' }]));
   const mcBars = input.points.flatMap((p) =>
     p.mcSigmaLo === undefined || p.mcSigmaHi === undefined
       ? []
-      : [{ x: xOf(p), lo: p.mcSigmaLo * MV_PER_V, hi: p.mcSigmaHi * MV_PER_V, series: 'Monte Carlo' }],
+      : [{ x: xOf(p), lo: p.mcSigmaLo * toDisplay, hi: p.mcSigmaHi * toDisplay, series: 'Monte Carlo' }],
   );
   const sigmaSeries = ['analytic', ...(mcPoints.length > 0 || mcBars.length > 0 ? ['Monte Carlo'] : [])];
   const sigmaColors = [BLUE, ...(sigmaSeries.length > 1 ? [RED] : [])];
@@ -331,7 +336,7 @@ export function sweepSpec(input: SweepInput): TopLevelSpec {
     scale: { domain: failSeries, range: failColors },
     legend: { title: null, labelLimit: 260 },
   } as const;
-  const ySigma = { type: 'quantitative' as const, axis: { title: 'offset sigma (mV)' } };
+  const ySigma = { type: 'quantitative' as const, axis: { title: `${fig.label} sigma (${fig.unit})` } };
   const width = 560;
   const height = 220;
 
@@ -362,7 +367,7 @@ export function sweepSpec(input: SweepInput): TopLevelSpec {
   if (input.sigmaTarget !== undefined) {
     sigmaLayers.push({
       name: 'sigmaTarget',
-      data: { values: [{ y: input.sigmaTarget * MV_PER_V, series: 'target sigma' }] },
+      data: { values: [{ y: input.sigmaTarget * toDisplay, series: 'target sigma' }] },
       mark: { type: 'rule', strokeDash: [6, 4], strokeWidth: 1.5 },
       encoding: { y: { ...ySigma, field: 'y' }, color: sigmaColor },
     });

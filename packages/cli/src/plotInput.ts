@@ -4,37 +4,54 @@
  * exactOptionalPropertyTypes without skipLibCheck).
  */
 
-/** Histogram of sampled input-referred offsets, all values in volts. */
+/**
+ * The figure a plot shows and its display unit: `scale` takes the figure's SI value to `unit`.
+ * Without one, plots show an offset in millivolts.
+ */
+export interface PlotFigure {
+  /** Words for the axis ("offset", "current error"). */
+  label: string;
+  /** Its symbol ("Vos", "e"). */
+  symbol: string;
+  /** Display unit ("mV", "%"). */
+  unit: string;
+  /** Factor from the SI value to the display unit (1e3 for V to mV, 100 for a fraction in %). */
+  scale: number;
+}
+
+/** Histogram of a sampled figure (input-referred offsets by default), all values in its SI unit (volts for an offset). */
 export interface HistogramInput {
   /** Plot title. */
   title: string;
-  /** Bin edges in volts, increasing, length `counts.length + 1`. */
+  /** Bin edges in the figure's SI unit, increasing, length `counts.length + 1`. */
   binEdges: readonly number[];
   /** Samples in each bin. */
   counts: readonly number[];
   /** Total Monte Carlo samples (including any that fell outside the bins). */
   samples: number;
-  /** Sample mean of the offset, volts. */
+  /** Sample mean of the figure. */
   mean: number;
-  /** Sample standard deviation of the offset, volts (> 0). */
+  /** Sample standard deviation of the figure (> 0). */
   sigma: number;
-  /** Offset specification in volts (> 0): rules are drawn at -spec and +spec. */
+  /** Specification of the figure (> 0): rules are drawn at -spec and +spec. */
   spec: number;
   /** Extra line under the title (the sample statistics line is always shown). */
   subtitle?: string;
+  /** What the values are (default: the offset in mV). */
+  figure?: PlotFigure;
 }
 
-/** One point of a parameter sweep; sigmas in volts, yields and probabilities as fractions. */
+/** One point of a parameter sweep; sigmas in the figure's SI unit (volts for an offset), yields and probabilities as fractions. */
 export interface SweepPoint {
   /** Swept value in the field's base unit (for example metres). */
   x: number;
-  /** Offset sigma from the linearised mismatch model, volts. */
+  /** Sigma from the linearised mismatch model. */
   analyticSigma: number;
-  /** Monte Carlo offset sigma, volts. */
+  /** Monte Carlo sigma. */
   mcSigma?: number;
-  /** Lower end of the Monte Carlo sigma's confidence interval, volts. */
+  /** Lower end of the Monte Carlo sigma's confidence interval. */
   mcSigmaLo?: number;
-  /** Upper end of the Monte Carlo sigma's confidence interval, volts. */
+  /** Upper end of the Monte Carlo sigma's confidence interval. */
   mcSigmaHi?: number;
   /** Monte Carlo yield, the fraction of samples within spec. */
   yield?: number;
@@ -64,8 +81,10 @@ export interface SweepInput {
   log: boolean;
   /** The swept points. */
   points: readonly SweepPoint[];
-  /** Offset sigma target in volts: drawn as a horizontal rule. */
+  /** Sigma target in the figure's SI unit: drawn as a horizontal rule. */
   sigmaTarget?: number;
   /** Yield target as a fraction: 1 - yieldTarget is drawn as the failure target. */
   yieldTarget?: number;
+  /** What the sigmas are of (default: the offset in mV). */
+  figure?: PlotFigure;
 }
