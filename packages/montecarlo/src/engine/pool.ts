@@ -206,6 +206,10 @@ export function startingPoolExecutor(workers: number, chunks?: number): Executor
     fastestMs = Math.min(fastestMs, ms);
   };
   let inPool = 0;
+  // Chunks run here one after another, each in its own turn of the event loop, so that a
+  // SIGINT or an abort between two of them is seen before the next starts (lanes waiting on
+  // the same turn would otherwise run back to back).
+  let hereTail: Promise<unknown> = Promise.resolve();
   const worthStarting = (): boolean => chunks === undefined || (timedHere >= 2 && fastestMs * (chunks - dispatched) > POOL_WORTH_MS);
   return {
     threads: workers,
@@ -222,7 +226,9 @@ export function startingPoolExecutor(workers: number, chunks?: number): Executor
           inPool--;
         }
       }
-      return runHere(task, signal, timed);
+      const mine = hereTail.then(() => runHere(task, signal, timed));
+      hereTail = mine.catch(() => undefined);
+      return mine;
     },
     async close() {
       closed = true;
