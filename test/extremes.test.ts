@@ -39,7 +39,7 @@ function withBetaSigma(d: Design, fraction: number): Design {
   };
 }
 
-/** Largest per-device sigma(dbeta/beta) of a design, fraction (Pelgrom 1989 per-device convention, DOMAIN.md). */
+/** Largest per-device sigma(dbeta/beta) of a design, fraction (A_beta / sqrt(2 W L): Pelgrom 1989 with one draw per device). */
 function maxBetaSigma(d: Design): number {
   const devices = d['load'] === undefined ? [d.input] : [d.input, d['load'] as DeviceGeometry];
   return Math.max(...devices.map((g) => d.process[g.polarity]!.abeta / Math.sqrt(2 * g.w * g.l)));
@@ -93,7 +93,7 @@ function expectFiniteAndSensible(d: Design, o: Outcome): void {
   expect(run.offset.sigma / linear).toBeGreaterThan(0.5);
   expect(run.offset.sigma / linear).toBeLessThan(2);
   if (maxBetaSigma(d) <= 0.02 && run.nonConverged === 0) {
-    // Small mismatch: the exact sigma agrees with the linearised one to well under 1% (DOMAIN.md).
+    // Small mismatch: the exact sigma agrees with the linearised one to well under 1% (first-order model, Kinget 2005).
     // Allowance: 4 standard errors of a sample sigma, sigma / sqrt(2 (N - 1)), plus that 1%.
     const se = run.offset.sigma / Math.sqrt(2 * (run.evaluated - 1));
     expect(Math.abs(run.offset.sigma - linear)).toBeLessThan(4 * se + 0.01 * linear);
@@ -140,7 +140,7 @@ describe.each(TOPOLOGIES)('%s stage', (topology) => {
 
   it('sigma(dbeta/beta) of 50% per device: finite numbers although far from linear', async () => {
     const d = withBetaSigma(base, 0.5);
-    // The per-device sigma is what was asked for (Pelgrom per-device convention, DOMAIN.md); exact to rounding.
+    // The per-device sigma is what was asked for (A / sqrt(2 W L), Pelgrom 1989 with one draw per device); exact to rounding.
     expect(Math.abs(compileStage(d).variables[1]!.sigma - 0.5)).toBeLessThan(1e-12);
     const o = await evaluate(d);
     expectFiniteAndSensible(d, o);
@@ -184,7 +184,7 @@ describe('beyond the design limits: a clear refusal naming the field', () => {
     } catch (e) {
       caught = e;
     }
-    // Exact: the project's own error type, the field path, one line (STYLE.md 7).
+    // Exact: the project's own error type, the field path, one line (this project's rule).
     expect(caught).toBeInstanceOf(InputError);
     expect((caught as InputError).field).toBe(field);
     expect((caught as InputError).message).not.toContain('\n');
@@ -214,8 +214,9 @@ describe('through the command line', () => {
     expect(nonFinitePaths(report)).toEqual([]);
     const tail = report as unknown as HighSigmaReport;
     // FORM sigma level from the design-point distance, although 2 Phi(-492) underflows to 0:
-    // spec / sigma_lin = 10 mV / 20.309 uV = 492.40 for this design (computed from the DOMAIN.md
-    // mirror formula); the boundary is nearly linear here, so 1% is generous.
+    // spec / sigma_lin = 10 mV / 20.309 uV = 492.40 for this design (Kinget's mirror form with
+    // the EKV gm/I_D, computed by test/fixtures/demo_sigma.py); the boundary is nearly linear
+    // here, so 1% is generous (common practice, no source).
     expect(Math.abs(tail.form.sigmaLevel / 492.4 - 1)).toBeLessThan(0.01);
     expect(tail.failureProbability).toBe(0); // exact: below the smallest double
   });

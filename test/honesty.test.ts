@@ -5,7 +5,7 @@
  * Every run is seeded, so every count below is fixed and the file is repeatable. The truth comes
  * from a design whose offset is exactly linear in the draws (the beta term is ~1e-10 of the V_T
  * term), so the offset is Gaussian with the linearised sigma, and P(|Vos| > k sigma) = 2 Phi(-k)
- * (DOMAIN.md "In the linear case the exact answer is 2 Phi(-spec / sigma)").
+ * (a Gaussian offset: Abramowitz & Stegun 1964, 26.2).
  *
  * Coverage thresholds: with R repeats a coverage estimate has standard error
  * sqrt(0.95 * 0.05 / R) = 0.69% at R = 1000, so 93% is 2.9 standard errors below the nominal 95%.
@@ -84,7 +84,7 @@ describe('coverage of the chi-square sigma interval (1000 seeded runs of 2000 sa
       if (sigma >= rep.offset.sigmaInterval[0] && sigma <= rep.offset.sigmaInterval[1]) covered++;
     }
     measured['chi-square sigma'] = covered / REPEATS;
-    // Exact 95% for normal data ((N-1) s^2 / sigma^2 ~ chi-square, DOMAIN.md); floor 2.9 SE below.
+    // Exact 95% for normal data ((N-1) s^2 / sigma^2 ~ chi-square with N-1 degrees of freedom); floor 2.9 SE below.
     expect(covered / REPEATS).toBeGreaterThanOrEqual(FLOOR);
   });
 });
@@ -147,7 +147,7 @@ describe('the normal generator (ziggurat on the chunk streams)', () => {
 describe('high-sigma estimate against the Gaussian closed form', () => {
   it('at 6 sigma on the linear pair: within 4 standard errors of 2 Phi(-6) = 1.973175290e-9', async () => {
     const rep = await estimateHighSigma(at(6), { seed: 'six-sigma', executor });
-    const truth = 1.97317529e-9; // DOMAIN.md, A&S 1964 ch. 26 (two-sided tail at 6 sigma)
+    const truth = 1.97317529e-9; // A&S 1964 26.2, erfc(6/sqrt 2) (test/fixtures/check_values.py)
     expect(Math.abs(rep.failureProbability - truth)).toBeLessThan(4 * rep.standardError);
     expect(rep.interval[0]).toBeLessThanOrEqual(truth);
     expect(rep.interval[1]).toBeGreaterThanOrEqual(truth);

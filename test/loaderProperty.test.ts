@@ -7,7 +7,7 @@
  * Stronger than packages/cli/test/designFile.test.ts: valid designs are mutated field by field
  * with extreme numbers (subnormals, 1e300, -0, NaN, +-Infinity), numbers-with-units of every
  * dimension and absurd magnitude, nulls, lists and mappings, and written as YAML so that .nan,
- * .inf and plain scalars go through the YAML reader too. The rule is this project's (STYLE.md 7;
+ * .inf and plain scalars go through the YAML reader too. The rule is this project's (
  * core/errors.ts: "anything that is not an InputError is a bug"): common practice, no source.
  */
 import { compileStage, isInputError, linearisedSigma, type Design } from '@twinfet/core';

@@ -26,17 +26,21 @@ export interface CliResult {
 export interface RunCliOptions {
   /** Extra environment variables (added to this process's environment). */
   readonly env?: Readonly<Record<string, string>>;
-  /** Kill the process after this long (a hang guard), ms; default 30 s. */
+  /** Kill the process after this long (a hang guard, not a speed check), ms; default 120 s. */
   readonly timeoutMs?: number;
   /** Called once the process has started, with the child (to send it signals). */
   readonly onSpawn?: (child: import('node:child_process').ChildProcess) => void;
+  /** Options for node itself, before the CLI entry (e.g. `--import` of a test probe). */
+  readonly nodeArgs?: readonly string[];
+  /** Called with all of stderr so far each time more arrives (to react to what the child reports). */
+  readonly onStderr?: (text: string, child: import('node:child_process').ChildProcess) => void;
 }
 
 /** Runs `node packages/cli/bin/twinfet.js ...args` from the repository root. */
 export function runCli(args: readonly string[], options: RunCliOptions = {}): Promise<CliResult> {
   return new Promise((resolve, reject) => {
     const started = performance.now();
-    const child = spawn(process.execPath, [CLI, ...args], {
+    const child = spawn(process.execPath, [...(options.nodeArgs ?? []), CLI, ...args], {
       cwd: REPO_ROOT,
       env: { ...process.env, ...options.env },
       stdio: ['ignore', 'pipe', 'pipe'],
@@ -44,8 +48,11 @@ export function runCli(args: readonly string[], options: RunCliOptions = {}): Pr
     let stdout = '';
     let stderr = '';
     child.stdout.setEncoding('utf8').on('data', (s: string) => (stdout += s));
-    child.stderr.setEncoding('utf8').on('data', (s: string) => (stderr += s));
-    const timer = setTimeout(() => child.kill('SIGKILL'), options.timeoutMs ?? 30_000);
+    child.stderr.setEncoding('utf8').on('data', (s: string) => {
+      stderr += s;
+      options.onStderr?.(stderr, child);
+    });
+    const timer = setTimeout(() => child.kill('SIGKILL'), options.timeoutMs ?? 120_000);
     child.on('error', (e) => {
       clearTimeout(timer);
       reject(e);

@@ -1,6 +1,7 @@
-import { InputError, parseQuantity } from '@twinfet/core';
+import type { Design } from '@twinfet/core';
 import { defaultWorkers, RUN_LIMITS } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
+import { parseFigureOption } from './describe.js';
 import { parseCount, parseFraction, parseSeed } from './options.js';
 
 /** Options several commands share, as given on the command line. */
@@ -21,20 +22,20 @@ export function withCommonOptions(c: Command): Command {
     .option('--json', 'print one JSON object on stdout instead of the text report');
 }
 
-/** The parsed common options. */
-export function readCommon(flags: CommonFlags): { seed?: string; workers: number; confidence: number; spec?: number } {
-  const out: { seed?: string; workers: number; confidence: number; spec?: number } = {
+/**
+ * The parsed common options. `--spec` is read later, by {@link readSpec}, once the design says
+ * what its figure is (a voltage for an offset, a percentage for a current error).
+ */
+export function readCommon(flags: CommonFlags): { seed?: string; workers: number; confidence: number } {
+  const out: { seed?: string; workers: number; confidence: number } = {
     workers: flags.workers === undefined ? defaultWorkers() : parseCount(flags.workers, '--workers', ...RUN_LIMITS.workers),
     confidence: flags.confidence === undefined ? 0.95 : parseFraction(flags.confidence, '--confidence', '0.95'),
   };
   if (flags.seed !== undefined) out.seed = parseSeed(flags.seed);
-  if (flags.spec !== undefined) out.spec = parseSpec(flags.spec);
   return out;
 }
 
-/** --spec as a voltage ("20mV", "20 mV", or volts). */
-export function parseSpec(text: string): number {
-  const v = parseQuantity(text, 'voltage', '--spec');
-  if (!(v > 0)) throw new InputError('--spec', `expected a positive offset limit such as 20mV, got "${text}"`);
-  return v;
+/** --spec in the unit of the design's figure ("20mV" for an offset, "1%" for a current error), when given. */
+export function readSpec(flags: CommonFlags, design: Design): number | undefined {
+  return flags.spec === undefined ? undefined : parseFigureOption(flags.spec, '--spec', design, 'limit');
 }

@@ -82,7 +82,7 @@ function parseWith(change: (d: Data) => void): Design {
   return parseDesign(JSON.stringify(d), 'demo.json');
 }
 
-// U_T = kT/q with the exact 2019 SI constants (DOMAIN.md "Constants").
+// U_T = kT/q with the exact 2019 SI constants (BIPM, The International System of Units, 9th ed., 2019).
 const K_B = 1.380649e-23;
 const Q_E = 1.602176634e-19;
 
@@ -347,7 +347,7 @@ describe('field problems (each one line, naming the field and the bad value)', (
     ['input.polarity', (d: Data) => (d.input.polarity = 'q'), 'expected n or p', 'got "q"'],
     ['input.polarity', (d: Data) => (d.input.polarity = 'N'), 'expected n or p', 'did you mean "n"?'],
     ['input.polarity', (d: Data) => (d.input.polarity = false), 'expected n or p', 'got false'],
-    ['topology', (d: Data) => (d.topology = 'cascode'), 'expected simple, mirror or resistor', 'got "cascode"'],
+    ['topology', (d: Data) => (d.topology = 'cascode'), 'expected simple, mirror, resistor, folded or current-mirror', 'got "cascode"'],
     ['topology', (d: Data) => (d.topology = 'miror'), 'did you mean "mirror"?'],
     ['process.p.vt0', (d: Data) => (d.process.p.vt0 = '-0.5 V'), 'magnitudes', '"-0.5 V"'],
     ['process.n.vt0', (d: Data) => (d.process.n.vt0 = '0.45 A'), 'expected a voltage', '"0.45 A"'],
@@ -505,6 +505,7 @@ describe('spelling suggestions', () => {
         const d = editDistance(a, b);
         return d === editDistance(b, a) && d <= Math.max([...a].length, [...b].length) && (d === 0) === (a === b);
       }),
+      { seed: 1495 },
     );
   });
 
@@ -528,7 +529,7 @@ describe('property: parseDesign returns a valid design or throws InputError, nev
   }
 
   it('random JSON values (fc.jsonValue)', () => {
-    fc.assert(fc.property(fc.jsonValue(), (v) => behaves(JSON.stringify(v) ?? '')), { numRuns: 500 });
+    fc.assert(fc.property(fc.jsonValue(), (v) => behaves(JSON.stringify(v) ?? '')), { seed: 1523, numRuns: 500 });
   });
 
   it('random values of any shape (fc.anything) through JSON.stringify', () => {
@@ -537,12 +538,12 @@ describe('property: parseDesign returns a valid design or throws InputError, nev
         const text = JSON.stringify(v) ?? '';
         return behaves(text);
       }),
-      { numRuns: 500 },
+      { seed: 1527, numRuns: 500 },
     );
   });
 
   it('random text (not JSON at all)', () => {
-    fc.assert(fc.property(fc.string({ maxLength: 200 }), behaves), { numRuns: 500 });
+    fc.assert(fc.property(fc.string({ maxLength: 200 }), behaves), { seed: 1537, numRuns: 500 });
   });
 
   // Mutations of the valid design: replace, delete or add at a random path. Values are drawn

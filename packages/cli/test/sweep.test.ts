@@ -51,7 +51,7 @@ describe('sweep fields', () => {
     };
     expect(msg(() => sweepField('inptu.w', demoDesign))).toContain('did you mean "input.w"?');
     expect(msg(() => sweepField('gain', demoDesign))).toContain('expected a numeric design field');
-    expect(msg(() => sweepField('load.w', simple))).toContain('needs a load (the mirror or resistor stages have one)');
+    expect(msg(() => sweepField('load.w', simple))).toContain('needs a load (the mirror, resistor or folded stages have one)');
     expect(msg(() => sweepField('process.n.avt', simple))).toContain('no process.n');
   });
 
@@ -128,7 +128,7 @@ describe('twinfet sweep (end to end, the built CLI)', () => {
       [demo, ['--from', '1um', '--to', '2um'], /^twinfet: --vary: missing/],
       [demo, ['--vary', 'process.n.rho', '--from', '0', '--to', '1.5'], /^twinfet: --to: process\.n\.rho = 1\.5 is not a valid design/],
       [demo, ['--vary', 'spec.offset', '--from', '1mV', '--to', '5mV', '--spec', '2mV'], /^twinfet: --spec: cannot be combined with --vary spec\.offset/],
-      [senseAmp, ['--vary', 'load.w', '--from', '1um', '--to', '2um'], /^twinfet: --vary: load\.w needs a load \(the mirror or resistor stages have one\)/],
+      [senseAmp, ['--vary', 'load.w', '--from', '1um', '--to', '2um'], /^twinfet: --vary: load\.w needs a load \(the mirror, resistor or folded stages have one\)/],
       [demo, ['--vary', 'input.w', '--from', '1um', '--to', '2um', '--plot', 'x.png'], /^twinfet: --plot: expected a file name ending in \.svg/],
     ];
     for (const [file, args, re] of cases) {

@@ -12,6 +12,8 @@ export { validateDesign, specLimit, designKeys } from './validateDesign.js';
 export * from './compileStage.js';
 export * from './linearised.js';
 export { MIRROR_TOLERANCE, MIRROR_MAX_ITERATIONS } from './stages/mirror.js';
+export { FOLDED_TOLERANCE, FOLDED_MAX_ITERATIONS } from './stages/folded.js';
+export { CURRENT_MIRROR_CAUTION } from './stages/currentMirror.js';
 export { parseDesign, type DesignFormat, type ParseOptions } from './parse/parseDesign.js';
 export { closestWord, editDistance } from './parse/didYouMean.js';
 export { writeDesign, shiftedDecimal } from './parse/writeDesign.js';

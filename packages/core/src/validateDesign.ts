@@ -8,7 +8,7 @@ import { InputError } from './errors.js';
 import { DESIGN_LIMITS, MAX_DEVICE_SIGMA_BETA } from './limits.js';
 import { closestWord } from './parse/didYouMean.js';
 import type { BlockDefinition, FieldDefinition, StageDefinition } from './stages/definition.js';
-import { STAGES, stageDefinition, topologiesWith } from './stages/registry.js';
+import { alternatives, STAGES, stageDefinition, topologiesWith } from './stages/registry.js';
 import { fieldPath } from './parse/fieldReader.js';
 
 function shown(value: unknown): string {
@@ -95,7 +95,7 @@ export function unknownDesignKey(def: StageDefinition, key: string): InputError 
   const others = topologiesWith(key);
   if (others.length > 0) {
     const what = def.topology === 'simple' && key === 'load' ? 'a simple stage has ideal loads' : `a ${def.topology} stage has no ${key}`;
-    return new InputError(key, `${what}; remove ${key} or set topology: ${others.join(' or ')}`);
+    return new InputError(key, `${what}; remove ${key} or set topology: ${alternatives(others)}`);
   }
   const guess = closestWord(key, designKeys(def));
   const hint = guess === undefined ? `expected one of ${designKeys(def).join(', ')}` : `did you mean "${guess}"?`;
@@ -223,7 +223,12 @@ export function validateDesign(design: Design): Design {
   for (const key of Object.keys(design.spec)) if (key !== fig.specKey && key !== 'instances') throw unknownSpecKey(def, key);
   const limit = design.spec[fig.specKey];
   if (limit === undefined) throw new InputError(`spec.${fig.specKey}`, `missing; add ${fig.example}`);
-  within(limit, `spec.${fig.specKey}`, `${fig.label} limit`, fig.limits, fig.unit === '' ? '' : fig.unit);
+  if (fig.unit === '') {
+    // A dimensionless figure is written and shown in %: so are its limits.
+    const v = positive(limit, `spec.${fig.specKey}`, `${fig.label} limit`);
+    const [lo, hi] = fig.limits;
+    if (v < lo || v > hi) throw new InputError(`spec.${fig.specKey}`, `expected a ${fig.label} limit ${lo === 0 ? 'above 0 %' : `from ${100 * lo} %`} up to ${100 * hi} %, got ${Number((100 * v).toPrecision(6))} %`);
+  } else within(limit, `spec.${fig.specKey}`, `${fig.label} limit`, fig.limits, fig.unit);
   if (design.spec.instances !== undefined) wholeNumber(design.spec.instances, 'spec.instances', 'instances per chip', DESIGN_LIMITS.instances);
   def.validate?.(design);
   return withDefaults(design);

@@ -28,7 +28,7 @@ const all: [string, Design][] = [
 ];
 
 describe('linearised sigma against the closed forms (reference values)', () => {
-  it('DOMAIN.md check values (computed from Pelgrom 1989 / Kinget 2005)', () => {
+  it('check values computed from Pelgrom 1989 / Kinget 2005 (test/fixtures/check_values.py)', () => {
     // A_VT = 5 mV*um, A_beta = 1 %*um, gm/I_D = 10 /V. Quoted to 5 figures: 5e-5 relative.
     expect(rel(simpleStageSigma(pairSigma(5e-9, 5e-6, 5e-6), pairSigma(1e-8, 5e-6, 5e-6), 0.1), 1.0198e-3)).toBeLessThan(5e-5);
     expect(rel(simpleStageSigma(pairSigma(5e-9, 1e-6, 1e-6), pairSigma(1e-8, 1e-6, 1e-6), 0.1), 5.099e-3)).toBeLessThan(5e-5);
@@ -139,7 +139,7 @@ describe('offset properties (fast-check)', () => {
     );
   });
 
-  it('simple stage: the exact offset equals the DOMAIN.md closed form written out', () => {
+  it('simple stage: the exact offset equals the closed form written out (EKV inverse, Enz, Krummenacher & Vittoz, AICSP 8, 1995)', () => {
     const st = compileStage(simpleDesign);
     const [m1] = st.operatingPoint;
     const p = demoProcess.n;
@@ -159,7 +159,11 @@ describe('offset properties (fast-check)', () => {
   });
 });
 
-/** An independent solve of the mirror balance straight from DOMAIN.md: bisection on I1. */
+/**
+ * An independent solve of the mirror balance from its definition: M3 (diode) carries I1, M4 at
+ * the same V_GS carries I4 = I_S4 F(v(I1/I_S3) - (V_T4 - V_T3)/(n U_T)) (EKV 1995), and
+ * I1 + I4 = I_B; bisection on I1.
+ */
 function mirrorReference(st: Stage, u: Float64Array): number {
   const d = st.design;
   const [m1, , m3] = st.operatingPoint;
@@ -187,7 +191,7 @@ function mirrorReference(st: Stage, u: Float64Array): number {
 }
 
 describe('mirror balance solve', () => {
-  it('agrees with an independent bisection on I1 + I4(I1) = I_B (DOMAIN.md definition)', () => {
+  it('agrees with an independent bisection on I1 + I4(I1) = I_B (the balance definition above)', () => {
     for (const d of [mirrorDesign, pDesign, withChanges(mirrorDesign, { tail: 2e-3 }), withChanges(mirrorDesign, { tail: 1e-12 })]) {
       const st = compileStage(d);
       fc.assert(

@@ -187,7 +187,7 @@ describe('parseQuantity: refused values', () => {
           return isInputError(e) && e.field === 'p' && !e.message.includes('\n');
         }
       }),
-      { numRuns: 2000 },
+      { seed: 1181, numRuns: 2000 },
     );
   });
 });
@@ -208,7 +208,7 @@ describe('parseQuantity: unit algebra properties', () => {
           return Math.abs(v - x * 10 ** pow) <= 1e-15 * Math.abs(x * 10 ** pow);
         },
       ),
-      { numRuns: 500 },
+      { seed: 1202, numRuns: 500 },
     );
   });
 
@@ -219,6 +219,7 @@ describe('parseQuantity: unit algebra properties', () => {
         const b = parseQuantity(`${x} um·mV`, 'avt', 'a');
         return Math.abs(a - b) <= 1e-15 * Math.abs(a);
       }),
+      { seed: 1216 },
     );
   });
 
@@ -280,7 +281,7 @@ describe('formatQuantity', () => {
         const back = parseQuantity(formatQuantity(x, unit), dim, 'r');
         return Math.abs(back - x) <= 1e-3 * Math.abs(x);
       }),
-      { numRuns: 2000 },
+      { seed: 1277, numRuns: 2000 },
     );
   });
 
@@ -292,6 +293,7 @@ describe('formatQuantity', () => {
         const back = parseQuantity(formatQuantity(k, 'C'), 'temperature', 't');
         return Math.abs(back - k) <= 1e-3 * k;
       }),
+      { seed: 1290 },
     );
   });
 });

@@ -1,8 +1,9 @@
 /**
  * Speed and memory benchmark (`pnpm bench`): ns/sample of the chunk function in one thread,
  * samples/s of whole runs with 1 and with all workers, peak memory of a 1e8-sample run that
- * keeps no samples, the wall time of a 6-sigma high-sigma estimate through the CLI, and the wall
- * time of a design-review report at 1e6 samples (../../cli/bench/report.ts).
+ * keeps no samples, the wall time of a 6-sigma high-sigma estimate through the CLI, how long
+ * cancellation takes (abort() through the API, SIGINT through the CLI), and the design-review
+ * report at 1e6 samples (../../cli/bench/report.ts).
  * It prints figures; it asserts nothing (targets are checked by reading them).
  */
 import { execFileSync } from 'node:child_process';
@@ -115,6 +116,65 @@ console.log(`  pool start-up plus one 131072-sample run with ${defaultWorkers()}
   times.sort((a, b) => a - b);
   console.log('');
   console.log(`tail: 6 sigma (spec ${spec}) on comparator-demo: p = ${r.failureProbability.toExponential(3)} +-${(r.relativeHalfWidth * 100).toFixed(1)}% from ${r.samples} samples; wall ${times[0]!.toFixed(0)}-${times[times.length - 1]!.toFixed(0)} ms (median ${times[2]!.toFixed(0)} ms) including Node start-up; plain Monte Carlo would need ${r.equivalentPlainSamples.toExponential(2)} samples`);
+}
+
+// Cancellation latency (timed here, not in the tests, which check the order of events instead):
+// abort() to the rejection of a long run on a warm 2-worker pool, and SIGINT to the exit of a
+// long `twinfet run` through the CLI.
+{
+  const design = await loadDesign(`${root}examples/comparator-demo.yaml`);
+  const executor = createExecutor(2);
+  const lags: number[] = [];
+  try {
+    for (let i = 0; i < 5; i++) {
+      const ac = new AbortController();
+      let abortedAt = 0;
+      const run = simulate(design, {
+        samples: 1e9,
+        executor,
+        signal: ac.signal,
+        keepOffsets: false,
+        // Abort from inside the run, once a few chunks are done, so the threads are busy.
+        onProgress: (done) => {
+          if (abortedAt === 0 && done >= 4 * 65_536) {
+            abortedAt = performance.now();
+            ac.abort();
+          }
+        },
+      });
+      await run.catch(() => undefined);
+      lags.push(performance.now() - abortedAt);
+    }
+  } finally {
+    await executor.close();
+  }
+  // SIGINT once the run is under way: the test probe (test/support/chunkProbe.mjs) reports the
+  // first finished chunk on stderr, and the signal is sent then.
+  const sigint: number[] = [];
+  const bin = `${root}packages/cli/bin/twinfet.js`;
+  const probe = `${root}test/support/chunkProbe.mjs`;
+  const { spawn } = await import('node:child_process');
+  for (let i = 0; i < 3; i++) {
+    sigint.push(
+      await new Promise<number>((resolve) => {
+        const child = spawn(process.execPath, ['--import', probe, bin, 'run', `${root}examples/comparator-demo.yaml`, '--samples', '1e9', '--workers', '2', '--json'], { stdio: ['ignore', 'ignore', 'pipe'] });
+        let sentAt = 0;
+        let err = '';
+        child.stderr.setEncoding('utf8').on('data', (text: string) => {
+          err += text;
+          if (sentAt === 0 && err.includes('probe: first chunk done')) {
+            sentAt = performance.now();
+            child.kill('SIGINT');
+          }
+        });
+        child.on('close', () => resolve(performance.now() - sentAt));
+      }),
+    );
+  }
+  lags.sort((a, b) => a - b);
+  sigint.sort((a, b) => a - b);
+  console.log('');
+  console.log(`cancellation: abort() to rejection ${lags[0]!.toFixed(1)}-${lags[lags.length - 1]!.toFixed(1)} ms (2 workers, comparator-demo, 5 runs); SIGINT to exit of \`twinfet run\` ${sigint[0]!.toFixed(0)}-${sigint[sigint.length - 1]!.toFixed(0)} ms (3 runs)`);
 }
 
 reportBench(quick);

@@ -24,8 +24,8 @@ function directBinomialCdf(k: number, n: number, p: number): number {
 }
 
 describe('clopperPearson: reference values', () => {
-  // DOMAIN.md "Confidence intervals", computed from the Clopper & Pearson (Biometrika 1934)
-  // definition. Checked to 4 significant figures (half a unit in the 4th): DOMAIN's 5/1000
+  // Computed from the Clopper & Pearson (Biometrika 26(4), 1934) definition by
+  // test/fixtures/check_values.py. Checked to 4 significant figures (half a unit in the 4th): the 5/1000
   // upper bound 0.011630 is a rounding of 0.0116295 (the exact value is 0.01162947, see the
   // 60-digit table below), so its 5th figure cannot be held to.
   it('0/1000 failures gives [0, 0.003682]', () => {
@@ -48,7 +48,7 @@ describe('clopperPearson: reference values', () => {
   });
 
   it('one-sided 95% upper bound at 0/1000 is 0.0029912 (rule of three ~ 3/n)', () => {
-    // DOMAIN.md, computed; Hanley & Lippman-Hand, JAMA 249(13), 1983 for 1 - 0.05^(1/n).
+    // Computed (test/fixtures/check_values.py); Hanley & Lippman-Hand, JAMA 249(13), 1983 for 1 - 0.05^(1/n).
     const u = oneSidedUpper(0, 1000, 0.95);
     expect(Math.abs(u - 0.0029912)).toBeLessThanOrEqual(0.5e-6); // 4 significant figures
     // Closed form 1 - 0.05^(1/n), computed: the zero-failure path must match it to rounding.

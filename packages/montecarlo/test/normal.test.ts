@@ -13,7 +13,7 @@ function relErr(actual: number, expected: number): number {
   return Math.abs(actual - expected) / Math.abs(expected);
 }
 
-describe('normal: Gaussian table (Abramowitz & Stegun 1964, ch. 26, via DOMAIN.md)', () => {
+describe('normal: Gaussian table (Abramowitz & Stegun 1964, table 26.1; test/fixtures/check_values.py)', () => {
   // Yield within +-k sigma, quoted to 10 decimals: tolerance 1e-9 absolute (the brief's
   // bound; the quoted rounding alone is 5e-11).
   const within: [number, number][] = [
@@ -40,12 +40,12 @@ describe('normal: Gaussian table (Abramowitz & Stegun 1964, ch. 26, via DOMAIN.m
   });
 
   it('a 63-comparator chip at 99% allows p = 1.595e-4, i.e. 3.776 sigma', () => {
-    // DOMAIN.md "Yield" (computed); quoted to 4 figures: tolerance half a unit in the 4th.
+    // Computed from Y_chip = Y^M (test/fixtures/check_values.py: 3.7757664); quoted to 4 figures: tolerance half a unit in the 4th.
     expect(Math.abs(sigmaLevel(1.595e-4) - 3.776)).toBeLessThanOrEqual(0.5e-3);
   });
 
   it('1e6 instances at 99.9% allow p = 1.0e-9, i.e. 6.109 sigma two-sided', () => {
-    // DOMAIN.md "Yield" (computed). p is quoted to 2 figures, so the sigma level is checked
+    // Computed from Y_chip = Y^M (test/fixtures/check_values.py: 6.1093304). p is quoted to 2 figures, so the sigma level is checked
     // on the unrounded p = -expm1(ln(0.999)/1e6) = 1.0005003e-9, to half a unit in the 4th.
     const p = -Math.expm1(Math.log(0.999) / 1e6);
     expect(Math.abs(sigmaLevel(p) - 6.109)).toBeLessThanOrEqual(0.5e-3);

@@ -7,7 +7,7 @@ function relErr(actual: number, expected: number): number {
 }
 
 describe('wilson: reference values', () => {
-  // DOMAIN.md "Confidence intervals" (computed from Wilson, JASA 22, 1927), checked to
+  // Computed from Wilson, JASA 22:209-212, 1927 by test/fixtures/check_values.py, checked to
   // 4 significant figures as quoted there: tolerance half a unit in the 4th figure.
   it('0/1000 failures gives [0, 0.003827]', () => {
     const [lo, hi] = wilson(0, 1000, 0.95);

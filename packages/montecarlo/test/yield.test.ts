@@ -7,7 +7,7 @@ function relErr(actual: number, expected: number): number {
   return Math.abs(actual - expected) / Math.abs(expected);
 }
 
-describe('yield: DOMAIN.md "Yield" check values (computed from Y_chip = Y^M)', () => {
+describe('yield: check values computed from Y_chip = Y^M (test/fixtures/check_values.py)', () => {
   it('63 comparators at 99% chip yield allow p = 1.595e-4 per comparator (3.776 sigma)', () => {
     // Quoted to 4 significant figures: tolerance half a unit in the 4th.
     const p = allowedFailure(0.99, 63);

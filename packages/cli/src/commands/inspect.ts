@@ -1,11 +1,13 @@
-import { compileStage, formatQuantity, type Design, type Stage } from '@twinfet/core';
+import { compileStage, formatQuantity, stageDefinition, type Design, type Stage } from '@twinfet/core';
 import { linearisedSummary, chipFailure, type LinearisedSummary } from '@twinfet/montecarlo';
 import { renderPairs, renderTable } from '../table.js';
-import { designSummary, headerLine, pct, sci, shareLabel } from '../describe.js';
+import { designSummary, figureSummary, figureText, headerLine, pct, sci, shareLabel } from '../describe.js';
 
-/** The inspect report: operating point and the linearised offset picture. */
+/** The inspect report: operating point and the linearised picture of the stage's figure. */
 export interface InspectReport {
   readonly design: ReturnType<typeof designSummary>;
+  /** What the sigmas and the spec are of (`offset` in volts, `currentError` as a fraction). */
+  readonly figure: ReturnType<typeof figureSummary>;
   readonly operatingPoint: Stage['operatingPoint'];
   /** Resistor rows, for stages that have resistors. */
   readonly resistors?: NonNullable<Stage['resistors']>;
@@ -18,6 +20,7 @@ export function inspectDesign(design: Design): InspectReport {
   const stage = compileStage(design);
   return {
     design: designSummary(design),
+    figure: figureSummary(design),
     operatingPoint: stage.operatingPoint,
     ...(stage.resistors === undefined ? {} : { resistors: stage.resistors }),
     analytic: linearisedSummary(stage),
@@ -68,9 +71,11 @@ export function renderResistors(rows: NonNullable<Stage['resistors']>): string {
   return renderTable(header, body, header.map((_, c) => (c <= 1 ? 'left' : 'right')));
 }
 
-/** The variance-budget table. */
-export function renderBudget(a: LinearisedSummary): string {
-  const rows = a.grouped.map((g) => [shareLabel(g.role, g.parameter), pct(g.share, 3), formatQuantity(Math.sqrt(g.variance), 'V', 4)]);
+/** The variance-budget table, in the unit of the stage's figure. */
+export function renderBudget(a: LinearisedSummary, design: Pick<Design, 'topology'>): string {
+  const def = stageDefinition(design.topology);
+  const f = figureText(def.figure);
+  const rows = a.grouped.map((g) => [shareLabel(g.role, g.parameter, def), pct(g.share, 3), f.format(Math.sqrt(g.variance))]);
   return renderTable(['contribution', 'share of sigma^2', 'sigma part'], rows);
 }
 
@@ -78,6 +83,7 @@ export function renderBudget(a: LinearisedSummary): string {
 export function renderInspect(r: InspectReport): string {
   const a = r.analytic;
   const g = a.gaussian;
+  const f = figureText(r.figure);
   const parts = [
     headerLine(r.design, { stageWord: false }),
     '',
@@ -85,13 +91,13 @@ export function renderInspect(r: InspectReport): string {
     ...(r.resistors === undefined ? [] : ['', renderResistors(r.resistors)]),
     '',
     renderPairs([
-      ['offset sigma (linearised)', formatQuantity(a.sigma, 'V', 4)],
-      ['spec |Vos| <=', `${formatQuantity(g.spec, 'V', 4)}  (${g.sigmaLevel.toFixed(3)} sigma)`],
+      [`${f.label} sigma (linearised)`, f.format(a.sigma)],
+      [`spec ${f.magnitude} <=`, `${f.format(g.spec)}  (${g.sigmaLevel.toFixed(3)} sigma)`],
       ['Gaussian instance yield', `${yieldFromFailure(g.failure)}  (failure ${sci(g.failure, 4)})`],
       [`Gaussian chip yield (${g.chipInstances} instance${g.chipInstances === 1 ? '' : 's'})`, yieldFromFailure(chipFailure(g.failure, g.chipInstances))],
     ]),
     '',
-    renderBudget(a),
+    renderBudget(a, r.design),
   ];
   for (const w of r.warnings) parts.push(`warning: ${w}`);
   return parts.join('\n');

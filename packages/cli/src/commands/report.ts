@@ -2,7 +2,7 @@ import { readFileSync } from 'node:fs';
 import { InputError } from '@twinfet/core';
 import { DEFAULT_SEED } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
-import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
+import { readCommon, readSpec, withCommonOptions, type CommonFlags } from '../commonOptions.js';
 import { figureJson } from '../describe.js';
 import { loadDesign } from '../designFile.js';
 import { warnUnitSlips } from '../unitWarnings.js';
@@ -33,7 +33,7 @@ export function registerReport(program: Command, io: Io, setExit: (code: number)
       .argument('<design>', 'design file (YAML or JSON)')
       .option('--out <FILE.html>', 'the page to write')
       .option('--samples <N>', `Monte Carlo samples (default 100000, at least ${REPORT_MIN_SAMPLES})`)
-      .option('--spec <V>', "offset limit overriding the design's spec, e.g. 20mV")
+      .option('--spec <V>', "limit overriding the design's spec, e.g. 20mV (an offset) or 1% (a current error)")
       .option('--chip-yield <Y>', `chip-yield target the area study sizes for (default ${DEFAULT_CHIP_YIELD})`),
   ).action(async (file: string, flags: ReportFlags) => {
     const common = readCommon(flags);
@@ -42,7 +42,8 @@ export function registerReport(program: Command, io: Io, setExit: (code: number)
     const samples = flags.samples === undefined ? 100_000 : parseCount(flags.samples, '--samples', REPORT_MIN_SAMPLES, 1e12);
     const chipYield = flags.chipYield === undefined ? DEFAULT_CHIP_YIELD : parseFraction(flags.chipYield, '--chip-yield', '0.99');
     const design = await loadDesign(file);
-    warnUnitSlips(io, design, common.spec);
+    const spec = readSpec(flags, design);
+    warnUnitSlips(io, design, spec);
     // Loaded on demand: the other commands do not pay for the report's modules at start-up.
     const [{ collectReport }, { renderReport }] = await Promise.all([import('../report/collect.js'), import('../report/page.js')]);
     const seed = common.seed ?? DEFAULT_SEED;
@@ -64,7 +65,7 @@ export function registerReport(program: Command, io: Io, setExit: (code: number)
         version,
         signal,
         onProgress,
-        ...(common.spec === undefined ? {} : { spec: common.spec }),
+        ...(spec === undefined ? {} : { spec }),
       }),
     );
     if (!('value' in done)) {

@@ -2,8 +2,8 @@ import { createWriteStream } from 'node:fs';
 import { formatQuantity, InputError, MISMATCH_PARAMETERS, variableDeviation, type Design } from '@twinfet/core';
 import { RUN_LIMITS, simulateWithSamples, type RunOutcome, type RunReport } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
-import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
-import { figureJson, figureText, headerLine, pct, sci } from '../describe.js';
+import { readCommon, readSpec, withCommonOptions, type CommonFlags } from '../commonOptions.js';
+import { figureJson, figureText, headerLine, pct, plotFigure, sci, type FigureText } from '../describe.js';
 import { loadDesign } from '../designFile.js';
 import { warnUnitSlips } from '../unitWarnings.js';
 import { parseCount } from '../options.js';
@@ -44,7 +44,7 @@ function parseRunFlags(flags: RunFlags) {
   return { ...common, samples, interval: interval as 'clopper-pearson' | 'wilson', method };
 }
 
-/** Writes every sample's offset and physical mismatch draws as CSV. */
+/** Writes every sample's figure and physical mismatch draws as CSV. */
 async function writeSamplesCsv(path: string, outcome: RunOutcome): Promise<void> {
   const { offsets, draws, dimension, variables } = outcome;
   if (offsets === undefined || draws === undefined) throw new Error('internal: samples were not kept');
@@ -70,13 +70,17 @@ async function writeSamplesCsv(path: string, outcome: RunOutcome): Promise<void>
   await done;
 }
 
-/** The histogram plot of a run. */
+/** The histogram plot of a run, in the display unit of its figure. */
 export async function runPlot(report: RunReport, title: string): Promise<string> {
   // Loaded on demand, so a run without --plot does not load the plotting code.
-  const [{ chartSvg }, { runHistogramChart }, { displayQuantity }] = await Promise.all([import('../chart/chart.js'), import('../runHistogram.js'), import('../displayQuantity.js')]);
-  const f = report.figure;
-  const quantity = displayQuantity({ name: f.label, symbol: f.symbol, unit: f.unit === '' ? '%' : f.unit }, Math.max(report.offset.sigma, report.yield.spec));
-  return chartSvg(runHistogramChart(report, { title, quantity, specSides: f.sided }));
+  const [{ chartSvg }, { runHistogramChart }] = await Promise.all([import('../chart/chart.js'), import('../runHistogram.js')]);
+  return chartSvg(runHistogramChart(report, { title, figure: plotFigure(report.figure), specSides: report.figure.sided }));
+}
+
+/** Row labels of the text histogram: the offset in mV to 3 decimals as before, a dimensionless figure in %. */
+function histogramRowLabel(f: FigureText): (v: number) => string {
+  const { unit, scale } = f.display;
+  return (v) => `${(Math.abs(v) < 1e-15 ? 0 : v * scale).toFixed(3)} ${unit}`;
 }
 
 const range = (iv: readonly [number, number], f: (v: number) => string): string => `[${f(iv[0])}, ${f(iv[1])}]`;
@@ -92,8 +96,11 @@ export function renderRun(r: RunReport, design: Design): string {
   const mv = f.format;
   const c = `${Math.round(r.yield.confidence * 1000) / 10}%`;
   const q = r.offset.quantiles;
-  const qHead = q.signed.map((x) => `${x.p * 100}%`.padStart(11)).join('');
-  const qRow = (xs: typeof q.signed): string => xs.map((x) => (x.value === null ? 'beyond' : mv(x.value)).padStart(11)).join('');
+  // Columns 11 wide, or wider when a value needs it (a small percentage), so that they never run together.
+  const cellText = (x: (typeof q.signed)[number]): string => (x.value === null ? 'beyond' : mv(x.value));
+  const qWidth = Math.max(11, ...[...q.signed, ...q.absolute].map((x) => cellText(x).length + 1));
+  const qHead = q.signed.map((x) => `${x.p * 100}%`.padStart(qWidth)).join('');
+  const qRow = (xs: typeof q.signed): string => xs.map((x) => cellText(x).padStart(qWidth)).join('');
   const agree = r.analytic.agreement;
   const lines = [
     headerLine(design),
@@ -102,7 +109,7 @@ export function renderRun(r: RunReport, design: Design): string {
     renderPairs([
       [`${f.label} mean`, `${mv(r.offset.mean)}   ${c} ${range(r.offset.meanInterval, mv)}`],
       [`${f.label} sigma`, `${mv(r.offset.sigma)}   ${c} ${range(r.offset.sigmaInterval, mv)} (chi-square)`],
-      ['linearised sigma', `${mv(r.analytic.sigma)}   Monte Carlo differs by ${pct(agree.relativeDifference, 2)} (${agree.standardErrors.toFixed(1)} standard errors)${agree.consistent ? '' : '  <- more than sampling error allows: the ${f.label} is not linear in the mismatch here'}`],
+      ['linearised sigma', `${mv(r.analytic.sigma)}   Monte Carlo differs by ${pct(agree.relativeDifference, 2)} (${agree.standardErrors.toFixed(1)} standard errors)${agree.consistent ? '' : `  <- more than sampling error allows: the ${f.label} is not linear in the mismatch here`}`],
       ['min / max', `${mv(r.offset.min)} / ${mv(r.offset.max)}`],
     ]),
     '',
@@ -111,9 +118,9 @@ export function renderRun(r: RunReport, design: Design): string {
     `${f.symbol.padEnd(8)}${qRow(q.signed)}`,
     `${f.magnitude.padEnd(8)}${qRow(q.absolute)}`,
     '',
-    textHistogram(r.histogram, Math.max(4 * r.offset.sigma, 1.1 * r.yield.spec), r.yield.spec),
+    textHistogram(r.histogram, Math.max(4 * r.offset.sigma, 1.1 * r.yield.spec), r.yield.spec, 25, 50, histogramRowLabel(f)),
     '',
-    renderBudget(r.analytic),
+    renderBudget(r.analytic, design),
     '',
     renderPairs([
       [`spec ${f.magnitude} <=`, mv(r.yield.spec)],
@@ -129,7 +136,7 @@ export function renderRun(r: RunReport, design: Design): string {
       `note: only ${r.yield.failures} failure(s) seen: the yield estimate is limited by the sample count. For high-sigma yields use \`twinfet tail\` or \`twinfet run --method importance\`.`,
     );
   }
-  if (r.importance !== undefined) lines.push('', 'importance sampling (high-sigma failure probability)', renderTail(r.importance));
+  if (r.importance !== undefined) lines.push('', 'importance sampling (high-sigma failure probability)', renderTail(r.importance, design));
   for (const w of r.warnings) lines.push(`warning: ${w}`);
   return lines.join('\n');
 }
@@ -139,18 +146,19 @@ export function registerRun(program: Command, io: Io, setExit: (code: number) =>
   withCommonOptions(
     program
       .command('run')
-      .description('Monte Carlo of the offset: distribution, sigma, quantiles, budget, yield with intervals')
+      .description("Monte Carlo of the stage's figure (offset, current error): distribution, sigma, quantiles, budget, yield with intervals")
       .argument('<design>', 'design file (YAML or JSON)')
       .option('--samples <N>', 'samples to draw, e.g. 100000, 1e6, 1_000_000 (default 100000)')
-      .option('--spec <V>', "offset limit overriding the design's spec, e.g. 20mV")
+      .option('--spec <V>', "limit overriding the design's spec, e.g. 20mV (an offset) or 1% (a current error)")
       .option('--interval <M>', 'yield interval: clopper-pearson (default) or wilson')
       .option('--method <M>', 'plain (default), or importance to add the high-sigma estimate')
-      .option('--samples-out <FILE.csv>', "write each sample's offset and mismatch draws")
+      .option('--samples-out <FILE.csv>', "write each sample's figure and mismatch draws")
       .option('--plot <FILE.svg>', 'histogram with the fitted Gaussian and the +-spec lines'),
   ).action(async (file: string, flags: RunFlags) => {
     const o = parseRunFlags(flags);
     const design = await loadDesign(file);
-    warnUnitSlips(io, design, o.spec);
+    const spec = readSpec(flags, design);
+    warnUnitSlips(io, design, spec);
     const done = await withInterrupt(io, 'run', (signal, onProgress) =>
       simulateWithSamples(design, {
         samples: o.samples,
@@ -162,7 +170,7 @@ export function registerRun(program: Command, io: Io, setExit: (code: number) =>
         onProgress,
         keepDraws: flags.samplesOut !== undefined,
         ...(o.seed === undefined ? {} : { seed: o.seed }),
-        ...(o.spec === undefined ? {} : { spec: o.spec }),
+        ...(spec === undefined ? {} : { spec }),
         ...(o.method === 'importance' ? { importance: true } : {}),
       }),
     );

@@ -1,9 +1,9 @@
 import { readFileSync } from 'node:fs';
-import { closestWord, formatQuantity, InputError, isInputError, parseQuantity, writeDesign, type Design } from '@twinfet/core';
+import { closestWord, formatQuantity, InputError, isInputError, stageDefinition, writeDesign, type Design } from '@twinfet/core';
 import { SIZE_VARIATIONS, sizeDesign, type Confirmation, type SizedPoint, type SizeReport, type SizeTarget, type SizeVary } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
-import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
-import { headerLine, pct, sci } from '../describe.js';
+import { readCommon, readSpec, withCommonOptions, type CommonFlags } from '../commonOptions.js';
+import { figureSummary, figureText, headerLine, parseFigureOption, pct, sci, type FigureText } from '../describe.js';
 import { loadDesign } from '../designFile.js';
 import { warnUnitSlips } from '../unitWarnings.js';
 import { writeOutputFile } from '../files.js';
@@ -37,16 +37,17 @@ const OPTION_OF: Readonly<Record<string, string>> = {
   workers: '--workers',
 };
 
-function parseTarget(flags: SizeFlags): SizeTarget {
+function checkTargetCount(flags: SizeFlags): void {
   const given = [flags.sigma, flags.yield, flags.chipYield].filter((x) => x !== undefined).length;
   if (given !== 1) {
-    throw new InputError('--sigma', `give exactly one target: --sigma (e.g. 1.5mV), --yield (e.g. 0.999) or --chip-yield (e.g. 0.99); got ${given}`);
+    throw new InputError('--sigma', `give exactly one target: --sigma (e.g. 1.5mV, or 0.2% for a current error), --yield (e.g. 0.999) or --chip-yield (e.g. 0.99); got ${given}`);
   }
-  if (flags.sigma !== undefined) {
-    const sigma = parseQuantity(flags.sigma, 'voltage', '--sigma');
-    if (!(sigma > 0)) throw new InputError('--sigma', `expected a positive offset sigma such as 1.5mV, got "${flags.sigma}"`);
-    return { kind: 'sigma', sigma };
-  }
+}
+
+/** The target; --sigma is in the unit of the design's figure (a voltage, or a percentage). */
+function parseTarget(flags: SizeFlags, design: Design): SizeTarget {
+  checkTargetCount(flags);
+  if (flags.sigma !== undefined) return { kind: 'sigma', sigma: parseFigureOption(flags.sigma, '--sigma', design, 'sigma', '1.5mV') };
   if (flags.yield !== undefined) return { kind: 'yield', yield: parseFraction(flags.yield, '--yield', '0.999') };
   return { kind: 'chip-yield', chipYield: parseFraction(flags.chipYield!, '--chip-yield', '0.99') };
 }
@@ -59,20 +60,31 @@ function parseVary(text: string | undefined): SizeVary {
   throw new InputError('--vary', `expected one of ${SIZE_VARIATIONS.join(', ')}, got "${text}"${guess === undefined ? '' : `; did you mean "${guess}"?`}`);
 }
 
-const mv = (v: number): string => formatQuantity(v, 'V', 4);
 const um2 = (a: number): string => `${Number((a * 1e12).toPrecision(4))} um^2`;
 const conf = (c: number): string => `${Math.round(c * 1000) / 10}%`;
 
-function targetText(r: SizeReport): string {
+function targetText(r: SizeReport, f: FigureText): string {
   const t = r.target;
-  if (t.kind === 'sigma') return `offset sigma <= ${mv(t.sigma)}`;
+  const mv = f.format;
+  if (t.kind === 'sigma') return `${f.label} sigma <= ${mv(t.sigma)}`;
   const p = t.allowedFailure === null ? '' : `, allowed failure ${sci(t.allowedFailure, 4)} per instance`;
-  if (t.kind === 'yield') return `instance yield >= ${t.yield} at |Vos| <= ${mv(r.spec)}${p}`;
-  return `chip yield >= ${t.chipYield} over ${r.instances} instance${r.instances === 1 ? '' : 's'} at |Vos| <= ${mv(r.spec)}${p}`;
+  if (t.kind === 'yield') return `instance yield >= ${t.yield} at ${f.magnitude} <= ${mv(r.spec)}${p}`;
+  return `chip yield >= ${t.chipYield} over ${r.instances} instance${r.instances === 1 ? '' : 's'} at ${f.magnitude} <= ${mv(r.spec)}${p}`;
 }
 
-function varyText(v: SizeVary): string {
-  if (v === 'both') return 'both (input pair and load, W/L of each kept, area split for the least total)';
+/** `a`, `a and b`, `a, b and c`. */
+function listText(items: readonly string[]): string {
+  return items.length <= 1 ? (items[0] ?? '') : `${items.slice(0, -1).join(', ')} and ${items[items.length - 1]!}`;
+}
+
+/** The sizable blocks in words: "input pair and load", "input pair, sources and load", "input and output". */
+function blocksText(design: Design): string {
+  const blocks = stageDefinition(design.topology).blocks.filter((b) => b.sizable);
+  return listText(blocks.map((b) => (b.key === 'input' && b.elements.length === 2 ? 'input pair' : b.key)));
+}
+
+function varyText(v: SizeVary, design: Design): string {
+  if (v === 'both') return `both (${blocksText(design)}, W/L of each kept, area split for the least total)`;
   return v.endsWith('.area') ? `${v} (W/L kept)` : v;
 }
 
@@ -90,7 +102,7 @@ function pairRows(label: string, p: SizedPoint): string[][] {
   ]);
 }
 
-function figure(c: Confirmation, r: SizeReport): string {
+function figure(c: Confirmation, r: SizeReport, mv: (x: number) => string): string {
   const cl = conf(r.confidence);
   if (c.sigma !== null && c.sigmaInterval !== null && r.target.kind === 'sigma') {
     return `${mv(c.sigma)}   ${cl} [${mv(c.sigmaInterval[0])}, ${mv(c.sigmaInterval[1])}]`;
@@ -105,8 +117,14 @@ const bound = (y: number): string => (y === 1 ? '1' : y < 1e-3 ? sci(y, 4) : yie
 export function renderSize(r: SizeReport, source: string, design: Design): string {
   const c = r.confirmed;
   const cl = conf(r.confidence);
-  const header = ['pair', 'design', 'W', 'L', 'W*L', 'IC', 'region', 'gm/I_D', 'C_gate'];
-  const rows = [...pairRows('original', r.original), ...pairRows('sized', r.result)].sort((a, b) => (a[0] === b[0] ? 0 : a[0] === 'input' ? -1 : 1));
+  const f = figureText(stageDefinition(design.topology).figure);
+  const mv = f.format;
+  const def = stageDefinition(design.topology);
+  const header = [def.blocks.every((b) => b.elements.length === 2) ? 'pair' : 'block', 'design', 'W', 'L', 'W*L', 'IC', 'region', 'gm/I_D', 'C_gate'];
+  // Each block's original row, then its sized row, blocks in the stage's order.
+  const order = r.original.pairs.map((p) => p.role);
+  const rows = [...pairRows('original', r.original), ...pairRows('sized', r.result)].sort((a, b) => order.indexOf(a[0]!) - order.indexOf(b[0]!));
+  const single = def.blocks[0]!.elements.length === 1;
   const method = `${c.method === 'monte-carlo' ? 'Monte Carlo' : 'importance sampling'}, ${c.samples} samples, seed ${c.seed}`;
   const input = r.result.pairs.find((p) => p.role === 'input')!;
   const pairs: [string, string][] = [
@@ -116,7 +134,7 @@ export function renderSize(r: SizeReport, source: string, design: Design): strin
     pairs.push(['confirmed sigma', `${mv(c.sigma)}   ${cl} [${mv(c.sigmaInterval[0])}, ${mv(c.sigmaInterval[1])}] (exact model, ${method})`]);
   }
   pairs.push(
-    ['failure at spec', `${sci(c.failure, 4)}   ${cl} [${sci(c.failureInterval[0], 4)}, ${sci(c.failureInterval[1], 4)}] (|Vos| > ${mv(r.spec)}${c.sigma === null ? `; ${method}` : ''})`],
+    ['failure at spec', `${sci(c.failure, 4)}   ${cl} [${sci(c.failureInterval[0], 4)}, ${sci(c.failureInterval[1], 4)}] (${f.magnitude} > ${mv(r.spec)}${c.sigma === null ? `; ${method}` : ''})`],
     ['instance yield', `${c.failure === 0 ? `1 (no failures in ${c.samples} samples)` : bound(1 - c.failure)}   Gaussian estimate ${yieldText(1 - r.result.gaussianFailure)}`],
     [`chip yield (${r.instances})`, `${bound(c.chipYield)}   ${cl} [${bound(c.chipYieldInterval[0])}, ${bound(c.chipYieldInterval[1])}]`],
     ['target', c.met ? `met: ${r.rule}` : `NOT met (${r.rule})`],
@@ -125,20 +143,23 @@ export function renderSize(r: SizeReport, source: string, design: Design): strin
       'area rule',
       `area x sigma^2 is constant when V_T dominates (Kinget 2005): ${um2(r.areaCost.originalArea)} x (${mv(r.areaCost.sigmaOriginal)} / ${mv(r.areaCost.sigmaTarget)})^2 = ${um2(r.areaCost.ruleArea)}; sized ${um2(r.areaCost.resultArea)} (${r.areaCost.ratio.toFixed(2)}x the rule)`,
     ],
-    ['input capacitance', input.gateCapacitance === null ? 'not available: the process gives no cox' : `${formatQuantity(input.gateCapacitance, 'F', 3)} per input (Cox W L of one input device)`],
+    ['input capacitance', input.gateCapacitance === null ? 'not available: the process gives no cox' : `${formatQuantity(input.gateCapacitance, 'F', 3)} ${single ? '(Cox W L of the input device)' : 'per input (Cox W L of one input device)'}`],
   );
   if (r.split !== null) {
+    // Every sizable block: per-element areas at the optimum, and with all scaled by one factor.
     const s = r.split;
+    const keys = s.blocks.map((b) => b.block);
+    const sum = (xs: readonly number[]): string => xs.map(um2).join(' + ');
     pairs.push([
       'area split',
-      `optimum (W*L of one input + one load device) ${um2(s.optimum.input)} + ${um2(s.optimum.load)} = ${um2(s.optimum.total)}; both scaled by one factor (x${s.equal.factor.toPrecision(4)}) ${um2(s.equal.input)} + ${um2(s.equal.load)} = ${um2(s.equal.total)}; saving ${pct(s.saving, 3)} (linearised)`,
+      `optimum (W*L of one ${keys.join(' + one ')} device) ${sum(s.blocks.map((b) => b.optimum))} = ${um2(s.optimum.total)}; ${keys.length === 2 ? 'both' : 'all'} scaled by one factor (x${s.equal.factor.toPrecision(4)}) ${sum(s.blocks.map((b) => b.equal))} = ${um2(s.equal.total)}; saving ${pct(s.saving, 3)} (linearised)`,
     ]);
   }
   const steps = r.confirmations.map((x, i) => [
     String(i + 1),
     x.point.pairs.map((p) => `${p.role} ${formatQuantity(p.w, 'm', 4)}/${formatQuantity(p.l, 'm', 4)}`).join(', '),
     mv(x.point.sigmaLinearised),
-    figure(x, r),
+    figure(x, r, mv),
     x.seed,
     x.met ? 'yes' : 'no',
   ]);
@@ -146,8 +167,8 @@ export function renderSize(r: SizeReport, source: string, design: Design): strin
     `${headerLine(design)} from ${source}`,
     '',
     renderPairs([
-      ['target', targetText(r)],
-      ['varying', varyText(r.vary)],
+      ['target', targetText(r, f)],
+      ['varying', varyText(r.vary, design)],
     ]),
     '',
     renderTable(header, rows, header.map((_, i) => (i <= 1 || i === 6 ? 'left' : 'right'))),
@@ -163,14 +184,16 @@ export function renderSize(r: SizeReport, source: string, design: Design): strin
 }
 
 /** The header comment of a written design file. */
-function fileHeader(r: SizeReport, source: string): string[] {
+function fileHeader(r: SizeReport, source: string, design: Design): string[] {
   const c = r.confirmed;
+  const f = figureText(stageDefinition(design.topology).figure);
+  const mv = f.format;
   const method = `${c.method === 'monte-carlo' ? 'Monte Carlo' : 'importance sampling'}, ${c.samples} samples, seed ${c.seed}`;
   const fig = c.sigma !== null && c.sigmaInterval !== null && r.target.kind === 'sigma'
     ? `sigma ${mv(c.sigma)}, ${conf(r.confidence)} [${mv(c.sigmaInterval[0])}, ${mv(c.sigmaInterval[1])}]`
     : `failure ${sci(c.failure, 4)}, ${conf(r.confidence)} [${sci(c.failureInterval[0], 4)}, ${sci(c.failureInterval[1], 4)}]`;
   return [
-    `Sized by twinfet ${version} from ${source} for ${targetText(r)}, varying ${r.vary}.`,
+    `Sized by twinfet ${version} from ${source} for ${targetText(r, f)}, varying ${r.vary}.`,
     `Confirmed on the exact model: ${fig} (${method}).`,
     `Linearised sigma ${mv(r.result.sigmaLinearised)}. Process parameters and bias are copied unchanged from ${source}.`,
   ];
@@ -181,25 +204,27 @@ export function registerSize(program: Command, io: Io, setExit: (code: number) =
   withCommonOptions(
     program
       .command('size')
-      .description('size the pair (or load) for an offset sigma or yield target: linearised solve, confirmed on the exact model')
+      .description('size the pair (or load, sources, output) for a sigma or yield target of the figure: linearised solve, confirmed on the exact model')
       .argument('<design>', 'design file (YAML or JSON)')
-      .option('--sigma <V>', 'target offset sigma, e.g. 1.5mV')
+      .option('--sigma <V>', 'target sigma of the figure, e.g. 1.5mV (an offset) or 0.2% (a current error)')
       .option('--yield <Y>', "target instance yield at the design's spec (or --spec), e.g. 0.999")
       .option('--chip-yield <Y>', 'target chip yield over spec.instances instances, e.g. 0.99')
       .option('--vary <WHAT>', `what may change: ${SIZE_VARIATIONS.join(', ')} (default input.w; area keeps W/L)`)
-      .option('--spec <V>', "offset limit overriding the design's spec, e.g. 20mV")
+      .option('--spec <V>', "limit overriding the design's spec, e.g. 20mV (an offset) or 1% (a current error)")
       .option('--samples <N>', 'Monte Carlo samples per confirmation (default 200000; yield targets use at least 384/p)')
       .option('--write <FILE.yaml>', 'save the sized design as a design file'),
   ).action(async (file: string, flags: SizeFlags) => {
     const common = readCommon(flags);
-    const target = parseTarget(flags);
+    checkTargetCount(flags);
     const vary = parseVary(flags.vary);
     const samples = flags.samples === undefined ? undefined : parseCount(flags.samples, '--samples', 1000, 1e9);
     if (flags.write !== undefined && !/\.ya?ml$/i.test(flags.write)) {
       throw new InputError('--write', `expected a file name ending in .yaml, got "${flags.write}"`);
     }
     const design = await loadDesign(file);
-    warnUnitSlips(io, design, common.spec);
+    const target = parseTarget(flags, design);
+    const spec = readSpec(flags, design);
+    warnUnitSlips(io, design, spec);
     let done: Awaited<ReturnType<typeof withInterrupt<SizeReport>>>;
     try {
       done = await withInterrupt(io, 'size', (signal) =>
@@ -210,7 +235,7 @@ export function registerSize(program: Command, io: Io, setExit: (code: number) =
           confidence: common.confidence,
           signal,
           ...(common.seed === undefined ? {} : { seed: common.seed }),
-          ...(common.spec === undefined ? {} : { spec: common.spec }),
+          ...(spec === undefined ? {} : { spec }),
           ...(samples === undefined ? {} : { samples }),
         }),
       );
@@ -227,9 +252,9 @@ export function registerSize(program: Command, io: Io, setExit: (code: number) =
     }
     const report = done.value;
     const sized: Design = { ...report.design, name: `${design.name}, sized` };
-    const out = { source: file, ...report, design: sized, written: flags.write ?? null };
+    const out = { source: file, figure: figureSummary(design), ...report, design: sized, written: flags.write ?? null };
     assertFinite(out);
-    if (flags.write !== undefined) await writeOutputFile(flags.write, '--write', writeDesign(sized, fileHeader(report, file)));
+    if (flags.write !== undefined) await writeOutputFile(flags.write, '--write', writeDesign(sized, fileHeader(report, file, design)));
     if (flags.json === true) printJson(io, out);
     else {
       io.out(renderSize(report, file, design));

@@ -1,8 +1,8 @@
-import { formatQuantity, InputError, parseQuantity, validateDesign, type Design } from '@twinfet/core';
+import { formatQuantity, InputError, parseQuantity, stageDefinition, validateDesign, type Design } from '@twinfet/core';
 import { DEFAULT_SEED, sweepDesigns, SWEEP_SAMPLES, type SweepPointResult } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
-import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
-import { designSummary, sci } from '../describe.js';
+import { readCommon, readSpec, withCommonOptions, type CommonFlags } from '../commonOptions.js';
+import { designSummary, figureSummary, figureText, parseFigureOption, plotFigure, sci } from '../describe.js';
 import { loadDesign } from '../designFile.js';
 import { warnUnitSlips } from '../unitWarnings.js';
 import { writeOutputFile } from '../files.js';
@@ -31,6 +31,8 @@ interface SweepFlags extends CommonFlags {
 /** The sweep report printed as JSON (SI units; null where a figure is not available). */
 export interface SweepReport {
   readonly design: ReturnType<typeof designSummary>;
+  /** What the sigmas, targets and specs are of (`offset` in volts, `currentError` as a fraction). */
+  readonly figure: ReturnType<typeof figureSummary>;
   readonly field: string;
   /** SI unit of the swept values ('' for plain numbers). */
   readonly unit: string;
@@ -82,12 +84,6 @@ function pointDesign(design: Design, f: SweepField, value: number, option: strin
   }
 }
 
-function parsePositiveVoltage(text: string, option: string): number {
-  const v = parseQuantity(text, 'voltage', option);
-  if (!(v > 0)) throw new InputError(option, `expected a positive offset sigma such as 2mV, got "${text}"`);
-  return v;
-}
-
 function shown(f: SweepField, v: number): string {
   if (f.tableUnit === '') return String(Number(v.toPrecision(6)));
   // Areas read best in um^2 whatever their size (a prefix does not square cleanly).
@@ -95,7 +91,6 @@ function shown(f: SweepField, v: number): string {
   return formatQuantity(v, f.tableUnit, 4);
 }
 
-const mv = (v: number): string => formatQuantity(v, 'V', 4);
 /** A yield or interval end: exactly 1 prints as 1 (no failures seen), tiny values in scientific form. */
 const bound = (y: number, digits: number): string => (y === 1 ? '1' : y < 1e-3 ? sci(y, 4) : yieldText(y, digits));
 const conf = (c: number): string => `${Math.round(c * 1000) / 10}%`;
@@ -103,6 +98,7 @@ const conf = (c: number): string => `${Math.round(c * 1000) / 10}%`;
 /** Text table of a sweep. */
 export function renderSweep(r: SweepReport, f: SweepField): string {
   const c = conf(r.confidence);
+  const mv = figureText(r.figure).format;
   const hasTail = r.method === 'importance';
   const counts = new Set(r.points.map((p) => p.instances));
   const chipHead = counts.size === 1 ? `chip yield (${r.points[0]!.instances})` : 'chip yield';
@@ -146,7 +142,8 @@ const cell = (x: number | null): string => (x === null ? '' : String(x));
 /** CSV of a sweep, SI units, one row per point; empty cells where a figure is not available. */
 export function sweepCsv(r: SweepReport): string {
   const u = r.unit === '' ? r.field : `${r.field}_${r.unit}`;
-  const header = [u, 'analytic_sigma_V', 'mc_sigma_V', 'mc_sigma_lo_V', 'mc_sigma_hi_V', 'samples', 'failures', 'yield', 'yield_lo', 'yield_hi', 'chip_yield', 'chip_yield_lo', 'chip_yield_hi', 'is_failure', 'is_failure_lo', 'is_failure_hi', 'is_sigma_level'];
+  const col = figureText(r.figure).column;
+  const header = [u, `analytic_sigma_${col}`, `mc_sigma_${col}`, `mc_sigma_lo_${col}`, `mc_sigma_hi_${col}`, 'samples', 'failures', 'yield', 'yield_lo', 'yield_hi', 'chip_yield', 'chip_yield_lo', 'chip_yield_hi', 'is_failure', 'is_failure_lo', 'is_failure_hi', 'is_sigma_level'];
   const rows = r.points.map((p) => {
     const m = p.monteCarlo;
     const t = p.importance;
@@ -164,15 +161,15 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
       .command('sweep')
       .description('step one numeric design field and report analytic and Monte Carlo sigma and yield at each value')
       .argument('<design>', 'design file (YAML or JSON)')
-      .option('--vary <FIELD>', 'the field to step: input.w, input.l, load.w, load.l, tail, temperature, spec.offset, spec.instances, process.n.avt, ...')
+      .option('--vary <FIELD>', 'the field to step: input.w, input.l, load.w, load.l, sources.current, tail, temperature, spec.offset (spec.error), spec.instances, process.n.avt, ...')
       .option('--from <A>', 'first value, with the field\'s unit, e.g. 1um, 5uA, "27 C"')
       .option('--to <B>', 'last value, e.g. 20um')
       .option('--steps <N>', 'number of values, ends included (default 5)')
       .option('--log', 'space the values evenly in log (both ends above 0), and draw a log axis')
       .option('--samples <N>', `Monte Carlo samples per point (default ${SWEEP_SAMPLES})`)
       .option('--method <M>', 'plain (default), or importance to add the high-sigma failure probability')
-      .option('--spec <V>', "offset limit overriding the design's spec, e.g. 20mV")
-      .option('--target-sigma <V>', 'a sigma target drawn on the plot and judged per point, e.g. 2mV')
+      .option('--spec <V>', "limit overriding the design's spec, e.g. 20mV (an offset) or 1% (a current error)")
+      .option('--target-sigma <V>', 'a sigma target drawn on the plot and judged per point, e.g. 2mV (or 0.2%)')
       .option('--target-yield <Y>', 'a yield target drawn on the plot (as 1 - yield) and judged per point, e.g. 0.999')
       .option('--csv <FILE>', 'write one row per point (SI units)')
       .option('--plot <FILE.svg>', 'sigma and failure probability against the field, with interval bars'),
@@ -183,14 +180,16 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
     const samples = flags.samples === undefined ? SWEEP_SAMPLES : parseCount(flags.samples, '--samples', 100, 1e9);
     const method = flags.method ?? 'plain';
     if (method !== 'plain' && method !== 'importance') throw new InputError('--method', `expected plain or importance, got "${method}"`);
-    const targetSigma = flags.targetSigma === undefined ? null : parsePositiveVoltage(flags.targetSigma, '--target-sigma');
     const targetYield = flags.targetYield === undefined ? null : parseFraction(flags.targetYield, '--target-yield', '0.999');
     if (flags.plot !== undefined && !flags.plot.toLowerCase().endsWith('.svg')) throw new InputError('--plot', `expected a file name ending in .svg, got "${flags.plot}"`);
     if (flags.csv !== undefined && !flags.csv.toLowerCase().endsWith('.csv')) throw new InputError('--csv', `expected a file name ending in .csv, got "${flags.csv}"`);
     const design = await loadDesign(file);
-    warnUnitSlips(io, design, common.spec);
+    const targetSigma = flags.targetSigma === undefined ? null : parseFigureOption(flags.targetSigma, '--target-sigma', design, 'sigma');
+    const spec = readSpec(flags, design);
+    warnUnitSlips(io, design, spec);
     const f = sweepField(flags.vary, design);
-    if (f.path === 'spec.offset' && common.spec !== undefined) throw new InputError('--spec', 'cannot be combined with --vary spec.offset; drop one');
+    const specPath = `spec.${stageDefinition(design.topology).figure.specKey}`;
+    if (f.path === specPath && spec !== undefined) throw new InputError('--spec', `cannot be combined with --vary ${specPath}; drop one`);
     const from = parseEnd(flags.from, '--from', f);
     const to = parseEnd(flags.to, '--to', f);
     const log = flags.log === true;
@@ -216,7 +215,7 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
         signal,
         onPoint: (d, t) => onProgress(d * samples, t * samples),
         ...(common.seed === undefined ? {} : { seed: common.seed }),
-        ...(common.spec === undefined ? {} : { spec: common.spec }),
+        ...(spec === undefined ? {} : { spec }),
       }),
     );
     if (!('value' in done)) {
@@ -225,12 +224,15 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
       return;
     }
     const points: SweepPointResult[] = done.value;
-    const warnings = [...new Set(points.flatMap((p) => p.warnings.map((w) => `at ${f.path} = ${shown(f, values[p.index]!)}: ${w}`)))];
+    // A warning that holds at every point (a caution of the model itself) is given once, unprefixed.
+    const everywhere = (w: string): boolean => points.length > 1 && points.every((p) => p.warnings.includes(w));
+    const warnings = [...new Set(points.flatMap((p) => p.warnings.map((w) => (everywhere(w) ? w : `at ${f.path} = ${shown(f, values[p.index]!)}: ${w}`))))];
     if (points.some((p) => p.monteCarlo.limitedBySamples) && method === 'plain') {
       notes.push('some points saw fewer than 10 failures: their yields are limited by the sample count; add --method importance for high-sigma figures');
     }
     const report: SweepReport = {
       design: designSummary(design),
+      figure: figureSummary(design),
       field: f.path,
       unit: f.siUnit,
       log,
@@ -273,7 +275,7 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
       // Loaded on demand, so a sweep without --plot does not load the plotting code.
       const { sweepSvg } = await import('../plot.js');
       const svg = sweepSvg({
-        title: `${design.name}: offset against ${f.path}`,
+        title: `${design.name}: ${report.figure.label} against ${f.path}`,
         field: f.path,
         fieldUnit: axis.unit,
         xScale: axis.scale,
@@ -281,6 +283,7 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
         points: plotPoints,
         ...(targetSigma === null ? {} : { sigmaTarget: targetSigma }),
         ...(targetYield === null ? {} : { yieldTarget: targetYield }),
+        figure: plotFigure(report.figure),
       });
       await writeOutputFile(flags.plot, '--plot', svg);
     }

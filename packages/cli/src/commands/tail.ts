@@ -1,8 +1,8 @@
-import { formatQuantity, InputError, MISMATCH_PARAMETERS, type MismatchParameter } from '@twinfet/core';
+import { formatQuantity, InputError, MISMATCH_PARAMETERS, stageDefinition, type Design, type MismatchParameter } from '@twinfet/core';
 import { estimateHighSigma, type HighSigmaReport } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
-import { readCommon, withCommonOptions, type CommonFlags } from '../commonOptions.js';
-import { designSummary, headerLine, sci } from '../describe.js';
+import { readCommon, readSpec, withCommonOptions, type CommonFlags } from '../commonOptions.js';
+import { designSummary, figureSummary, figureText, headerLine, sci } from '../describe.js';
 import { loadDesign } from '../designFile.js';
 import { warnUnitSlips } from '../unitWarnings.js';
 import { parseCount, parseFraction } from '../options.js';
@@ -17,8 +17,9 @@ interface TailFlags extends CommonFlags {
 
 const sig = (x: number | null): string => (x === null ? 'unbounded' : x.toFixed(3));
 
-/** Text form of a high-sigma estimate (also used inside `run --method importance`). */
-export function renderTail(r: HighSigmaReport): string {
+/** Text form of a high-sigma estimate of the design's figure (also used inside `run --method importance`). */
+export function renderTail(r: HighSigmaReport, design: Pick<Design, 'topology'>): string {
+  const f = figureText(stageDefinition(design.topology).figure);
   const c = `${Math.round(r.confidence * 1000) / 10}%`;
   const pts = r.designPoints.map((p) => {
     const top = [...p.coordinates].sort((a, b) => Math.abs(b.u) - Math.abs(a.u)).slice(0, 4);
@@ -33,7 +34,7 @@ export function renderTail(r: HighSigmaReport): string {
   if (r.belowDoubleRange) {
     return [
       renderPairs([
-        ['spec |Vos| <=', formatQuantity(r.spec, 'V', 4)],
+        [`spec ${f.magnitude} <=`, f.format(r.spec)],
         ['failure probability', `below the smallest double (about 1e-308): no sample can weigh it, so none was drawn`],
         ['equivalent sigma level', `${sig(r.sigmaLevel)} (two-sided, from the failure points' distances, FORM)`],
       ]),
@@ -44,7 +45,7 @@ export function renderTail(r: HighSigmaReport): string {
   }
   return [
     renderPairs([
-      ['spec |Vos| <=', formatQuantity(r.spec, 'V', 4)],
+      [`spec ${f.magnitude} <=`, f.format(r.spec)],
       ['failure probability', `${sci(r.failureProbability, 4)}   ${c} [${sci(r.interval[0], 4)}, ${sci(r.interval[1], 4)}]`],
       ['equivalent sigma level', `${sig(r.sigmaLevel)}   ${c} [${sig(r.sigmaLevelInterval[0])}, ${sig(r.sigmaLevelInterval[1])}] (two-sided)`],
       ['by side', `+spec ${sci(r.high, 4)}, -spec ${sci(r.low, 4)}`],
@@ -61,14 +62,30 @@ export function renderTail(r: HighSigmaReport): string {
   ].join('\n');
 }
 
+/**
+ * The report with each design point's figure value under the figure's own name (`offset` for the
+ * differential stages, so their output is unchanged; `currentError` for a current mirror).
+ */
+function figureNamed(r: HighSigmaReport, design: Pick<Design, 'topology'>): Record<string, unknown> {
+  const name = stageDefinition(design.topology).figure.name;
+  if (name === 'offset') return { ...r };
+  return {
+    ...r,
+    designPoints: r.designPoints.map((p) => {
+      const { offset, ...rest } = p;
+      return { ...rest, [name]: offset };
+    }),
+  };
+}
+
 /** Registers `twinfet tail`. */
 export function registerTail(program: Command, io: Io, setExit: (code: number) => void): void {
   withCommonOptions(
     program
       .command('tail')
-      .description('high-sigma failure probability P(|Vos| > spec) by importance sampling about the most probable failure points')
+      .description('high-sigma failure probability P(|Vos| > spec) (or of the current error) by importance sampling about the most probable failure points')
       .argument('<design>', 'design file (YAML or JSON)')
-      .option('--spec <V>', "offset limit overriding the design's spec, e.g. 20mV")
+      .option('--spec <V>', "limit overriding the design's spec, e.g. 20mV (an offset) or 1% (a current error)")
       .option('--rel-error <E>', 'stop when the interval half-width is this fraction of the estimate (default 0.05)')
       .option('--samples <N>', 'a fixed sample count instead of the relative-error rule'),
   ).action(async (file: string, flags: TailFlags) => {
@@ -79,7 +96,8 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
     const relError = flags.relError === undefined ? undefined : parseFraction(flags.relError, '--rel-error', '0.05');
     const samples = flags.samples === undefined ? undefined : parseCount(flags.samples, '--samples', 100, 1e10);
     const design = await loadDesign(file);
-    warnUnitSlips(io, design, common.spec);
+    const spec = readSpec(flags, design);
+    warnUnitSlips(io, design, spec);
     const done = await withInterrupt(io, 'tail', (signal, onProgress) =>
       estimateHighSigma(design, {
         workers: common.workers,
@@ -87,7 +105,7 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
         signal,
         onProgress,
         ...(common.seed === undefined ? {} : { seed: common.seed }),
-        ...(common.spec === undefined ? {} : { spec: common.spec }),
+        ...(spec === undefined ? {} : { spec }),
         ...(relError === undefined ? {} : { relError }),
         ...(samples === undefined ? {} : { samples }),
       }),
@@ -100,9 +118,9 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
     }
     const report = done.value;
     assertFinite(report);
-    if (flags.json === true) printJson(io, { design: designSummary(design), ...report });
+    if (flags.json === true) printJson(io, { design: designSummary(design), figure: figureSummary(design), ...figureNamed(report, design) });
     else {
-      io.out(`${headerLine(design, { withTemperature: false })}\nimportance sampling on the exact model\n\n${renderTail(report)}`);
+      io.out(`${headerLine(design, { withTemperature: false })}\nimportance sampling on the exact model\n\n${renderTail(report, design)}`);
     }
     setExit(0);
   });

@@ -213,7 +213,14 @@ function readSpec(top: Mapping, def: StageDefinition): Design['spec'] {
   for (const key of Object.keys(map)) if (key !== fig.specKey && key !== 'instances') throw unknownSpecKey(def, key);
   const off = own(map, fig.specKey);
   if (off === undefined) throw missing(`spec.${fig.specKey}`, `the ${fig.label} limit, e.g. ${fig.example}`);
-  const limit = positiveQuantity(off, fig.dimension, `spec.${fig.specKey}`);
+  let limit: number;
+  try {
+    limit = positiveQuantity(off, fig.dimension, `spec.${fig.specKey}`);
+  } catch (e) {
+    // A dimensionless figure's limit is a percentage or a plain fraction: say so rather than "a plain number".
+    if (fig.unit !== '' || !(e instanceof InputError) || !e.message.includes('expected a plain number')) throw e;
+    throw new InputError(`spec.${fig.specKey}`, `expected a ${fig.label} limit as a percentage or a fraction, e.g. ${fig.example}, got ${describeValue(off)}`);
+  }
   const instRaw = own(map, 'instances');
   let instances = 1;
   if (instRaw !== undefined) {

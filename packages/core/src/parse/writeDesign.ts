@@ -119,7 +119,7 @@ export function writeDesign(design: Design, header: readonly string[] = []): str
       ...(design.process.p === undefined ? {} : { p: params(design.process.p) }),
       ...(design.process.resistor === undefined ? {} : { resistor: { ar: quantity(design.process.resistor.ar, 'abeta') } }),
     },
-    spec: { [fig.specKey]: limit === undefined ? undefined : fig.unit === '' ? limit : quantity(limit, fig.dimension), instances: design.spec.instances },
+    spec: { [fig.specKey]: limit === undefined ? undefined : fig.unit === '' ? withUnit(limit, -2, '%') : quantity(limit, fig.dimension), instances: design.spec.instances },
   };
   const doc = new Document(data);
   const celsius = Number((design.temperature - ZERO_CELSIUS_K).toFixed(6));

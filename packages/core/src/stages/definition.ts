@@ -7,7 +7,7 @@
 import type { Design, Polarity, TopologyName } from '../design.js';
 import type { InversionRegion } from '../ekv.js';
 import type { Dimension } from '../units.js';
-import type { RandomVariable } from '../variables.js';
+import type { MismatchParameter, RandomVariable } from '../variables.js';
 
 /** A numeric design-file field owned by a stage (top level such as `tail`, or inside a block). */
 export interface FieldDefinition {
@@ -48,6 +48,11 @@ export interface BlockDefinition {
   readonly example: (inputPolarity: Polarity) => string;
   /** Whether `size` and `sweep` may vary its geometry (and `both` includes it). */
   readonly sizable: boolean;
+  /**
+   * Words for the first-order coefficient of each of its mismatch terms, for messages
+   * (`(I_sources/gm_in) A_beta/sqrt(WL_sources)`); without them, the differential stages' forms.
+   */
+  readonly terms?: Readonly<Partial<Record<MismatchParameter, string>>>;
 }
 
 /** The figure each sample produces, and how the spec limits it. */

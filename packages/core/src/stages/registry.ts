@@ -4,13 +4,15 @@
  */
 import { closestWord } from '../parse/didYouMean.js';
 import { InputError } from '../errors.js';
+import { CURRENT_MIRROR_STAGE } from './currentMirror.js';
 import type { StageDefinition } from './definition.js';
+import { FOLDED_STAGE } from './folded.js';
 import { MIRROR_STAGE } from './mirror.js';
 import { RESISTOR_STAGE } from './resistor.js';
 import { SIMPLE_STAGE } from './simple.js';
 
 /** Every stage type, in the order help texts list them. */
-export const STAGES: readonly StageDefinition[] = [SIMPLE_STAGE, MIRROR_STAGE, RESISTOR_STAGE];
+export const STAGES: readonly StageDefinition[] = [SIMPLE_STAGE, MIRROR_STAGE, RESISTOR_STAGE, FOLDED_STAGE, CURRENT_MIRROR_STAGE];
 
 /** The topology names, as a design file writes them. */
 export const TOPOLOGIES: readonly string[] = STAGES.map((s) => s.topology);
@@ -26,9 +28,14 @@ export function topologiesWith(key: string): string[] {
  */
 export function lacksText(def: StageDefinition, key: string): string {
   const owners = topologiesWith(key);
-  const have = owners.length === 0 ? '' : ` (the ${owners.join(' or ')} stage${owners.length > 1 ? 's have' : ' has'} one)`;
+  const have = owners.length === 0 ? '' : ` (the ${alternatives(owners)} stage${owners.length > 1 ? 's have' : ' has'} one)`;
   const ideal = def.topology === 'simple' && key === 'load' ? ' (ideal loads)' : '';
-  return `a ${key}${have}, but this design is a ${def.topology} stage${ideal}`;
+  return `${/^[aeiou]/.test(key) ? 'an' : 'a'} ${key}${have}, but this design is a ${def.topology} stage${ideal}`;
+}
+
+/** `a`, `a or b`, `a, b or c`: a list of alternatives in words. */
+export function alternatives(items: readonly string[]): string {
+  return items.length <= 1 ? items.join('') : `${items.slice(0, -1).join(', ')} or ${items[items.length - 1]!}`;
 }
 
 /**

@@ -70,6 +70,11 @@ export function inThreadExecutor(): Executor {
   };
 }
 
+/** The worker flag that turns off require() of ES modules, where this Node version has it. */
+const IMPORT_ONLY = process.allowedNodeEnvironmentFlags.has('--no-experimental-require-module')
+  ? ['--no-experimental-require-module']
+  : [];
+
 /**
  * A piscina pool of `workers` threads. Under vitest (sources) the worker is `worker.ts`, loaded
  * through tsx; built, it is `worker.js`.
@@ -83,8 +88,12 @@ export function poolExecutor(workers: number): Executor {
     maxThreads: workers,
     idleTimeout: 60_000,
     // Built workers need none of the parent's flags (a loader such as tsx would only slow
-    // their start); from sources they need tsx to load TypeScript.
-    execArgv: fromSource ? ['--import', 'tsx'] : [],
+    // their start); from sources they need tsx to load TypeScript. Every worker loads its
+    // module through import(), never require(): piscina tries require() first, and on Node 20
+    // a thread terminated inside require() of an ES module (a replacement thread that close()
+    // ends while it is still loading) fails an assertion in module_wrap.cc that aborts the
+    // whole process. With require(esm) switched off piscina falls back to import().
+    execArgv: [...(fromSource ? ['--import', 'tsx'] : []), ...IMPORT_ONLY],
   });
   let closed = false;
   // Every thread the pool has started, until it exits. piscina 5.3.2 drops a crashed worker, or

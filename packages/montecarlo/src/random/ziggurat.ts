@@ -33,6 +33,24 @@ const FN = new Float64Array(128);
 }
 const INV_R = 1 / R;
 
+/** The right edge r of the base strip: beyond it every deviate comes from {@link normalTail}. */
+export const ZIGGURAT_EDGE = R;
+
+/**
+ * One draw of |Z| conditioned on |Z| > r, r the base strip's edge (Marsaglia's tail method, as
+ * in Marsaglia & Tsang 2000): x = -ln(U1)/r is proposed from the exponential, accepted when
+ * -2 ln(U2) > x^2, that is with probability e^{-x^2/2}; the result is r + x.
+ */
+export function normalTail(rng: ChunkRng): number {
+  let xx: number;
+  let y: number;
+  do {
+    xx = -Math.log(rng.double()) * INV_R;
+    y = -Math.log(rng.double());
+  } while (y + y < xx * xx);
+  return R + xx;
+}
+
 /** The rare path: outside the rectangles (about 1.2% of draws). */
 function slow(rng: ChunkRng, first: number): number {
   let hz = first;
@@ -40,13 +58,8 @@ function slow(rng: ChunkRng, first: number): number {
     const iz = hz & 127;
     const x = hz * WN[iz]!;
     if (iz === 0) {
-      let xx: number;
-      let y: number;
-      do {
-        xx = -Math.log(rng.double()) * INV_R;
-        y = -Math.log(rng.double());
-      } while (y + y < xx * xx);
-      return hz > 0 ? R + xx : -R - xx;
+      const t = normalTail(rng);
+      return hz > 0 ? t : -t;
     }
     if (FN[iz]! + rng.double() * (FN[iz - 1]! - FN[iz]!) < Math.exp(-0.5 * x * x)) return x;
     hz = rng.int32();

@@ -3,7 +3,7 @@
  * one-parameter families of designs it searches over. Every size leaves the bias (tail current,
  * temperature) alone, so changing W or L alone moves the inversion coefficient and gm/I_D.
  */
-import { InputError, lacksText, stageDefinition, type BlockDefinition, type Design, type DeviceGeometry, type StageDefinition } from '@twinfet/core';
+import { InputError, lacksText, STAGES, stageDefinition, type BlockDefinition, type Design, type DeviceGeometry, type StageDefinition } from '@twinfet/core';
 
 /**
  * What sizing may change: one dimension of one block (`input.w`, `load.l`), its gate or body
@@ -18,8 +18,8 @@ export function sizeVariations(def: StageDefinition): SizeVary[] {
   return blocks.length > 1 ? [...out, 'both'] : out;
 }
 
-/** Every variation some stage type accepts (input.w ... load.area, both), for help texts. */
-export const SIZE_VARIATIONS: readonly SizeVary[] = ['input.w', 'input.l', 'input.area', 'load.w', 'load.l', 'load.area', 'both'];
+/** Every variation some stage type accepts (input.w ... load.area, ..., both), for help texts. */
+export const SIZE_VARIATIONS: readonly SizeVary[] = [...new Set(STAGES.flatMap(sizeVariations).filter((v) => v !== 'both')), 'both'];
 
 /** The sizable blocks of a design's stage type. */
 export function sizableBlocks(design: Design): BlockDefinition[] {

@@ -1,5 +1,5 @@
 /**
- * Sizing a pair for an offset target: solve on the linearised model, then confirm on the exact
+ * Sizing a pair for a target on the stage's figure (an offset, a current error): solve on the linearised model, then confirm on the exact
  * model (Monte Carlo for sigma and moderate yields, importance sampling for high-sigma yields)
  * and scale up a little until the confirmed figure meets the target with its interval.
  */
@@ -16,7 +16,7 @@ import { allowedFailure, chipYieldFromFailure } from '../stats/yield.js';
 
 /** What the sized design must achieve. */
 export type SizeTarget =
-  /** Offset sigma at most `sigma` volts. */
+  /** Sigma of the figure at most `sigma`, in the figure's unit (volts for an offset, a fraction for a current error). */
   | { readonly kind: 'sigma'; readonly sigma: number }
   /** Instance yield P(|Vos| <= spec) at least `yield`. */
   | { readonly kind: 'yield'; readonly yield: number }
@@ -28,7 +28,7 @@ export interface SizeOptions {
   readonly target: SizeTarget;
   /** What may change (default `input.w`). */
   readonly vary?: SizeVary;
-  /** |Vos| limit for yields, volts (default: the design's spec). */
+  /** Limit of the figure for yields, in its unit (default: the design's spec). */
   readonly spec?: number;
   /** Monte Carlo samples per confirmation of a sigma target (default 200000); yields use at least 384/p. */
   readonly samples?: number;
@@ -141,7 +141,7 @@ export interface SizeReport {
     /** resultArea / ruleArea. */
     readonly ratio: number;
   };
-  /** For `both`: the optimum split against scaling both pairs by one factor (linearised solutions). */
+  /** For `both`: the optimum split against scaling every sizable block by one factor (linearised solutions). */
   readonly split: null | {
     readonly inputCoefficient: number;
     readonly loadCoefficient: number;
@@ -214,34 +214,48 @@ export function sizedPoint(design: Design, vary: SizeVary, scale: number, spec: 
   };
 }
 
-const mvText = (v: number): string => `${Number((v * 1e3).toPrecision(4))} mV`;
+/** A value of the design's figure in messages: an offset in mV, a dimensionless figure in %. */
+function figureValue(design: Design, x: number): string {
+  const unit = stageDefinition(design.topology).figure.unit;
+  if (unit === 'V') return `${Number((x * 1e3).toPrecision(4))} mV`;
+  return unit === '' ? `${Number((x * 100).toPrecision(4))} %` : formatQuantity(x, unit, 4);
+}
 
-/** The words for a budget term: block, parameter and the first-order coefficient in front of it. */
-function termName(role: string, parameter: string): string {
+/**
+ * The words for a budget term: block, parameter and the first-order coefficient in front of it
+ * (the block's own words where its definition gives them, else the differential stages' forms).
+ */
+function termName(design: Design, role: string, parameter: string): string {
   const label = MISMATCH_PARAMETERS[parameter as keyof typeof MISMATCH_PARAMETERS]?.label ?? parameter;
+  const block = stageDefinition(design.topology).blocks.find((b) => b.key === role);
   const coefficient =
     role === 'input'
       ? { vt: 'A_VT/sqrt(WL)', beta: '(I_D/gm) A_beta/sqrt(WL)', r: '(I_D/gm) A_R/sqrt(WL)' }
       : { vt: `(gm_${role}/gm_in) A_VT/sqrt(WL_${role})`, beta: `(I_D/gm_in) A_beta/sqrt(WL_${role})`, r: `(I_D/gm_in) A_R/sqrt(WL_${role})` };
-  return `the ${role} pair ${label} term ${coefficient[parameter as keyof typeof coefficient] ?? ''}`.trimEnd();
+  const words = block?.terms?.[parameter as keyof typeof coefficient] ?? coefficient[parameter as keyof typeof coefficient] ?? '';
+  return `the ${role} ${block?.elements.length === 1 ? 'device' : 'pair'} ${label} term ${words}`.trimEnd();
 }
 
 /** Why the limiting term does not fall further along this family, in words. */
 function floorReason(vary: SizeVary, f: LinearisedFloor, family: SizingFamily): string {
   const term = f.limiting;
   const design = family.at(family.range[0]);
-  const name = `${termName(term.role, term.parameter)} (${(term.share * 100).toFixed(0)}% of sigma^2 there)`;
+  const name = `${termName(design, term.role, term.parameter)} (${(term.share * 100).toFixed(0)}% of sigma^2 there)`;
   const varied = variedRoles(design, vary).includes(term.role);
+  // The input-referred offset divides every other block's term by gm_in, which the reasons
+  // below rely on; another figure gets the reasons that hold for any first-order sum.
+  const inputReferred = stageDefinition(design.topology).figure.name === 'offset';
   if (!varied) {
     const fix = `vary ${term.role}.area${sizableBlocks(design).length > 1 ? ' or both' : ''}`;
     let why: string;
-    if (vary === 'input.w') why = 'which widening the input pair lowers only until its gm/I_D saturates in weak inversion';
+    if (!inputReferred) why = `which varying ${vary} does not bring down far enough`;
+    else if (vary === 'input.w') why = 'which widening the input pair lowers only until its gm/I_D saturates in weak inversion';
     else if (vary === 'input.l') why = 'which grows as the input pair is lengthened (gm_in falls at fixed bias)';
     else if (vary === 'input.area') why = 'which sizing the input pair at fixed W/L does not change';
     else why = `which sizing the ${splitVary(vary).role} does not change`;
     return `set by ${name}, ${why}; ${fix}`;
   }
-  if (vary.endsWith('.l') && term.parameter === 'beta') {
+  if (inputReferred && vary.endsWith('.l') && term.parameter === 'beta') {
     return `set by ${name}, which stops falling as L grows at fixed W and bias (I_D/gm rises as sqrt(L) in strong inversion); vary ${term.role}.w or ${term.role}.area`;
   }
   if (f.atMaximum) return `set by ${name} at the largest size searched (${family.limitText})`;
@@ -250,9 +264,11 @@ function floorReason(vary: SizeVary, f: LinearisedFloor, family: SizingFamily): 
 
 /** The refusal for a target below the family's floor. */
 function unreachable(option: string, targetText: string, vary: SizeVary, f: LinearisedFloor, family: SizingFamily, spec: number, yieldTarget: boolean): InputError {
+  const design = family.at(family.range[0]);
+  const v = (x: number): string => figureValue(design, x);
   const best = yieldTarget
-    ? `the best instance yield is ${(1 - gaussianFailure(family.at(family.range[0]), spec, f.floor.sigma)).toPrecision(6)} (lowest linearised sigma ${mvText(f.floor.sigma)} at spec ${mvText(spec)})`
-    : `the lowest linearised sigma is ${mvText(f.floor.sigma)}`;
+    ? `the best instance yield is ${(1 - gaussianFailure(design, spec, f.floor.sigma)).toPrecision(6)} (lowest linearised sigma ${v(f.floor.sigma)} at spec ${v(spec)})`
+    : `the lowest linearised sigma is ${v(f.floor.sigma)}`;
   return new InputError(option, `${targetText} cannot be met by varying ${vary}: ${best}, ${floorReason(vary, f, family)}`);
 }
 
@@ -271,10 +287,11 @@ function plan(design: Design, o: SizeOptions, spec: number, confidence: number):
   const c = `${Math.round(confidence * 1000) / 10}%`;
   const z = normalQuantile(1 - (1 - confidence) / 2);
   if (t.kind === 'sigma') {
-    if (!(t.sigma > 0 && Number.isFinite(t.sigma))) throw new InputError('sigma', `expected a positive offset sigma in volts, got ${String(t.sigma)}`);
+    const fig = stageDefinition(design.topology).figure;
+    if (!(t.sigma > 0 && Number.isFinite(t.sigma))) throw new InputError('sigma', `expected a positive ${fig.label} sigma (${fig.unit === '' ? 'a fraction' : fig.unit}), got ${String(t.sigma)}`);
     return {
       option: 'sigma',
-      targetText: `offset sigma ${mvText(t.sigma)}`,
+      targetText: `${fig.label} sigma ${figureValue(design, t.sigma)}`,
       sigmaTarget: t.sigma,
       allowed: null,
       method: 'monte-carlo',
@@ -323,7 +340,7 @@ function plan(design: Design, o: SizeOptions, spec: number, confidence: number):
 }
 
 /**
- * Sizes the design for an offset target (see the module comment), keeping the bias.
+ * Sizes the design for a target on its figure (see the module comment), keeping the bias.
  * @throws InputError naming the target when it cannot be met, or a bad option
  * @example
  * const r = await sizeDesign(design, { target: { kind: 'sigma', sigma: 2e-3 }, vary: 'input.area' });
@@ -334,7 +351,7 @@ export async function sizeDesign(design: Design, options: SizeOptions): Promise<
   const vary = options.vary ?? 'input.w';
   checkVary(design, vary);
   const spec = options.spec ?? specLimit(design);
-  if (!(spec > 0 && Number.isFinite(spec))) throw new InputError('spec', `expected a positive offset limit in volts, got ${String(spec)}`);
+  if (!(spec > 0 && Number.isFinite(spec))) throw new InputError('spec', `expected a positive limit of the figure in its unit, got ${String(spec)}`);
   const confidence = options.confidence ?? 0.95;
   if (!(confidence > 0 && confidence < 1)) throw new InputError('confidence', `expected a level strictly between 0 and 1 such as 0.95, got ${String(confidence)}`);
   const pl = plan(design, options, spec, confidence);
@@ -344,7 +361,7 @@ export async function sizeDesign(design: Design, options: SizeOptions): Promise<
   const family = split === undefined ? singlePairFamily(design, vary) : optimalSplitFamily(design, split);
   const lin = solveLinearised(family, pl.sigmaTarget);
   if (!lin.reached) throw unreachable(pl.option, pl.targetText, vary, lin, family, spec, pl.allowed !== null);
-  if (lin.atMinimum) notes.push(`the target is met already at the smallest size allowed (linearised sigma ${mvText(lin.sigma)}); the devices are set to that minimum`);
+  if (lin.atMinimum) notes.push(`the target is met already at the smallest size allowed (linearised sigma ${figureValue(design, lin.sigma)}); the devices are set to that minimum`);
 
   const original = sizedPoint(design, vary, 1, spec);
   const linearised = { ...sizedPoint(lin.design, vary, lin.t, spec), atMinimum: lin.atMinimum };
@@ -402,11 +419,11 @@ async function confirmAlong(
       confirmations.push(conf);
       if (conf.met) return { confirmations, current };
       if (i >= maxRefinements) {
-        throw new InputError(pl.option, `${pl.targetText} was not confirmed on the exact model after ${i + 1} confirmations (last: ${describeFigure(conf)}); use more samples or relax the target`);
+        throw new InputError(pl.option, `${pl.targetText} was not confirmed on the exact model after ${i + 1} confirmations (last: ${describeFigure(conf, lin.design)}); use more samples or relax the target`);
       }
       const next = refine(family, current, conf, pl);
       if (!next.reached) {
-        throw new InputError(pl.option, `${pl.targetText} cannot be confirmed by varying ${vary}: the exact model needs a lower linearised sigma than ${mvText(next.floor.sigma)}, the lowest reachable, ${floorReason(vary, next, family)}`);
+        throw new InputError(pl.option, `${pl.targetText} cannot be confirmed by varying ${vary}: the exact model needs a lower linearised sigma than ${figureValue(lin.design, next.floor.sigma)}, the lowest reachable, ${floorReason(vary, next, family)}`);
       }
       current = next;
     }
@@ -419,7 +436,9 @@ async function confirmAlong(
 function sizingNotes(design: Design, sized: Design, vary: SizeVary): string[] {
   const notes: string[] = [];
   if (vary !== 'both' && sizableBlocks(design).length > 1) {
-    notes.push('the area rule assumes all of sigma^2 scales with the varied area; here the other pair keeps its part, so more area is needed than the rule says');
+    const others = sizableBlocks(design).filter((b) => !variedRoles(design, vary).includes(b.key));
+    const keep = others.length === 1 && others[0]!.elements.length === 2 ? 'the other pair keeps its part' : `the ${others.map((b) => b.key).join(' and ')} keep${others.length === 1 ? 's its' : ' their'} part`;
+    notes.push(`the area rule assumes all of sigma^2 scales with the varied area; here ${keep}, so more area is needed than the rule says`);
   }
   if (vary.endsWith('.w') || vary.endsWith('.l')) {
     notes.push(`changing only ${vary.endsWith('.w') ? 'W' : 'L'} at fixed bias moves the inversion coefficient and gm/I_D, so the dbeta/beta and load terms change too`);
@@ -441,7 +460,8 @@ function sizingNotes(design: Design, sized: Design, vary: SizeVary): string[] {
 function splitComparison(design: Design, split: AreaSplit, lin: LinearisedSolution, sigmaTarget: number, notes: string[]): SizeReport['split'] {
   const eq = solveLinearised(equalScalingFamily(design), sigmaTarget);
   if (!eq.reached) {
-    notes.push('scaling both pairs by one factor cannot reach the target within the allowed sizes, so there is no equal-scaling comparison');
+    const n = split.blocks.length;
+    notes.push(`scaling ${n === 2 ? 'both pairs' : `all ${n} blocks`} by one factor cannot reach the target within the allowed sizes, so there is no equal-scaling comparison`);
     return null;
   }
   const blocks = split.blocks;
@@ -466,9 +486,10 @@ function splitComparison(design: Design, split: AreaSplit, lin: LinearisedSoluti
   };
 }
 
-function describeFigure(c: Confirmation): string {
+function describeFigure(c: Confirmation, design: Design): string {
+  const v = (x: number): string => figureValue(design, x);
   if (c.sigma !== null && c.sigmaInterval !== null && c.method === 'monte-carlo') {
-    return `sigma ${mvText(c.sigma)} [${mvText(c.sigmaInterval[0])}, ${mvText(c.sigmaInterval[1])}], failure ${c.failure.toPrecision(3)} [${c.failureInterval[0].toPrecision(3)}, ${c.failureInterval[1].toPrecision(3)}]`;
+    return `sigma ${v(c.sigma)} [${v(c.sigmaInterval[0])}, ${v(c.sigmaInterval[1])}], failure ${c.failure.toPrecision(3)} [${c.failureInterval[0].toPrecision(3)}, ${c.failureInterval[1].toPrecision(3)}]`;
   }
   return `failure ${c.failure.toPrecision(3)} [${c.failureInterval[0].toPrecision(3)}, ${c.failureInterval[1].toPrecision(3)}]`;
 }
