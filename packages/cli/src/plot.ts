@@ -13,18 +13,29 @@ export const MAX_DISPLAY_BINS = 200;
 /** Points on the drawn Gaussian curve: smooth at the plot's width, still cheap. */
 const CURVE_POINTS = 401;
 
-/** How a figure is shown on an axis: its name and the display unit with its factor from SI. */
-export interface DisplayQuantity {
-  /** Name and symbol, e.g. "offset Vos". */
+/**
+ * The figure a plot shows and its display unit: `scale` takes the figure's SI value to `unit`.
+ * Without one, plots show an offset in millivolts.
+ */
+export interface PlotFigure {
+  /** Words for the axis ("offset", "current error"). */
   readonly label: string;
-  /** Display unit, e.g. "mV" ("" for none). */
+  /** Its symbol ("Vos", "e"). */
+  readonly symbol: string;
+  /** Display unit ("mV", "%"; "" for none). */
   readonly unit: string;
-  /** Factor from the SI value to the display unit, e.g. 1e3 for V to mV. */
+  /** Factor from the SI value to the display unit (1e3 for V to mV, 100 for a fraction in %). */
   readonly scale: number;
 }
 
-/** The offset in millivolts: the figure of the existing stages. */
-export const OFFSET_MV: DisplayQuantity = { label: 'offset Vos', unit: 'mV', scale: 1e3 };
+/** The offset in millivolts: what a plot shows when no figure is given. */
+export const OFFSET_PLOT_FIGURE: PlotFigure = { label: 'offset', symbol: 'Vos', unit: 'mV', scale: 1e3 };
+
+/** An axis label for the figure: "offset Vos (mV)", or with words after the name ("offset sigma (mV)"). */
+export function figureAxisLabel(f: PlotFigure, after?: string): string {
+  const name = after === undefined ? `${f.label} ${f.symbol}` : `${f.label} ${after}`;
+  return f.unit === '' ? name : `${name} (${f.unit})`;
+}
 
 /** Histogram of a sampled figure, all values in SI units (volts for the offset). */
 export interface HistogramInput {
@@ -44,8 +55,8 @@ export interface HistogramInput {
   spec?: number;
   /** Which limits the spec sets: 'two' (the default) |figure| <= spec, 'one' figure <= spec. */
   specSides?: 'two' | 'one';
-  /** The figure's name and display unit (default: offset Vos in mV). */
-  quantity?: DisplayQuantity;
+  /** What the values are (default: the offset in mV). */
+  figure?: PlotFigure;
   /** Extra line under the title (the sample statistics line is always shown). */
   subtitle?: string;
   /** Id of the SVG (unique within a page; default "histogram"). */
@@ -96,8 +107,8 @@ export interface SweepInput {
   sigmaTarget?: number;
   /** Yield target as a fraction: 1 - yieldTarget is drawn as the failure target. */
   yieldTarget?: number;
-  /** What the sigmas are of and their display unit (default: the offset in mV). */
-  quantity?: DisplayQuantity;
+  /** What the sigmas are of (default: the offset in mV). */
+  figure?: PlotFigure;
 }
 
 /** A histogram's bins after merging. */
@@ -175,7 +186,7 @@ export function shown(v: number, unit: string): string {
  */
 export function histogramChart(input: HistogramInput): Chart {
   validateHistogram(input);
-  const q = input.quantity ?? OFFSET_MV;
+  const q = input.figure ?? OFFSET_PLOT_FIGURE;
   const k = q.scale;
   const bins = rebin(input.binEdges, input.counts, MAX_DISPLAY_BINS);
   const nBins = bins.counts.length;
@@ -229,10 +240,10 @@ export function histogramChart(input: HistogramInput): Chart {
     id: input.id ?? 'histogram',
     ...(input.title === undefined ? {} : { title: input.title }),
     subtitle,
-    description: `Histogram of ${input.samples} sampled values of the ${q.label} with the fitted Gaussian${spec === undefined ? '' : ' and the spec lines'}. ${stats}.`,
+    description: `Histogram of ${input.samples} sampled values of the ${q.label} ${q.symbol} with the fitted Gaussian${spec === undefined ? '' : ' and the spec lines'}. ${stats}.`,
     panels: [
       {
-        x: linearAxis(`${q.label}${u === '' ? '' : ` (${u})`}`, [xLo * k, xHi * k]),
+        x: linearAxis(figureAxisLabel(q), [xLo * k, xHi * k]),
         y: linearAxis('samples per bin', [0, peak * 1.04], { zero: true, pad: 0.02 }),
         layers,
         height: 280,
@@ -290,8 +301,8 @@ export function sweepChart(input: SweepInput): Chart {
   const xTitle = input.fieldUnit === '' ? input.field : `${input.field} (${input.fieldUnit})`;
   const xs = input.points.map((p) => p.x * input.xScale);
   const xAxis = input.log ? logAxis(xTitle, xs) : linearAxis(xTitle, xs);
-  const q = input.quantity ?? OFFSET_MV;
-  const mv = q.scale;
+  const fig = input.figure ?? OFFSET_PLOT_FIGURE;
+  const mv = fig.scale;
 
   // Top panel: sigma in the figure's display unit (millivolts for an offset).
   const sigmaLayers: Layer[] = [
@@ -304,10 +315,10 @@ export function sweepChart(input: SweepInput): Chart {
   const sigmaValues = [...input.points.map((p) => p.analyticSigma * mv), ...mcPoints.map((p) => p.y), ...bars.flatMap((b) => [b.lo, b.hi])];
   if (input.sigmaTarget !== undefined) {
     const t = input.sigmaTarget * mv;
-    sigmaLayers.push({ kind: 'rule', name: 'target-sigma', legend: 'target sigma', axis: 'y', value: t, label: `target sigma ${shown(t, q.unit)}`, stroke: COLOR.limit, dash: DASH.target });
+    sigmaLayers.push({ kind: 'rule', name: 'target-sigma', legend: 'target sigma', axis: 'y', value: t, label: `target sigma ${shown(t, fig.unit)}`, stroke: COLOR.limit, dash: DASH.target });
     sigmaValues.push(t);
   }
-  const sigmaPanel: Panel = { x: xAxis, y: linearAxis(`${q.label} sigma (${q.unit})`, sigmaValues, { pad: 0.08 }), layers: sigmaLayers, height: 220 };
+  const sigmaPanel: Panel = { x: xAxis, y: linearAxis(figureAxisLabel(fig, 'sigma'), sigmaValues, { pad: 0.08 }), layers: sigmaLayers, height: 220 };
 
   // Bottom panel: failure probabilities, positive values only (log axis).
   let mcZero = 0;
@@ -369,7 +380,7 @@ export function sweepChart(input: SweepInput): Chart {
     id: 'sweep',
     title: input.title,
     ...(notes.length > 0 ? { subtitle: notes } : {}),
-    description: `Offset sigma and failure probability against ${input.field} over ${input.points.length} points.`,
+    description: `Sigma of the ${fig.label} and failure probability against ${input.field} over ${input.points.length} points.`,
     panels: [sigmaPanel, failPanel],
   };
 }
@@ -394,8 +405,8 @@ export interface ResponseInput {
   };
   /** The spec on the input (in the figure's SI unit, > 0): drawn as a rule. */
   spec: number;
-  /** The quantity the input is in (default: the offset in mV). */
-  quantity?: DisplayQuantity;
+  /** The figure the input is in (default: the offset in mV). */
+  figure?: PlotFigure;
 }
 
 function validateResponse(input: ResponseInput): void {
@@ -421,7 +432,7 @@ function validateResponse(input: ResponseInput): void {
 export function responseChart(input: ResponseInput): Chart {
   validateResponse(input);
   const e = input.envelope;
-  const q = input.quantity ?? OFFSET_MV;
+  const q = input.figure ?? OFFSET_PLOT_FIGURE;
   const xs = e.x.map((v) => v * q.scale);
   const pct = (v: number): number => 100 * v;
   const sorted = [...e.bands].sort((a, b) => a.p - b.p);

@@ -1,5 +1,5 @@
 import type { RunReport } from '@twinfet/montecarlo';
-import { histogramChart, type DisplayQuantity, type HistogramInput } from './plot.js';
+import { histogramChart, type HistogramInput, type PlotFigure } from './plot.js';
 import type { Chart } from './chart/chart.js';
 
 /**
@@ -20,7 +20,7 @@ export function runBins(report: RunReport, specSides: 'two' | 'one' = 'two'): { 
 }
 
 /** The histogram chart of a run (the `run --plot` figure and the report's distribution figure). */
-export function runHistogramChart(report: RunReport, options: { title?: string; id?: string; quantity?: DisplayQuantity; specSides?: 'two' | 'one' } = {}): Chart {
+export function runHistogramChart(report: RunReport, options: { title?: string; id?: string; figure?: PlotFigure; specSides?: 'two' | 'one' } = {}): Chart {
   const input: HistogramInput = {
     ...runBins(report, options.specSides),
     samples: report.evaluated,

@@ -155,7 +155,7 @@ describe('histogramChart', () => {
   });
 
   it('shows another figure in its own unit', () => {
-    const chart = histogramChart({ ...gaussianHistogram(40), quantity: { label: 'current error e', unit: '%', scale: 100 } });
+    const chart = histogramChart({ ...gaussianHistogram(40), figure: { label: 'current error', symbol: 'e', unit: '%', scale: 100 } });
     expect(chart.panels[0]!.x.label).toBe('current error e (%)');
     expect(layer<RuleLayer>(chart, 'spec-high').label).toBe('+spec 0.5 %');
   });

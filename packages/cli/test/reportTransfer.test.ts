@@ -1,4 +1,6 @@
+import { fileURLToPath } from 'node:url';
 import { compileStage, STAGES, type Design } from '@twinfet/core';
+import { loadDesign } from '../src/designFile.js';
 import { simulateWithSamples } from '@twinfet/montecarlo';
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
@@ -75,7 +77,7 @@ describe('transfer curves of the pair stages', () => {
   it('has the slope of one input device at balance: Gm = gm (Razavi, Design of Analog CMOS Integrated Circuits, 2nd ed., 2017, ch. 4 and 5)', () => {
     for (const d of designs) {
       const { stage, t } = transferOf(d);
-      const s = studied(stage, t, 'slope', 20).slope;
+      const s = studied(stage, t, 'slope', 20).slope!;
       // Central difference at 1e-6 of the close-up's width: truncation and rounding below 1e-9 relative.
       expect(Math.abs(Math.abs(s.nominal) / stage.operatingPoint[0]!.gm - 1)).toBeLessThan(1e-6);
     }
@@ -132,5 +134,34 @@ describe('transfer curves of the pair stages', () => {
       expect(reportStageFor(s.topology), `add a ReportStage for the ${s.topology} stage in packages/cli/src/report/stages/ (README: A new stage type in the report)`).toBeDefined();
     }
     expect(reportStageFor('no-such-stage')).toBeUndefined();
+  });
+
+  it('folded-cascode stage: each instance balances where the exact model puts its offset, with Gm = gm at balance', async () => {
+    const d = await loadDesign(fileURLToPath(new URL('../../../examples/folded-cascode-ota.yaml', import.meta.url)));
+    const { stage, t } = transferOf(d);
+    const study = studied(stage, t, 'folded-check', 40);
+    const draws = firstDraws('folded-check', stage.dimension, 40);
+    // Both solves stop near 1e-15 V; 1e-12 V is a thousand times that.
+    study.balances.forEach((x, k) => expect(Math.abs(x! - stage.figure(draws, k * stage.dimension))).toBeLessThan(1e-12));
+    // Nominal: I8 = I5 - I1 and I5 = I6, so the output is I1 - I2 and its slope the input gm
+    // (Razavi 2017, ch. 9, the folded cascode's Gm); central difference below 1e-9 relative.
+    expect(Math.abs(study.slope!.nominal / stage.operatingPoint[0]!.gm - 1)).toBeLessThan(1e-6);
+  });
+
+  it('current mirror: at the nominal input each instance\'s error is the exact model\'s figure; no balance point', async () => {
+    const d = await loadDesign(fileURLToPath(new URL('../../../examples/bias-mirror.yaml', import.meta.url)));
+    const { stage, t } = transferOf(d);
+    expect(t.balance).toBeUndefined();
+    const draws = firstDraws('mirror-check', stage.dimension, 40);
+    const at = Float64Array.of(stage.operatingPoint[0]!.current);
+    const out = new Float64Array(1);
+    for (let k = 0; k < 40; k++) {
+      t.evaluate(draws, k * stage.dimension, at, out);
+      // The same EKV expressions in another arrangement: rounding only (errors are ~1e-3).
+      expect(Math.abs(out[0]! - stage.figure(draws, k * stage.dimension))).toBeLessThan(1e-12);
+    }
+    const s = studied(stage, t, 'mirror-check', 40);
+    expect(s.slope).toBeNull();
+    expect(s.balances).toEqual([]);
   });
 });

@@ -176,8 +176,8 @@ describe('mirror orientation where the balance solves by hand', () => {
     const pin = d.process.n!;
     const pl = d.process.p!;
     const kIn = (pin.kp * d.input.w) / d.input.l / (2 * pin.slope);
-    const kL = (pl.kp * d.load!.w) / d.load!.l / (2 * pl.slope);
-    const want = -sigmaVt(pl, d.load!.w, d.load!.l) * Math.sqrt(kL / kIn);
+    const kL = (pl.kp * (d['load'] as DeviceGeometry).w) / (d['load'] as DeviceGeometry).l / (2 * pl.slope);
+    const want = -sigmaVt(pl, (d['load'] as DeviceGeometry).w, (d['load'] as DeviceGeometry).l) * Math.sqrt(kL / kIn);
     expect(rel(oneDraw(d, 4), want)).toBeLessThan(1e-8);
     expect(rel(oneDraw(d, 6), -want)).toBeLessThan(1e-8);
   });
@@ -224,13 +224,13 @@ describe('mirror stage: a current factor beyond the range of doubles gives NaN, 
     const d: Design = { ...mirrorDesign, input: { polarity: 'n', w: side, l: side }, process: { n: { ...demoProcess.n, abeta: 1e-8 }, p: demoProcess.p } };
     const st = compileStage(d);
     const bad = Float64Array.of(0, 5000, 0, 0, 0, 0, 0, 0);
-    expect(Number.isNaN(st.offset(bad, 0))).toBe(true);
+    expect(Number.isNaN(st.figure(bad, 0))).toBe(true);
     const u = new Float64Array(8 * 3);
     u.set(bad, 0);
     u[8] = 1; // second sample: M1's V_T one sigma high, exactly +sigma(dV_T) (see above)
     u.set(Float64Array.of(0, 0, 0, -5000, 0, 0, 0, 0), 16);
     const out = new Float64Array(5).fill(7);
-    expect(st.offsets(u, 3, out, 2)).toBe(2);
+    expect(st.figures(u, 3, out, 2)).toBe(2);
     expect(out[0]).toBe(7);
     expect(out[1]).toBe(7);
     expect(Number.isNaN(out[2]!)).toBe(true);

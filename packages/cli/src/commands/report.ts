@@ -32,7 +32,7 @@ export function registerReport(program: Command, io: Io, setExit: (code: number)
       .argument('<design>', 'design file (YAML or JSON)')
       .option('--out <FILE.html>', 'the page to write')
       .option('--samples <N>', `Monte Carlo samples (default 100000, at least ${REPORT_MIN_SAMPLES})`)
-      .option('--spec <V>', "offset limit overriding the design's spec, e.g. 20mV")
+      .option('--spec <V>', "limit overriding the design's spec, e.g. 20mV (an offset) or 1% (a current error)")
       .option('--chip-yield <Y>', `chip-yield target the area study sizes for (default ${DEFAULT_CHIP_YIELD})`),
   ).action(async (file: string, flags: ReportFlags) => {
     const common = readCommon(flags);

@@ -73,10 +73,8 @@ async function writeSamplesCsv(path: string, outcome: RunOutcome): Promise<void>
 /** The histogram plot of a run, in the display unit of its figure. */
 export async function runPlot(report: RunReport, title: string): Promise<string> {
   // Loaded on demand, so a run without --plot does not load the plotting code.
-  const [{ chartSvg }, { runHistogramChart }, { displayQuantity }] = await Promise.all([import('../chart/chart.js'), import('../runHistogram.js'), import('../displayQuantity.js')]);
-  const f = report.figure;
-  const quantity = displayQuantity({ name: f.label, symbol: f.symbol, unit: f.unit === '' ? '%' : f.unit }, Math.max(report.offset.sigma, report.yield.spec));
-  return chartSvg(runHistogramChart(report, { title, quantity, specSides: f.sided }));
+  const [{ chartSvg }, { runHistogramChart }] = await Promise.all([import('../chart/chart.js'), import('../runHistogram.js')]);
+  return chartSvg(runHistogramChart(report, { title, figure: plotFigure(report.figure), specSides: report.figure.sided }));
 }
 
 /** Row labels of the text histogram: the offset in mV to 3 decimals as before, a dimensionless figure in %. */
@@ -106,7 +104,7 @@ export async function responsePlot(design: Design, report: RunReport, title: str
   // No sample could be evaluated at some lead (every solve failed): the histogram instead.
   if (envelope === undefined) return runPlot(report, title);
   const pf = plotFigure(report.figure);
-  return responseSvg({ title, envelope, spec, subtitle: `seed ${report.seed}`, quantity: { label: `${pf.label} ${pf.symbol}`, unit: pf.unit, scale: pf.scale } });
+  return responseSvg({ title, envelope, spec, subtitle: `seed ${report.seed}`, figure: pf });
 }
 
 const range = (iv: readonly [number, number], f: (v: number) => string): string => `[${f(iv[0])}, ${f(iv[1])}]`;

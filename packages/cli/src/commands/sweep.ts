@@ -303,7 +303,7 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
         points: plotPoints,
         ...(targetSigma === null ? {} : { sigmaTarget: targetSigma }),
         ...(targetYield === null ? {} : { yieldTarget: targetYield }),
-        quantity: (({ label, symbol, unit, scale }) => ({ label: `${label} ${symbol}`, unit, scale }))(plotFigure(report.figure)),
+        figure: plotFigure(report.figure),
       });
       await writeOutputFile(flags.plot, '--plot', svg);
     }

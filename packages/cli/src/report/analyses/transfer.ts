@@ -51,8 +51,9 @@ export interface TransferStudy {
   readonly full: TransferView;
   readonly zoom: TransferView;
   readonly law: { readonly name: string; readonly formula: string; readonly source: string } | { readonly none: string };
-  readonly slope: SlopeStudy;
-  /** Each instance's balance input, SI (equal to its figure in the run); null where none was found. */
+  /** The slope at balance over the instances; null for a stage without a balance point. */
+  readonly slope: SlopeStudy | null;
+  /** Each instance's balance input, SI (equal to its figure in the run); null where none was found. Empty without a balance point. */
   readonly balances: readonly (number | null)[];
 }
 
@@ -111,7 +112,7 @@ function balancePoint(t: StageTransfer, u: Float64Array, base: number, bracket: 
   const g = (v: number): number => {
     x[0] = v;
     t.evaluate(u, base, x, y);
-    return y[0]! - t.balance;
+    return y[0]! - (t.balance?.output ?? 0);
   };
   let [a, fa, b, fb] = bracket;
   if (fa === 0) return a;
@@ -173,13 +174,17 @@ export function studyTransfer(stage: Stage, t: StageTransfer, seed: string, coun
   const zeros = new Float64Array(dim);
   const nominalRow = new Float64Array(FULL_POINTS);
   t.evaluate(zeros, 0, fullX, nominalRow);
-  const nominalBracket = crossing(nominalRow, fullX, t.balance);
+  const balance = t.balance;
+  if (balance === undefined) {
+    return { input: t.input, output: t.output, instances: count, seed, full, zoom, law: 'none' in t.law ? { none: t.law.none } : { name: t.law.name, formula: t.law.formula, source: t.law.source }, slope: null, balances: [] };
+  }
+  const nominalBracket = crossing(nominalRow, fullX, balance.output);
   const nominalBalance = nominalBracket === null ? Number.NaN : balancePoint(t, zeros, 0, nominalBracket);
   const balances: (number | null)[] = [];
   const slopes: number[] = [];
   for (let k = 0; k < count; k++) {
     // The close-up grid brackets nearly every balance point; the whole curve the rest.
-    const bracket = crossing(zoomRows.subarray(k * ZOOM_POINTS, (k + 1) * ZOOM_POINTS), zoomX, t.balance) ?? crossing(fullRows.subarray(k * FULL_POINTS, (k + 1) * FULL_POINTS), fullX, t.balance);
+    const bracket = crossing(zoomRows.subarray(k * ZOOM_POINTS, (k + 1) * ZOOM_POINTS), zoomX, balance.output) ?? crossing(fullRows.subarray(k * FULL_POINTS, (k + 1) * FULL_POINTS), fullX, balance.output);
     const x = bracket === null ? Number.NaN : balancePoint(t, draws, k * dim, bracket);
     balances.push(Number.isFinite(x) ? x : null);
     if (Number.isFinite(x)) slopes.push(slopeAt(t, draws, k * dim, x));
@@ -199,7 +204,7 @@ export function studyTransfer(stage: Stage, t: StageTransfer, seed: string, coun
     zoom,
     law: 'none' in t.law ? { none: t.law.none } : { name: t.law.name, formula: t.law.formula, source: t.law.source },
     slope: {
-      quantity: t.slope,
+      quantity: balance.slope,
       nominal: slopeAt(t, zeros, 0, nominalBalance),
       mean,
       sigma,

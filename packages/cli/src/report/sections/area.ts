@@ -48,7 +48,7 @@ export function areaSection(d: ReportData): Section {
     id: 'fig-area',
     description: `Linearised sigma and chip yield against the input pair's gate area from ${AREA_RANGE[0]} to ${AREA_RANGE[1]} times today's (W/L kept), with Monte Carlo at five areas and the chip-yield target.`,
     panels: [
-      { x, y: linearAxis(`sigma of the ${fq.label} (${fq.unit})`, sigmaValues, { pad: 0.08 }), layers: sigmaLayers, height: 220, grid: 'xy' },
+      { x, y: linearAxis(`sigma of the ${fq.label} ${fq.symbol} (${fq.unit})`, sigmaValues, { pad: 0.08 }), layers: sigmaLayers, height: 220, grid: 'xy' },
       { x, y: linearAxis(`chip yield (${t.instances} instance${t.instances === 1 ? '' : 's'})`, yieldValues, { pad: 0.06 }), layers: yieldLayers, height: 200, grid: 'xy' },
     ],
   });

@@ -46,7 +46,7 @@ export function conditionsSection(d: ReportData, c: ConditionsData): Section {
     description: `Sigma of the ${f.label} under each operating condition with its confidence interval.`,
     panels: [
       {
-        x: linearAxis(`sigma of the ${fq.label} (${fq.unit})`, sigmas, { pad: 0.1 }),
+        x: linearAxis(`sigma of the ${fq.label} ${fq.symbol} (${fq.unit})`, sigmas, { pad: 0.1 }),
         y: categoryAxis('condition', names),
         layers: [
           { kind: 'intervals', name: 'sigma-interval', legend: 'interval', along: 'x', items: c.rows.map((r, i) => ({ at: i, lo: r.sigmaInterval[0] * s, hi: r.sigmaInterval[1] * s })), stroke: COLOR.main },
@@ -64,7 +64,7 @@ export function conditionsSection(d: ReportData, c: ConditionsData): Section {
   if (dr !== undefined) {
     const dq = displayQuantity({ name: `drift of the ${f.label}`, symbol: `\u0394${f.symbol}`, unit: u }, dr.sigma);
     const edges = Array.from({ length: dr.histogram.counts.length + 1 }, (_, i) => dr.histogram.lo + i * dr.histogram.binWidth);
-    const chart = histogramChart({ id: 'fig-drift', binEdges: edges, counts: dr.histogram.counts, samples: dr.samples, mean: dr.mean, sigma: dr.sigma, quantity: dq, subtitle: `${dr.from} \u2192 ${dr.to}` });
+    const chart = histogramChart({ id: 'fig-drift', binEdges: edges, counts: dr.histogram.counts, samples: dr.samples, mean: dr.mean, sigma: dr.sigma, figure: dq, subtitle: `${dr.from} \u2192 ${dr.to}` });
     html += figure(
       'fig-drift',
       'Figure 8.2',

@@ -29,7 +29,7 @@ export function distributionSection(d: ReportData): Section {
   const V = (path: string, v: number, digits = 4): string => num(v, q(v, u, digits), { path, unit: u });
   const interval = (path: string, iv: readonly [number, number]): string => `${c} [${V(`${path}.0`, iv[0])}, ${V(`${path}.1`, iv[1])}]`;
 
-  const hist = chartSvg(runHistogramChart(r, { id: 'fig-histogram', quantity: fq, specSides: f.sided }));
+  const hist = chartSvg(runHistogramChart(r, { id: 'fig-histogram', figure: fq, specSides: f.sided }));
   const outside = `${r.yield.failures} of ${r.evaluated} samples (${r.yield.failuresHigh} above, ${r.yield.failuresLow} below) fall outside the spec`;
   const histReading = `Sigma ${esc(q(o.sigma, u))} from ${r.evaluated} samples; the spec ${f.sided === 'two' ? '\u00b1' : ''}${esc(q(r.yield.spec, u))} lies at ${plain(k, 3)} sigma, and ${outside}.`;
 
@@ -58,7 +58,7 @@ export function distributionSection(d: ReportData): Section {
     panels: [
       {
         x: linearAxis('normal quantile (standard deviations)', zs),
-        y: linearAxis(`${fq.label} quantile (${fq.unit})`, [...ys, ...drawn.map((v) => v * s)]),
+        y: linearAxis(`${fq.label} ${fq.symbol} quantile (${fq.unit})`, [...ys, ...drawn.map((v) => v * s)]),
         layers,
         height: 280,
         grid: 'xy',

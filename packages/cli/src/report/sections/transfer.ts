@@ -2,7 +2,7 @@
 import { chartSvg, type Layer, type Panel } from '../../chart/chart.js';
 import { linearAxis } from '../../chart/axis.js';
 import { COLOR, DASH, OUTLINE } from '../../chart/style.js';
-import { shown } from '../../plot.js';
+import { shown, type PlotFigure } from '../../plot.js';
 import type { TransferStudy, TransferView } from '../analyses/transfer.js';
 import type { ReportData } from '../data.js';
 import { esc, figure, num, pairs, type Section } from '../html.js';
@@ -12,7 +12,7 @@ import { displayQuantity } from '../../displayQuantity.js';
 /** Bins of the slope-spread histogram. */
 const SLOPE_BINS = 24;
 
-function panel(t: TransferStudy, v: TransferView, xq: { label: string; unit: string; scale: number }, yq: { label: string; unit: string; scale: number }, spec: number | null, height: number): Panel {
+function panel(t: TransferStudy, v: TransferView, xq: PlotFigure, yq: PlotFigure, spec: number | null, height: number): Panel {
   const xs = v.x.map((x) => x * xq.scale);
   const band = (p: number): number[] => v.bands.find((b) => b.p === p)!.values.map((y) => (y === null ? Number.NaN : y * yq.scale));
   const lo = band(0.01);
@@ -35,7 +35,7 @@ function panel(t: TransferStudy, v: TransferView, xq: { label: string; unit: str
       if (x > xs[0]! && x < xs[xs.length - 1]!) layers.push({ kind: 'rule', name: s < 0 ? 'spec-low' : 'spec-high', axis: 'x', value: x, label: `${s < 0 ? '\u2212spec' : '+spec'} ${shown(x, xq.unit)}`, stroke: COLOR.limit, dash: DASH.spec, side: s < 0 ? 'start' : 'end' });
     }
   }
-  return { x: linearAxis(`${xq.label} (${xq.unit})`, xs, { pad: 0 }), y: linearAxis(`${yq.label} (${yq.unit})`, ys, { pad: 0.06 }), layers, height, grid: 'xy' };
+  return { x: linearAxis(`${xq.label} ${xq.symbol} (${xq.unit})`, xs, { pad: 0 }), y: linearAxis(`${yq.label} ${yq.symbol} (${yq.unit})`, ys, { pad: 0.06 }), layers, height, grid: 'xy' };
 }
 
 export function transferSection(d: ReportData): Section {
@@ -50,7 +50,7 @@ export function transferSection(d: ReportData): Section {
   const spec = figureUnit(d.stage.figure) === t.input.unit ? d.run.yield.spec : null;
   const svg = chartSvg({
     id: 'fig-transfer',
-    description: `${t.output.name} against ${t.input.name} for ${t.instances} sampled instances: nominal curve, median and the 1%-99% band, over the whole transition and close to balance.`,
+    description: `${t.output.name} against ${t.input.name} for ${t.instances} sampled instances: nominal curve, median and the 1%-99% band, over the whole range and close up.`,
     panels: [panel(t, t.full, xq, yq, null, 240), { ...panel(t, t.zoom, xz, yq, spec, 220), legend: false }],
   });
   const finite = t.balances.filter((x): x is number => x !== null).sort((a, b) => a - b);
@@ -64,6 +64,16 @@ export function transferSection(d: ReportData): Section {
           const dev = Math.max(...nominal.map((y, i) => (y === y ? Math.abs(y - t.full.law![i]!) : 0))) / ref;
           return `The ${t.law.name} ${t.law.formula} (${t.law.source}, dotted) stays within ${percent(dev, 2)} of full scale of the nominal curve.`;
         })();
+  const title = `${t.output.name.charAt(0).toUpperCase()}${t.output.name.slice(1)} (${t.output.symbol}) against ${t.input.name} (${t.input.symbol}), ${t.slope === null ? 'over the range and close to the nominal input' : 'whole transition and close to balance'}`;
+  const instancesText = `${t.instances}: the first samples of the run (seed ${esc(t.seed)}), the same draws as the first rows of <code>run --samples-out</code>`;
+  if (t.slope === null) {
+    const readingFlat = `The 1% to 99% band of ${t.instances} instances (the run's first samples) against the nominal curve shows how the spread moves with ${esc(t.input.name)}; the spec applies at the nominal input. ${esc(lawText)}`;
+    return {
+      id: 'transfer',
+      title: 'The transfer curve under mismatch',
+      html: `${figure('fig-transfer', 'Figure 7.1', title, readingFlat, svg)}${pairs([['instances', instancesText]])}`,
+    };
+  }
   const reading = `Each instance crosses zero at its own ${esc(d.stage.figure.label)} (these ${t.instances} instances are the run's first samples): near balance the 1% to 99% band spans ${esc(q(at(0.01), t.input.unit))} to ${esc(q(at(0.99), t.input.unit))} of ${esc(t.input.name)}, while far from it every instance saturates. ${esc(lawText)}`;
 
   // The spread of the slope at balance, relative to the nominal slope.
@@ -96,7 +106,7 @@ export function transferSection(d: ReportData): Section {
   const gu = sl.quantity.unit;
   const readingSlope = `${esc(sl.quantity.name.charAt(0).toUpperCase() + sl.quantity.name.slice(1))}: nominal ${esc(q(sl.nominal, gu))}; over the instances mean ${esc(q(sl.mean, gu))} and sigma ${esc(q(sl.sigma, gu))} (${esc(percent(sl.sigma / sl.nominal, 2))} of nominal), 1% to 99% from ${esc(q(qv(0.01), gu))} to ${esc(q(qv(0.99), gu))}.`;
   const numbers = pairs([
-    ['instances', `${t.instances}: the first samples of the run (seed ${esc(t.seed)}), the same draws as the first rows of <code>run --samples-out</code>`],
+    ['instances', instancesText],
     [`${esc(sl.quantity.symbol)} nominal`, num(sl.nominal, q(sl.nominal, gu), { key: 'transfer.slope.nominal', unit: gu })],
     [`${esc(sl.quantity.symbol)} mean / sigma`, `${num(sl.mean, q(sl.mean, gu), { key: 'transfer.slope.mean', unit: gu })} / ${num(sl.sigma, q(sl.sigma, gu), { key: 'transfer.slope.sigma', unit: gu })}`],
     ...(t.full.unsolved + t.zoom.unsolved > 0 ? ([['unsolved', `${t.full.unsolved + t.zoom.unsolved} grid points where some instance had no solution (left out of the bands there)`]] as [string, string][]) : []),
@@ -104,6 +114,6 @@ export function transferSection(d: ReportData): Section {
   return {
     id: 'transfer',
     title: 'The transfer curve under mismatch',
-    html: `${figure('fig-transfer', 'Figure 7.1', `${t.output.name.charAt(0).toUpperCase()}${t.output.name.slice(1)} (${t.output.symbol}) against ${t.input.name} (${t.input.symbol}), whole transition and close to balance`, reading, svg)}${figure('fig-slope', 'Figure 7.2', `Spread of the ${sl.quantity.name}`, readingSlope, spread)}${numbers}`,
+    html: `${figure('fig-transfer', 'Figure 7.1', title, reading, svg)}${figure('fig-slope', 'Figure 7.2', `Spread of the ${sl.quantity.name}`, readingSlope, spread)}${numbers}`,
   };
 }

@@ -67,8 +67,7 @@ export function pairTransfer(stage: Stage, outputQuantity: Quantity, makeOutput:
   return {
     input: DIFFERENTIAL_INPUT,
     output: outputQuantity,
-    slope: TRANSCONDUCTANCE,
-    balance: 0,
+    balance: { output: 0, slope: TRANSCONDUCTANCE },
     span: [-full, full],
     zoom: [-zoom, zoom],
     evaluate,

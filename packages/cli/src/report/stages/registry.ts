@@ -3,12 +3,14 @@
  * tests check that every type in the core registry has one); a type without an entry still gets
  * every section that needs no per-stage hook, and the page says which it lacks.
  */
+import { currentMirrorReportStage } from './currentMirror.js';
+import { foldedReportStage } from './folded.js';
 import { mirrorReportStage } from './mirror.js';
 import { resistorReportStage } from './resistor.js';
 import { simpleReportStage } from './simple.js';
 import type { ReportStage } from './types.js';
 
-export const REPORT_STAGES: readonly ReportStage[] = [simpleReportStage, mirrorReportStage, resistorReportStage];
+export const REPORT_STAGES: readonly ReportStage[] = [simpleReportStage, mirrorReportStage, resistorReportStage, foldedReportStage, currentMirrorReportStage];
 
 /** The report's definition of a stage type, or undefined when it has none yet. */
 export function reportStageFor(topology: string): ReportStage | undefined {

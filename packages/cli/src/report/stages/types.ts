@@ -39,10 +39,12 @@ export interface StageTransfer {
   readonly input: Quantity;
   /** The output drawn, e.g. output current in amperes. */
   readonly output: Quantity;
-  /** The slope at balance, e.g. transconductance Gm in A/V. */
-  readonly slope: Quantity;
-  /** Output value at balance (0 for a differential current): instances cross it at their figure. */
-  readonly balance: number;
+  /**
+   * For a stage balanced by its input: the output at balance (0 for a differential current),
+   * where each instance crosses at its figure, and the slope there (transconductance Gm, A/V).
+   * A stage without a balance point (a current mirror) leaves both out.
+   */
+  readonly balance?: { readonly output: number; readonly slope: Quantity };
   /** Input range of the whole curve (the nominal transition and the instances' spread), SI. */
   readonly span: readonly [number, number];
   /** Input range of the close-up around balance, SI. */
