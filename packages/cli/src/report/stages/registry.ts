@@ -8,9 +8,10 @@ import { foldedReportStage } from './folded.js';
 import { mirrorReportStage } from './mirror.js';
 import { resistorReportStage } from './resistor.js';
 import { simpleReportStage } from './simple.js';
+import { selectorReportStage } from './selector.js';
 import type { ReportStage } from './types.js';
 
-export const REPORT_STAGES: readonly ReportStage[] = [simpleReportStage, mirrorReportStage, resistorReportStage, foldedReportStage, currentMirrorReportStage];
+export const REPORT_STAGES: readonly ReportStage[] = [simpleReportStage, mirrorReportStage, resistorReportStage, foldedReportStage, currentMirrorReportStage, selectorReportStage];
 
 /** The report's definition of a stage type, or undefined when it has none yet. */
 export function reportStageFor(topology: string): ReportStage | undefined {
