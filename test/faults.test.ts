@@ -149,8 +149,9 @@ describe('cancellation through the API', () => {
     expect(probe.atAbort()).toBeGreaterThanOrEqual(2 * 65_536);
     expect(probe.last() - probe.atAbort()).toBeLessThanOrEqual(2 * PER_WORKER);
     await allWorkersExited();
-    // Two threads, and piscina replaces each thread whose task was aborted: 2 to 4 started.
-    expect(started.length).toBeGreaterThanOrEqual(2);
+    // At most two threads, and piscina replaces each thread whose task was aborted: at most 4
+    // started. None may have started at all: the first chunks run in this thread until the pool's
+    // threads are ready, so a run aborted early can finish before any thread starts.
     expect(started.length).toBeLessThanOrEqual(4);
     expect(workerResources()).toEqual([]);
   });
