@@ -260,10 +260,11 @@ describe('SIGINT during a long CLI run', () => {
       const se = 1 / Math.sqrt(2 * (report.evaluated - 1));
       expect(Math.abs(report.offset.sigma / 3.85049e-3 - 1)).toBeLessThan(4 * se + 0.01);
     }
-    // Whole chunks only, at least one, and no more than the pool finished (exact integer checks).
+    // Whole chunks only, at least one (exact integer checks). The probe sees the pool's chunks
+    // only: the first chunks run in the calling thread while the pool's threads start, so the
+    // report may hold more chunks than the probe counted.
     expect(evaluated % 65_536).toBe(0);
     expect(evaluated).toBeGreaterThan(0);
-    expect(evaluated / 65_536).toBeLessThanOrEqual(atExit);
   });
 
   it('tail: SIGINT during a long high-sigma run ends with exit code 130 and a one-line note, not an internal error', async () => {
