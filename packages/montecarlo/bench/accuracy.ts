@@ -1,10 +1,11 @@
 /**
  * Accuracy figures for the closing notes (`pnpm figures`): the weak-inversion pair against the
- * tanh law (Mead 1989), importance sampling against 2 Phi(-k) and the relative variance per sample of a linear boundary, exp(b^2) Phi(-2b) / Phi(-b)^2 - 1 (computed from the mixture's second moment; test/fixtures/importance_variance.py)
- * per sample, the demo's Monte Carlo sigma against the linearised one, and the selector against
- * Bechhofer's probability of a correct selection (his Table I, Monte Carlo in weak inversion,
- * importance sampling at 1e-6 and 1e-9). It prints; the same checks, with tolerances, are in the
- * test suite.
+ * tanh law (Mead 1989); importance sampling against 2 Phi(-k) and its relative variance per
+ * sample against exp(b^2) Phi(-2b) / Phi(-b)^2 - 1 for a linear boundary (computed from the
+ * mixture's second moment, test/fixtures/importance_variance.py); the demo's Monte Carlo sigma
+ * against the linearised one; and the selector against Bechhofer's probability of a correct
+ * selection (his Table I, Monte Carlo in weak inversion, importance sampling at 1e-6 and 1e-9).
+ * It prints; the same checks, with tolerances, are in the test suite.
  */
 import { compileStage, ekvForward, linearisedSigma, specificCurrent, thermalVoltage, type Design } from '@twinfet/core';
 import { createExecutor, estimateHighSigma, normalUpperTail, selectionSeparation, simulate, twoSidedTail } from '@twinfet/montecarlo';
