@@ -31,7 +31,14 @@ describe('unit slips are warned, one line on stderr each', () => {
     expect(r.code).toBe(0);
     const lines = r.stderr.trimEnd().split('\n');
     expect(lines).toHaveLength(1);
-    expect(lines[0]).toBe('twinfet: warning: spec.offset = 7.8125 V is above 1 V: a bare number is in volts; write "7.8125 mV" if millivolts were meant');
+    expect(lines[0]).toBe('twinfet: warning: spec.offset = 7.8125 V is above 1 V; if millivolts were meant, write "7.8125 mV" (a number without a unit is in volts)');
+  });
+
+  it('a spec written with its unit (2 V) gets the same warning without claiming the number was bare', async () => {
+    const r = await runCli(['inspect', file('volt-spec.yaml', `${BASE}\nspec: { offset: 2 V }\n`)]);
+    expect(r.code).toBe(0);
+    expect(r.stderr.trimEnd()).toBe('twinfet: warning: spec.offset = 2 V is above 1 V; if millivolts were meant, write "2 mV" (a number without a unit is in volts)');
+    expect(r.stderr).not.toContain('bare');
   });
 
   it('--spec 20 (volts) is warned naming --spec', async () => {

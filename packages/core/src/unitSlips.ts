@@ -26,7 +26,7 @@ function hint(x: number, scale: number, unit: string): string {
  * SI units with a hint. `limit` is the spec limit in use and `limitField` where it came from
  * (`spec.offset`, or the command line's `--spec`).
  * @example unitSlips(stage, 7.8125, 'spec.offset')
- * // ['spec.offset = 7.8125 V is 2009.6 linearised sigma, beyond 50: a bare number is in volts; write "7.8125 mV" if millivolts were meant']
+ * // ['spec.offset = 7.8125 V is 2009.6 linearised sigma, beyond 50; if millivolts were meant, write "7.8125 mV" (a number without a unit is in volts)']
  */
 export function unitSlips(stage: Stage, limit: number, limitField: string): string[] {
   const out: string[] = [];
@@ -36,19 +36,19 @@ export function unitSlips(stage: Stage, limit: number, limitField: string): stri
   const value = inVolts ? `${limit} V` : `${limit}`;
   const levels = limit / sigma;
   if (inVolts && limit > SLIP_LIMIT_VOLTS) {
-    out.push(`${limitField} = ${value} is above ${SLIP_LIMIT_VOLTS} V: a bare number is in volts; write "${hint(limit, 1, 'mV')}" if millivolts were meant`);
+    out.push(`${limitField} = ${value} is above ${SLIP_LIMIT_VOLTS} V; if millivolts were meant, write "${hint(limit, 1, 'mV')}" (a number without a unit is in volts)`);
   } else if (levels > SLIP_SIGMAS) {
-    const unitHint = inVolts ? `a bare number is in volts; write "${hint(limit, 1, 'mV')}" if millivolts were meant` : 'a bare number is a fraction; write "0.5 %" for half a percent';
-    out.push(`${limitField} = ${value} is ${levels.toPrecision(5)} linearised sigma, beyond ${SLIP_SIGMAS}: ${unitHint}`);
+    const unitHint = inVolts ? `if millivolts were meant, write "${hint(limit, 1, 'mV')}" (a number without a unit is in volts)` : 'a number without a unit is a fraction: write "0.5 %" for half a percent';
+    out.push(`${limitField} = ${value} is ${levels.toPrecision(5)} linearised sigma, beyond ${SLIP_SIGMAS}; ${unitHint}`);
   }
   const tail = stage.design.tail;
   if (tail !== undefined && tail > SLIP_TAIL_AMPS) {
-    out.push(`tail = ${tail} A is above ${formatQuantity(SLIP_TAIL_AMPS, 'A')}: a bare number is in amperes; write "${hint(tail, 1, 'uA')}" if microamperes were meant`);
+    out.push(`tail = ${tail} A is above ${formatQuantity(SLIP_TAIL_AMPS, 'A')}; if microamperes were meant, write "${hint(tail, 1, 'uA')}" (a number without a unit is in amperes)`);
   }
   for (const b of stage.definition.blocks) {
     const g = (b.key === 'input' ? stage.design.input : stage.design[b.key]) as { w: number; l: number };
     for (const k of ['w', 'l'] as const) {
-      if (g[k] > SLIP_LENGTH_M) out.push(`${b.key}.${k} = ${g[k]} m is above 1 mm: a bare number is in metres; write "${hint(g[k], 1, 'um')}" if micrometres were meant`);
+      if (g[k] > SLIP_LENGTH_M) out.push(`${b.key}.${k} = ${g[k]} m is above 1 mm; if micrometres were meant, write "${hint(g[k], 1, 'um')}" (a number without a unit is in metres)`);
     }
   }
   return out;

@@ -316,4 +316,32 @@ describe('size shrinks devices for a loose target, floored at the process minimu
     // Kinget's rule area x sigma^2 = const: the rule area is original x (sigma0 / target)^2.
     expect(Math.abs(r.areaCost.ruleArea / (2 * 24e-6 * 1.5e-6 * (r.original.sigmaLinearised / 50e-3) ** 2) - 1)).toBeLessThan(1e-12);
   });
+  it('a design below the process minimum is never returned below it: the search starts at min_l', async () => {
+    // l = 0.1 um under min_l = 0.18 um, and a loose target that the undersized design meets.
+    // At fixed W/L the area factor that reaches min_l is (0.18/0.1)^2 = 3.24 (min_w is far
+    // below W), so the smallest allowed size is L = 0.18 um, W = 18 x 0.18 = 3.24 um (exact).
+    const d: Design = {
+      ...bigSimple,
+      input: { polarity: 'n', w: 1.8e-6, l: 0.1e-6 },
+      process: { n: { ...testProcess.n, minW: 0.22e-6, minL: 0.18e-6 } },
+    };
+    const r = await sizeDesign(d, { target: { kind: 'sigma', sigma: 50e-3 }, vary: 'input.area', workers: 1 });
+    const g = r.result.pairs[0]!;
+    expect(g.l).toBe(0.18e-6);
+    expect(g.w).toBe(3.24e-6);
+    expect(r.linearised.atMinimum).toBe(true);
+    // The same along input.l alone: L = min_l, W untouched.
+    const byL = await sizeDesign(d, { target: { kind: 'sigma', sigma: 50e-3 }, vary: 'input.l', workers: 1 });
+    expect(byL.result.pairs[0]!.l).toBe(0.18e-6);
+    expect(byL.result.pairs[0]!.w).toBe(1.8e-6);
+  });
+  it('varying W alone cannot lift an L below the minimum: refused naming input.l and the fix', async () => {
+    const d: Design = {
+      ...bigSimple,
+      input: { polarity: 'n', w: 1.8e-6, l: 0.1e-6 },
+      process: { n: { ...testProcess.n, minW: 0.22e-6, minL: 0.18e-6 } },
+    };
+    const e = await refusal(sizeDesign(d, { target: { kind: 'sigma', sigma: 50e-3 }, vary: 'input.w', workers: 1 }));
+    expectInputError(e, 'input.l', '0.1 um is below process.n.min_l = 0.18 um', 'vary input.l or input.area');
+  });
 });

@@ -124,7 +124,9 @@ export interface FactorRange {
 /**
  * Range of the area factor of the pair of `role` when `dimension` is scaled: floors at the
  * process minimum width and length (or 0.1 um), caps at {@link MAX_WIDTH_M}, {@link MAX_LENGTH_M}
- * and {@link MAX_AREA_M2}. A design already outside these bounds keeps its own size as the bound.
+ * and {@link MAX_AREA_M2}. A design above the caps keeps its own size as the upper bound; a design
+ * below the process's min_w/min_l does not keep it: the range starts at the minimum.
+ * @throws InputError when the dimension left alone is below the process minimum
  */
 export function factorRange(design: Design, role: string, dimension: SizeDimension): FactorRange {
   const g = pairOf(design, role);
@@ -150,9 +152,25 @@ export function factorRange(design: Design, role: string, dimension: SizeDimensi
     hi = Math.min((MAX_WIDTH_M / g.w) ** 2, (MAX_LENGTH_M / g.l) ** 2, MAX_AREA_M2 / area);
     upperText = `${role} gate area up to ${Math.round(Math.min(hi * area, MAX_AREA_M2) * 1e12)} um^2 per device`;
   }
+  const um = (x: number): string => `${Number((x * 1e6).toPrecision(4))} um`;
+  const polarity = g.polarity ?? '';
+  // Scaling one dimension leaves the other where it is: refuse when that one is below the
+  // process minimum, since no size along this variation could be drawn.
+  if (dimension === 'w' && proc?.minL !== undefined && g.l < proc.minL) {
+    throw new InputError(`${role}.l`, `${um(g.l)} is below process.${polarity}.min_l = ${um(proc.minL)}, and varying ${role}.w leaves it there; set ${role}.l to at least ${um(proc.minL)}, or vary ${role}.l or ${role}.area`);
+  }
+  if (dimension === 'l' && proc?.minW !== undefined && g.w < proc.minW) {
+    throw new InputError(`${role}.w`, `${um(g.w)} is below process.${polarity}.min_w = ${um(proc.minW)}, and varying ${role}.l leaves it there; set ${role}.w to at least ${um(proc.minW)}, or vary ${role}.w or ${role}.area`);
+  }
+  // Below the process's own minimum the search starts at the minimum (size never returns a
+  // device that cannot be drawn); below the default floor only, the design's own size stays allowed.
+  const processFloor = dimension === 'w' ? proc?.minW !== undefined : dimension === 'l' ? proc?.minL !== undefined : proc?.minW !== undefined || proc?.minL !== undefined;
+  const min = processFloor ? lo : Math.min(1, lo);
+  const max = Math.max(1, hi);
+  if (min > max) throw new InputError(role, `${role}: the process minimum needs ${min.toPrecision(3)}x today's ${dimension === 'area' ? 'area' : dimension.toUpperCase()}, beyond the largest size searched (${upperText})`);
   return {
-    min: Math.min(1, lo),
-    max: Math.max(1, hi),
+    min,
+    max,
     minWidth,
     minLength,
     processMinimum: proc?.minW !== undefined || proc?.minL !== undefined,
