@@ -120,6 +120,15 @@ describe('current mirror (examples/bias-mirror.yaml): a dimensionless figure thr
     expect(both.code).toBe(2);
     expect(both.stderr.trim()).toBe('twinfet: --spec: cannot be combined with --vary spec.error; drop one');
   });
+
+  it('sweep --vary spec.error shows the swept limits in % as written (0.5 %, 2 %), not as fractions', () => {
+    const r = twinfet('sweep', mirror, '--vary', 'spec.error', '--from', '0.5%', '--to', '2%', '--steps', '2', '--samples', '2000');
+    expect(r.code).toBe(0);
+    const first = (l: string): string => l.trim().split(/\s{2,}/)[0]!;
+    const rows = r.stdout.split('\n').filter((l) => /^\d/.test(l)).map(first);
+    // The two endpoints as given on the command line (exact: 0.005 and 0.02 print as 0.5 % and 2 %).
+    expect(rows).toEqual(['0.5 %', '2 %']);
+  });
 });
 
 describe('folded-cascode stage (examples/folded-cascode-ota.yaml) through the CLI', () => {

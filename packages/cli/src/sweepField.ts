@@ -49,7 +49,8 @@ export function sweepFields(def: StageDefinition): SweepField[] {
   for (const f of def.fields) out.push(field(f.key, f.dimension, SI_UNIT[f.dimension], f.dimension === 'temperature' ? 'C' : f.unit, f.integer === true));
   out.push(field('temperature', 'temperature', 'K', 'C'));
   const fig = def.figure;
-  out.push(field(`spec.${fig.specKey}`, fig.dimension, SI_UNIT[fig.dimension], fig.unit), field('spec.instances', 'dimensionless', '', '', true));
+  // A dimensionless figure's limit (a current mirror's spec.error) is written and shown in %.
+  out.push(field(`spec.${fig.specKey}`, fig.dimension, SI_UNIT[fig.dimension], fig.unit === '' ? '%' : fig.unit), field('spec.instances', 'dimensionless', '', '', true));
   for (const pol of ['n', 'p'] as const) for (const [k, d, si, t] of PARAMS) out.push(field(`process.${pol}.${k}`, d, si, t));
   if (def.blocks.some((b) => b.kind === 'resistor')) out.push(field('process.resistor.ar', 'abeta', 'm', '%*um'));
   return out;
