@@ -102,7 +102,10 @@ describe('injected worker faults (TWINFET_TEST_FAULTS=1)', () => {
     );
     expect((e as Error).name).toBe('ChunkError');
     await allWorkersExited();
-    expect(started.length).toBeGreaterThanOrEqual(2);
+    // A run that owns its pool is one of its workers itself: 2 workers are this thread and a
+    // pool of one (pool.ts, startingPoolExecutor), so at least one thread started (a crashed
+    // one is replaced by piscina).
+    expect(started.length).toBeGreaterThanOrEqual(1);
     expect(workerResources()).toEqual([]);
   });
 });

@@ -8,6 +8,8 @@
 // - vega and vega-lite stay outside and the plot code is split into its own chunk, so runs
 //   without --plot never load them (the plot module is imported on demand).
 // - The version is inlined (no package.json read at start-up).
+// - help.txt is the program's own `--help` (80 columns), which bin/twinfet.js prints without
+//   loading the program.
 import { readFileSync, rmSync, statSync, writeFileSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { build } from 'esbuild';
@@ -43,5 +45,13 @@ await build({
   legalComments: 'none',
   logLevel: 'warning',
 });
+const help = [];
+const { main } = await import(new URL('bundle/twinfet.js', new URL('.', import.meta.url)).href);
+const code = await main(['--help'], { out: (t) => help.push(t.endsWith('\n') ? t : `${t}\n`), err: (t) => help.push(t), errIsTty: false });
+if (code !== 0) {
+  console.error(`bundle: twinfet --help exited ${code}`);
+  process.exit(1);
+}
+writeFileSync(`${outdir}/help.txt`, help.join(''));
 // The bin compares this stamp with the builds' time stamps and falls back to dist when stale.
 writeFileSync(`${outdir}/built`, `${new Date().toISOString()}\n`);

@@ -1,4 +1,4 @@
-export { main, buildProgram, EXIT } from './main.js';
+export { main, buildProgram, commandsFor, EXIT } from './main.js';
 export { loadDesign } from './designFile.js';
 export { histogramSvg, sweepSvg, type HistogramInput, type SweepInput, type SweepPoint } from './plot.js';
 export { SWEEP_FIELDS, sweepFields, sweepField, fieldValue, withField, sweepValues } from './sweepField.js';

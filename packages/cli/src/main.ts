@@ -1,16 +1,7 @@
 import { Command, CommanderError } from 'commander';
 import { InputError, isInputError } from '@twinfet/core';
-import { loadDesign } from './designFile.js';
-import { warnUnitSlips } from './unitWarnings.js';
-import { inspectDesign, renderInspect } from './commands/inspect.js';
-import { assertFinite, processIo, printJson, type Io, NonFiniteResultError } from './output.js';
-import { registerRun } from './commands/run.js';
-import { registerTail } from './commands/tail.js';
-import { registerSize } from './commands/size.js';
-import { registerSweep } from './commands/sweep.js';
+import { NonFiniteResultError, processIo, type Io } from './output.js';
 import { VERSION } from './version.js';
-import { registerReport } from './commands/report.js';
-
 
 /** Exit codes: 0 done, 1 internal error, 2 bad input, 130 interrupted. */
 export const EXIT = { ok: 0, internal: 1, input: 2, interrupted: 130 } as const;
@@ -23,8 +14,35 @@ function output(io: Io) {
   };
 }
 
-/** Builds the command tree; `io` receives everything printed. */
-export function buildProgram(io: Io, setExit: (code: number) => void): Command {
+type Register = (program: Command, io: Io, setExit: (code: number) => void) => void;
+
+/**
+ * The commands, each in its own module, loaded on demand: a command line loads only the module
+ * of the command it names (and what that imports), so `inspect` never loads the Monte Carlo
+ * statistics' dependencies nor `run` the report's, and start-up stays short.
+ */
+const COMMANDS: Readonly<Record<string, () => Promise<Register>>> = {
+  inspect: async () => (await import('./commands/inspect.js')).registerInspect,
+  run: async () => (await import('./commands/run.js')).registerRun,
+  tail: async () => (await import('./commands/tail.js')).registerTail,
+  size: async () => (await import('./commands/size.js')).registerSize,
+  sweep: async () => (await import('./commands/sweep.js')).registerSweep,
+  report: async () => (await import('./commands/report.js')).registerReport,
+};
+
+/**
+ * The registrations a command line needs: the one command it names, or every command (in the
+ * order `--help` lists them) when it names none, asks for help or names an unknown one (whose
+ * error suggests the closest name).
+ */
+export async function commandsFor(argv: readonly string[]): Promise<Register[]> {
+  const word = argv.find((a) => !a.startsWith('-'));
+  const names = word !== undefined && Object.hasOwn(COMMANDS, word) ? [word] : Object.keys(COMMANDS);
+  return Promise.all(names.map((n) => COMMANDS[n]!()));
+}
+
+/** Builds the command tree from `registrations` (see commandsFor); `io` receives everything printed. */
+export function buildProgram(io: Io, setExit: (code: number) => void, registrations: readonly Register[]): Command {
   const program = new Command('twinfet')
     .description('Mismatch-limited offset and yield of MOS differential pairs (design aid; not a substitute for foundry matching data or sign-off)')
     .version(VERSION, '-V, --version', 'print the version')
@@ -32,26 +50,7 @@ export function buildProgram(io: Io, setExit: (code: number) => void): Command {
     .configureOutput(output(io))
     .exitOverride();
 
-  program
-    .command('inspect')
-    .description('operating point, linearised offset sigma, variance budget and Gaussian yield of a design')
-    .argument('<design>', 'design file (YAML or JSON)')
-    .option('--json', 'print one JSON object instead of tables')
-    .action(async (file: string, opts: { json?: boolean }) => {
-      const design = await loadDesign(file);
-      warnUnitSlips(io, design);
-      const report = inspectDesign(design);
-      assertFinite(report);
-      if (opts.json === true) printJson(io, report);
-      else io.out(renderInspect(report));
-      setExit(EXIT.ok);
-    });
-
-  registerRun(program, io, setExit);
-  registerTail(program, io, setExit);
-  registerSize(program, io, setExit);
-  registerSweep(program, io, setExit);
-  registerReport(program, io, setExit);
+  for (const register of registrations) register(program, io, setExit);
   for (const c of program.commands) c.exitOverride().configureOutput(output(io)).allowExcessArguments(true);
   // Name a stray argument ourselves: it is nearly always a unit split off its value (--spec 5 mV).
   program.hook('preAction', (_root, action) => {
@@ -90,8 +89,8 @@ export function reportError(io: Io, e: unknown): number {
 /** Runs the command line; resolves to the exit code. */
 export async function main(argv: readonly string[], io: Io = processIo): Promise<number> {
   let code: number = EXIT.ok;
-  const program = buildProgram(io, (c) => (code = c));
   try {
+    const program = buildProgram(io, (c) => (code = c), await commandsFor(argv));
     await program.parseAsync([...argv], { from: 'user' });
   } catch (e) {
     return reportError(io, e);

@@ -2,6 +2,10 @@ import { compileStage, formatQuantity, stageDefinition, type Design, type Stage 
 import { linearisedSummary, chipFailure, type LinearisedSummary, type SelectionSummary } from '@twinfet/montecarlo';
 import { renderPairs, renderTable } from '../table.js';
 import { designSummary, figureSummary, figureText, headerLine, pct, sci, shareLabel } from '../describe.js';
+import type { Command } from 'commander';
+import { loadDesign } from '../designFile.js';
+import { warnUnitSlips } from '../unitWarnings.js';
+import { assertFinite, printJson, type Io } from '../output.js';
 
 /** The inspect report: operating point and the linearised picture of the stage's figure. */
 export interface InspectReport {
@@ -151,4 +155,22 @@ export function yieldBound(y: number, digits: number): string {
 /** A yield given by its failure probability: `1 - 5.16e-33` once the nines stop being readable. */
 export function yieldFromFailure(failure: number): string {
   return failure < 1e-9 ? `1 - ${failure.toExponential(3)}` : yieldText(1 - failure);
+}
+
+/** Registers `twinfet inspect`. */
+export function registerInspect(program: Command, io: Io, setExit: (code: number) => void): void {
+  program
+    .command('inspect')
+    .description('operating point, linearised offset sigma, variance budget and Gaussian yield of a design')
+    .argument('<design>', 'design file (YAML or JSON)')
+    .option('--json', 'print one JSON object instead of tables')
+    .action(async (file: string, opts: { json?: boolean }) => {
+      const design = await loadDesign(file);
+      warnUnitSlips(io, design);
+      const report = inspectDesign(design);
+      assertFinite(report);
+      if (opts.json === true) printJson(io, report);
+      else io.out(renderInspect(report));
+      setExit(0);
+    });
 }

@@ -186,13 +186,15 @@ export const POOL_WORTH_MS = 100;
 
 /**
  * An executor for `workers` threads that never makes a job wait for them. Chunks run in this
- * thread until pool threads have loaded, then go to the pool (at most 2 per ready thread in
- * flight, so this thread is left to merge). With `chunks`, the job's chunk count, the pool is
- * started only once the chunks timed here show that the rest would take longer than
- * POOL_WORTH_MS in one thread, so a small job never starts it; without, at the first chunk (an
- * executor shared by many runs). Where a chunk runs changes no result: chunks are pure and are
- * merged in order. A task with an injected fault always goes to the pool (the hook is in the
- * worker).
+ * thread until pool threads have loaded, then also go to the pool (at most 2 per ready thread
+ * in flight). With `chunks`, the job's chunk count, this thread is one of the `workers`: the
+ * pool has workers - 1 threads and this thread keeps running chunks beside them (its compiled
+ * hot loops are already warm, and on a machine with as many cores as workers no thread waits
+ * for a core), and the pool is started only once the chunks timed here show that the rest
+ * would take longer than POOL_WORTH_MS in one thread, so a small job never starts it. Without
+ * `chunks` (an executor shared by many runs) the pool has all `workers` threads and starts at
+ * the first chunk. Where a chunk runs changes no result: chunks are pure and are merged in
+ * order. A task with an injected fault always goes to the pool (the hook is in the worker).
  */
 export function startingPoolExecutor(workers: number, chunks?: number): Executor {
   let pool: ReturnType<typeof poolExecutor> | undefined;
@@ -206,29 +208,71 @@ export function startingPoolExecutor(workers: number, chunks?: number): Executor
     fastestMs = Math.min(fastestMs, ms);
   };
   let inPool = 0;
+  const poolThreads = chunks === undefined ? workers : Math.max(1, workers - 1);
   // Chunks run here one after another, each in its own turn of the event loop, so that a
   // SIGINT or an abort between two of them is seen before the next starts (lanes waiting on
   // the same turn would otherwise run back to back).
   let hereTail: Promise<unknown> = Promise.resolve();
+  let waitingHere = 0;
+  const queueHere = (task: ChunkTask, signal: AbortSignal | undefined): Promise<ChunkResult> => {
+    waitingHere++;
+    const mine = hereTail.then(() => runHere(task, signal, timed)).finally(() => {
+      waitingHere--;
+      setImmediate(stealIfIdle);
+    });
+    hereTail = mine.catch(() => undefined);
+    return mine;
+  };
+  // Chunks in the pool, oldest first. When this thread is a worker and has nothing left to run,
+  // it runs the oldest of them too and the first answer is taken: a chunk is pure, so both are
+  // the same bits, and the job never waits at its end for a thread that is still slow (a fresh
+  // thread runs its first chunks many times slower, before its hot loops are compiled).
+  const inFlight: { task: ChunkTask; signal: AbortSignal | undefined; settled: boolean; copied: boolean; settle: (r: ChunkResult) => void }[] = [];
+  const stealIfIdle = (): void => {
+    if (chunks === undefined || closed || waitingHere > 0) return;
+    const f = inFlight.find((x) => !x.settled && !x.copied && x.task.fault === undefined && x.signal?.aborted !== true);
+    if (f === undefined) return;
+    f.copied = true;
+    queueHere(f.task, f.signal).then(f.settle, () => undefined); // the pool's own answer or error stands
+  };
   const worthStarting = (): boolean => chunks === undefined || (timedHere >= 2 && fastestMs * (chunks - dispatched) > POOL_WORTH_MS);
   return {
     threads: workers,
     async run(task, signal) {
       if (closed) throw new Error('internal: executor used after close');
       dispatched++;
-      if (pool === undefined && (task.fault !== undefined || worthStarting())) pool = poolExecutor(workers);
+      if (pool === undefined && (task.fault !== undefined || worthStarting())) pool = poolExecutor(poolThreads);
       const ready = pool === undefined ? 0 : pool.readyThreads();
-      if (pool !== undefined && (task.fault !== undefined || inPool < 2 * ready)) {
+      // To the pool while it has room; here otherwise, or when this thread (a worker of a job
+      // with a chunk count) has nothing queued, so that it is never idle while the pool is busy.
+      const here = chunks !== undefined && pool !== undefined && waitingHere === 0 && task.fault === undefined;
+      if (pool !== undefined && (task.fault !== undefined || (!here && inPool < 2 * ready))) {
         inPool++;
-        try {
-          return await pool.run(task, signal);
-        } finally {
-          inPool--;
-        }
+        const running = pool;
+        return new Promise<ChunkResult>((resolve, reject) => {
+          const entry = {
+            task,
+            signal,
+            settled: false,
+            copied: false,
+            settle: (r: ChunkResult): void => {
+              if (entry.settled) return;
+              entry.settled = true;
+              inFlight.splice(inFlight.indexOf(entry), 1);
+              resolve(r);
+            },
+          };
+          inFlight.push(entry);
+          running.run(task, signal).then(entry.settle, (e: unknown) => {
+            if (entry.settled) return;
+            entry.settled = true;
+            inFlight.splice(inFlight.indexOf(entry), 1);
+            reject(e);
+          }).finally(() => inPool--);
+          setImmediate(stealIfIdle);
+        });
       }
-      const mine = hereTail.then(() => runHere(task, signal, timed));
-      hereTail = mine.catch(() => undefined);
-      return mine;
+      return queueHere(task, signal);
     },
     async close() {
       closed = true;
