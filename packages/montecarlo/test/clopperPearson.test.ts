@@ -55,9 +55,10 @@ describe('clopperPearson: reference values', () => {
     expect(relErr(u, 1 - 0.05 ** (1 / 1000))).toBeLessThan(1e-12);
   });
 
-  // Computed with mpmath 1.3.0 at 60 digits from the Clopper-Pearson definition (binomial
-  // tails by exact summation / the A&S 26.5.8 continued fraction in 60-digit arithmetic, roots
-  // by 230 bisection steps). Columns: failures, n, lower, upper (95% two-sided),
+  // Computed with mpmath 1.3.0 at 60 digits from the Clopper-Pearson definition by
+  // test/fixtures/clopper_pearson_table.py (binomial tails by exact summation / the A&S 26.5.8
+  // continued fraction in 60-digit arithmetic, roots by Newton steps inside a bisection
+  // bracket; SciPy beta.ppf printed beside them as a check). Columns: failures, n, lower, upper (95% two-sided),
   // one-sided 95% upper. The code is built to keep ~1e-13 relative; the tolerance 1e-12
   // leaves room for the root solve, which stops at a 1e-14 relative step.
   const referenceTable: [number, number, number, number, number][] = [
@@ -88,8 +89,8 @@ describe('clopperPearson: reference values', () => {
 
 describe('clopperPearson: jStat.beta.inv accuracy limit (why the bounds are re-solved)', () => {
   it('jStat alone is off by more than 1e-8 relative at 3 failures in 1e8 (and we are not)', () => {
-    // Reference: the 60-digit value above. This documents the limit that motivated the
-    // re-solve; if a future jStat fixes it, this check fails and the guard can be revisited.
+    // Reference: the 60-digit value above (test/fixtures/clopper_pearson_table.py). This
+    // documents the limit that motivated the re-solve; if a future jStat fixes it, this check fails and the guard can be revisited.
     const reference = 6.1867212716854659e-9;
     const jstatLower = jStat.beta.inv(0.025, 3, 1e8 - 2);
     expect(relErr(jstatLower, reference)).toBeGreaterThan(1e-8);
@@ -118,20 +119,23 @@ describe('binomial tails', () => {
   });
 
   it('P(X <= 0) at n = 1000, p = 0.001 equals 0.999^1000 = 0.36769542477096', () => {
-    // Computed from (1 - p)^n; tolerance 1e-14 relative (one closed-form evaluation).
+    // Computed from (1 - p)^n (the title's value: test/fixtures/clopper_pearson_table.py);
+    // tolerance 1e-14 relative (one closed-form evaluation).
     expect(relErr(binomialCdf(0, 1000, 0.001), Math.exp(1000 * Math.log1p(-0.001)))).toBeLessThan(
       1e-14,
     );
   });
 
   it('far upper tail P(X > 100), n = 1e6, p = 2e-4, matches the 60-digit value', () => {
-    // mpmath 1.3.0, 60 digits, A&S 26.5.8 continued fraction: P(X <= 100) = 3.704888008803004e-15,
+    // mpmath 1.3.0, 60 digits, A&S 26.5.8 continued fraction (test/fixtures/clopper_pearson_table.py):
+    // P(X <= 100) = 3.704888008803004e-15,
     // i.e. a lower tail of 3.7e-15 that 1 - (upper) could never resolve. Tolerance 1e-12 rel.
     expect(relErr(binomialCdf(100, 1e6, 2e-4), 3.704888008803003989e-15)).toBeLessThan(1e-12);
   });
 
   it('small-p lower tail at n = 1e9 keeps full precision (summation path)', () => {
-    // mpmath 1.3.0, 60 digits: P(X <= 1000 | n = 1e9, p = 1.2e-6) = 1.553115184039350383e-9,
+    // mpmath 1.3.0, 60 digits (test/fixtures/clopper_pearson_table.py):
+    // P(X <= 1000 | n = 1e9, p = 1.2e-6) = 1.553115184039350383e-9,
     // P(X <= 0 | n = 1e9, p = 3e-9) = 0.04978706814382213538. The continued fraction in
     // q = 1 - p would lose 1e-16/p relative here (~1e-9, ~3e-8). Tolerance 1e-12 relative.
     expect(relErr(binomialCdf(1000, 1e9, 1.2e-6), 1.553115184039350383e-9)).toBeLessThan(1e-12);

@@ -40,7 +40,8 @@ describe('ksStatistic', () => {
 describe('Kolmogorov limit distribution', () => {
   // Standard table, from memory: the 10%, 5%, 1% critical values of sqrt(n) D_n are about
   // 1.22, 1.36, 1.63. Precise values computed with SciPy 1.17.1 scipy.special.kolmogorov
-  // (its survival function). Tolerance 1e-13 absolute: both series are summed until the
+  // (its survival function); recomputed from both series in 50 digits by
+  // test/fixtures/kolmogorov_table.py. Tolerance 1e-13 absolute: both series are summed until the
   // next term is below 1e-17 of the sum.
   const table: [number, number][] = [
     [0.3, 9.305801334513752e-6],
@@ -60,7 +61,8 @@ describe('Kolmogorov limit distribution', () => {
   }
 
   it('tails keep relative accuracy: 1 - K(3) = 3.045995948942526e-8, K(0.2) small', () => {
-    // SciPy 1.17.1 scipy.special.kolmogorov(3.0). Tolerance 1e-12 relative: the tail series
+    // SciPy 1.17.1 scipy.special.kolmogorov(3.0) (test/fixtures/kolmogorov_table.py).
+    // Tolerance 1e-12 relative: the tail series
     // is computed directly, not as 1 - K. K(0.2) = 1 - 0.999999999999495 = 5.05e-13 (SciPy),
     // checked to 1e-3 relative since SciPy's own value is a difference near 1.
     expect(relErr(kolmogorovSurvival(3), 3.045995948942526e-8)).toBeLessThan(1e-12);
@@ -79,7 +81,8 @@ describe('Kolmogorov limit distribution', () => {
 
   it('asymptotic p-value of D = 0.043 at n = 1000 lies between the 1.35 and 1.36 table rows', () => {
     // sqrt(1000) * 0.043 = 1.35978, so 1 - K falls between 1 - K(1.36) = 0.0494859 and
-    // 1 - K(1.35) = 0.0522419 (SciPy 1.17.1 scipy.special.kolmogorov). Ordering check, exact.
+    // 1 - K(1.35) = 0.0522419 (SciPy 1.17.1 scipy.special.kolmogorov;
+    // test/fixtures/kolmogorov_table.py). Ordering check, exact.
     const p = ksAsymptoticPValue(0.043, 1000);
     expect(p).toBeGreaterThan(0.0494858);
     expect(p).toBeLessThan(0.0522419);
@@ -89,20 +92,21 @@ describe('Kolmogorov limit distribution', () => {
 describe('ksExactCdf (Marsaglia, Tsang & Wang 2003)', () => {
   it('P(D_10 < 0.274) = 0.6284796154565043', () => {
     // The worked example of the 2003 paper (from memory); SciPy 1.17.1 kstwo.cdf(0.274, 10)
-    // gives the same 16 digits. Tolerance 1e-13 relative (the paper claims ~13 digits).
+    // gives the same 16 digits, as does the matrix in test/fixtures/kolmogorov_table.py.
+    // Tolerance 1e-13 relative (the paper claims ~13 digits).
     expect(relErr(ksExactCdf(10, 0.274), 0.6284796154565043)).toBeLessThan(1e-13);
   });
 
   it('matches SciPy 1.17.1 kstwo.cdf at n = 50 and 100 (SciPy exact there)', () => {
     // scipy.stats.kstwo.cdf; SciPy computes these two exactly (n <= 140). Tolerance 1e-13
-    // relative (the paper's ~13 digits).
+    // relative (the paper's ~13 digits). Recomputed by test/fixtures/kolmogorov_table.py.
     expect(relErr(ksExactCdf(50, 0.2), 0.9685612222304676)).toBeLessThan(1e-13);
     expect(relErr(ksExactCdf(100, 0.05), 0.0467840289364275)).toBeLessThan(1e-13);
   });
 
   it('matches the matrix formula in 50-digit arithmetic at n = 200 and 1000', () => {
     // Computed with mpmath 1.3.0 at 50 digits from the same Marsaglia-Tsang-Wang matrix
-    // (exact decimal d): a check of the double-precision implementation and its exponent
+    // (exact decimal d; test/fixtures/kolmogorov_table.py): a check of the double-precision implementation and its exponent
     // scaling. SciPy 1.17.1 kstwo.cdf differs here by up to 3e-7 relative (for n > 140 it
     // switches to an asymptotic approximation), so it is not used as the reference.
     // Tolerance 1e-12 relative (1000 scaled steps of n!/n^n and 10 matrix squarings).
@@ -114,7 +118,8 @@ describe('ksExactCdf (Marsaglia, Tsang & Wang 2003)', () => {
   it('closed forms: n = 1 gives 2d - 1; 1/(2n) <= d <= 1/n gives n! (2d - 1/n)^n', () => {
     // D_1 = max(U, 1 - U), so P(D_1 < d) = 2d - 1 for d in [1/2, 1] (computed by hand);
     // the small-d formula is classical (e.g. Marsaglia, Tsang & Wang 2003, section 1, from
-    // memory; SciPy 1.17.1 kstwo.cdf(0.25, 3) = 0.027777777777777776 = 1/36 agrees).
+    // memory; SciPy 1.17.1 kstwo.cdf(0.25, 3) = 0.027777777777777776 = 1/36 agrees, as does
+    // test/fixtures/kolmogorov_table.py).
     // Tolerance 1e-14 absolute (a handful of operations on small matrices).
     expect(Math.abs(ksExactCdf(1, 0.7) - 0.4)).toBeLessThan(1e-14);
     expect(Math.abs(ksExactCdf(3, 0.25) - 1 / 36)).toBeLessThan(1e-14);
@@ -123,7 +128,8 @@ describe('ksExactCdf (Marsaglia, Tsang & Wang 2003)', () => {
   });
 
   it('the exact and asymptotic laws agree to O(1/sqrt n) at n = 1000 (Kolmogorov 1933)', () => {
-    // Exact 0.920660445 (50-digit value above) vs K(0.04 sqrt 1000) = 0.9184811136, a
+    // Exact 0.920660445 (50-digit value above) vs K(0.04 sqrt 1000) = 0.9184811136
+    // (test/fixtures/kolmogorov_table.py), a
     // difference of 0.0022; the bound 0.7/sqrt(n) = 0.022 is the usual first-order correction
     // size (common practice, no source), so the check is loose by design but not vacuous.
     const exact = ksExactCdf(1000, 0.04);

@@ -54,7 +54,8 @@ describe('normal: Gaussian table (Abramowitz & Stegun 1964, table 26.1; test/fix
 });
 
 describe('normal: quantile reference values', () => {
-  // Computed with mpmath 1.3.0 at 40 digits (root of ln Phi(x) = ln p). The tolerance
+  // Computed with mpmath 1.3.0 at 40 digits (root of ln Phi(x) = ln p;
+  // test/fixtures/normal_quantiles.py). The tolerance
   // 1e-13 relative covers erfcinv's error: a few ulps for p >= 1e-100, 7e-14 measured at
   // p = 1e-300 (the worst case; that is the accuracy limit of the stdlib erfcinv there).
   const table: [number, number][] = [
@@ -72,8 +73,8 @@ describe('normal: quantile reference values', () => {
   }
 
   it('Phi^-1(0.999999) = 4.7534243088228989482, limited by the double nearest 0.999999', () => {
-    // mpmath 1.3.0, 40 digits, for the decimal 0.999999. The double nearest it differs by up
-    // to 5.6e-17, i.e. 5.6e-11 relative in 1 - p, which moves the quantile by
+    // mpmath 1.3.0, 40 digits, for the decimal 0.999999 (test/fixtures/normal_quantiles.py).
+    // The double nearest it differs by up to 5.6e-17, i.e. 5.6e-11 relative in 1 - p, which moves the quantile by
     // 5.6e-11 / x^2 = 2.5e-12 relative: tolerance 5e-12. (An upper tail known as such should
     // be passed as -normalQuantile(1e-6) instead.)
     expect(relErr(normalQuantile(0.999999), 4.7534243088228989482)).toBeLessThan(5e-12);
@@ -88,7 +89,7 @@ describe('normal: quantile reference values', () => {
   });
 
   it('sigma levels at p = 1e-12, 1e-9 and 1.595e-4 (two-sided)', () => {
-    // mpmath 1.3.0, 40 digits, root of erfc(k/sqrt 2) = p: 7.130506848171324458,
+    // mpmath 1.3.0, 40 digits, root of erfc(k/sqrt 2) = p (test/fixtures/normal_quantiles.py): 7.130506848171324458,
     // 6.1094102048693971399, 3.7757920798340017881. Tolerance 1e-13 relative (erfcinv ulps).
     expect(relErr(sigmaLevel(1e-12), 7.130506848171324458)).toBeLessThan(1e-13);
     expect(relErr(sigmaLevel(1e-9), 6.1094102048693971399)).toBeLessThan(1e-13);
@@ -97,7 +98,7 @@ describe('normal: quantile reference values', () => {
   });
 
   it('normalPdf(0) = 1/sqrt(2 pi) and normalPdf(1) = 0.24197072451914337', () => {
-    // A&S 26.2.1 (definition); tolerance 1e-15 relative (one exp and a product).
+    // A&S 26.2.1 (definition; test/fixtures/normal_quantiles.py); tolerance 1e-15 relative (one exp and a product).
     expect(relErr(normalPdf(0), 0.3989422804014327)).toBeLessThan(1e-15);
     expect(relErr(normalPdf(1), 0.24197072451914337)).toBeLessThan(1e-15);
   });

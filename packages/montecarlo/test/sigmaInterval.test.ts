@@ -32,7 +32,8 @@ describe('chiSquareQuantile: reference values', () => {
 
   it('1 and 2 degrees of freedom match the closed forms Z^2 and -2 ln(1 - p)', () => {
     // chi2(1) = Z^2, so chi2inv(p, 1) = Phi^-1((1 + p)/2)^2; chi2(2) is exponential with
-    // mean 2, so chi2inv(p, 2) = -2 ln(1 - p) (A&S 26.4). Values by mpmath 1.3.0, 30 digits.
+    // mean 2, so chi2inv(p, 2) = -2 ln(1 - p) (A&S 26.4). Values by mpmath 1.3.0, 30 digits
+    // (test/fixtures/chi_square_table.py).
     // Tolerance 5e-11 relative: jStat 1.9.6 is within 1.3e-11 of SciPy over dof 1..1e5 and
     // p 0.005..0.995 (measured worst case).
     expect(relErr(chiSquareQuantile(0.95, 1), 3.8414588206941236)).toBeLessThan(5e-11);
@@ -43,7 +44,8 @@ describe('chiSquareQuantile: reference values', () => {
   });
 
   it('large dof: SciPy 1.17.1 scipy.stats.chi2.ppf at 1e5 and 1e9 - 1 degrees of freedom', () => {
-    // Computed with SciPy 1.17.1 (Boost gamma quantile). jStat at 1e5 dof: measured 5e-13,
+    // Computed with SciPy 1.17.1 (Boost gamma quantile); recomputed in 40 digits by
+    // test/fixtures/chi_square_table.py. jStat at 1e5 dof: measured 5e-13,
     // tolerance 5e-11 as above. Wilson-Hilferty's error falls as dof^-1.5 (measured against
     // SciPy: 4.3e-11 at 1e6, ~1e-15 at 1e9): tolerances 1e-10 and 1e-13.
     expect(relErr(chiSquareQuantile(0.975, 1e5), 100878.41530566558)).toBeLessThan(5e-11);
@@ -61,7 +63,8 @@ describe('chiSquareQuantile: the switch to Wilson-Hilferty', () => {
   });
 
   it('jStat and Wilson-Hilferty agree at the switch point to 1e-8 (95%, 99%) and 1e-4 (p = 1e-9)', () => {
-    // Wilson-Hilferty's relative error at 1e5 dof, computed against SciPy: 1.4e-9 at
+    // Wilson-Hilferty's relative error at 1e5 dof, computed against SciPy (and against the
+    // 40-digit quantiles of test/fixtures/chi_square_table.py): 1.4e-9 at
     // p = 0.025/0.975, 1.7e-7 at p = 1e-9; the brief's bound is 1e-4 relative, the tighter
     // 1e-8 holds at the usual confidence levels.
     const dof = CHI_SQUARE_APPROXIMATION_DOF;
@@ -74,7 +77,8 @@ describe('chiSquareQuantile: the switch to Wilson-Hilferty', () => {
   });
 
   it('is continuous across the switch: the step from 1e5 to 1e5 + 1 dof is the exact one', () => {
-    // Exact step, SciPy 1.17.1: chi2.ppf(0.975, 100001) - chi2.ppf(0.975, 100000) = 1.0043826095.
+    // Exact step, SciPy 1.17.1: chi2.ppf(0.975, 100001) - chi2.ppf(0.975, 100000) = 1.0043826095
+    // (test/fixtures/chi_square_table.py).
     // The approximation error on either side is < 1.4e-9 relative, i.e. < 1.4e-4 absolute at
     // 1e5; tolerance 1e-8 relative of the quantile (1e-3 absolute) would expose any jump.
     const a = chiSquareQuantile(0.975, 1e5);
@@ -85,7 +89,8 @@ describe('chiSquareQuantile: the switch to Wilson-Hilferty', () => {
 
 describe('sigmaIntervalChiSquare', () => {
   it('N = 11, s = 1, 95%: [0.69871704416342439, 1.7549335474133559]', () => {
-    // Computed with mpmath 1.3.0 from chi2inv(0.975, 10) = 20.4831773508, chi2inv(0.025, 10)
+    // Computed with mpmath 1.3.0 (test/fixtures/chi_square_table.py) from
+    // chi2inv(0.975, 10) = 20.4831773508, chi2inv(0.025, 10)
     // = 3.24697278024 (standard table from memory: 20.483 and 3.247). Tolerance 3e-11 relative
     // (jStat's 5e-11 on the quantile, halved by the square root).
     const [lo, hi] = sigmaIntervalChiSquare(1, 11, 0.95);
@@ -103,7 +108,8 @@ describe('sigmaIntervalChiSquare', () => {
   });
 
   it('N = 1e9 works and gives [0.9999561758068122, 1.0000438280610702] for s = 1', () => {
-    // SciPy 1.17.1 chi2.ppf at 1e9 - 1 dof. Relative half-width ~ z / sqrt(2 N) = 4.38e-5
+    // SciPy 1.17.1 chi2.ppf at 1e9 - 1 dof (test/fixtures/chi_square_table.py). Relative
+    // half-width ~ z / sqrt(2 N) = 4.38e-5
     // (normal approximation, common practice). Tolerance 1e-12 relative.
     const [lo, hi] = sigmaIntervalChiSquare(1, 1e9, 0.95);
     expect(relErr(lo, 0.9999561758068122)).toBeLessThan(1e-12);

@@ -21,7 +21,7 @@ describe('wilson: reference values', () => {
     expect(Math.abs(hi - 0.011651)).toBeLessThanOrEqual(0.5e-5);
   });
 
-  // Computed with mpmath 1.3.0 at 40 digits from the Wilson quadratic
+  // Computed with mpmath 1.3.0 at 40 digits from the Wilson quadratic (test/fixtures/wilson_table.py)
   // p^2 (1 + z^2/n) - p (2 x/n + z^2/n) + (x/n)^2 = 0, z = sqrt(2) erfinv(0.95).
   // Tolerance 1e-13 relative: a handful of roundings in a closed form without cancellation.
   const table: [number, number, number, number][] = [
@@ -39,7 +39,8 @@ describe('wilson: reference values', () => {
   }
 
   it('all failures gives [0.996173, 1] at n = 1000 (mirror of 0/1000)', () => {
-    // mpmath 1.3.0, 40 digits, same quadratic: lower root 0.99617324151444488; upper exactly 1.
+    // mpmath 1.3.0, 40 digits, same quadratic (test/fixtures/wilson_table.py): lower root
+    // 0.99617324151444488; upper exactly 1.
     const [lo, hi] = wilson(1000, 1000, 0.95);
     expect(hi).toBe(1);
     expect(Math.abs(lo - 0.99617324151444488)).toBeLessThan(1e-15); // absolute, value near 1

@@ -13,7 +13,7 @@ describe('yield: check values computed from Y_chip = Y^M (test/fixtures/check_va
     const p = allowedFailure(0.99, 63);
     expect(Math.abs(p - 1.595e-4)).toBeLessThanOrEqual(0.5e-7);
     expect(Math.abs(sigmaLevel(p) - 3.776)).toBeLessThanOrEqual(0.5e-3);
-    // mpmath 1.3.0, 40 digits: 1 - 0.99^(1/63) = 1.5951641643506e-4; 1e-13 relative
+    // mpmath 1.3.0, 40 digits (test/fixtures/check_values.py): 1 - 0.99^(1/63) = 1.5951641643506e-4; 1e-13 relative
     // (one log, one division, one expm1).
     expect(relErr(p, 1.5951641643506e-4)).toBeLessThan(1e-13);
   });
@@ -23,13 +23,13 @@ describe('yield: check values computed from Y_chip = Y^M (test/fixtures/check_va
     const p = allowedFailure(0.999, 1e6);
     expect(Math.abs(p - 1.0e-9)).toBeLessThanOrEqual(0.05e-9);
     expect(Math.abs(sigmaLevel(p) - 6.109)).toBeLessThanOrEqual(0.5e-3);
-    // mpmath 1.3.0, 40 digits: 1 - 0.999^(1e-6) = 1.00050033308303e-9; the naive
+    // mpmath 1.3.0, 40 digits (test/fixtures/check_values.py): 1 - 0.999^(1e-6) = 1.00050033308303e-9; the naive
     // 1 - 0.999 ** 1e-6 keeps only ~7 digits here, the expm1 form ~15. Tolerance 1e-13.
     expect(relErr(p, 1.00050033308303e-9)).toBeLessThan(1e-13);
   });
 
   it('chip yield of 1e6 instances at p = 1e-9 is 0.999000499833 (and 63 at 99.9% is 0.93891)', () => {
-    // mpmath 1.3.0, 40 digits: (1 - 1e-9)^1e6 = 0.99900049983287549142,
+    // mpmath 1.3.0, 40 digits (test/fixtures/check_values.py): (1 - 1e-9)^1e6 = 0.99900049983287549142,
     // 0.999^63 = 0.93891387770354909968. Tolerance 1e-13 relative.
     expect(relErr(chipYieldFromFailure(1e-9, 1e6), 0.99900049983287549142)).toBeLessThan(1e-13);
     expect(relErr(chipYield(0.999, 63), 0.93891387770354909968)).toBeLessThan(1e-13);
