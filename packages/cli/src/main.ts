@@ -5,7 +5,7 @@ import { loadDesign } from './designFile.js';
 import { warnUnitSlips } from './unitWarnings.js';
 import { inspectDesign, renderInspect } from './commands/inspect.js';
 import { assertFinite, processIo, printJson, type Io, NonFiniteResultError } from './output.js';
-import { registerRun } from './commands/run.js';
+import { parseDrift, registerRun } from './commands/run.js';
 import { registerTail } from './commands/tail.js';
 import { registerSize } from './commands/size.js';
 import { registerSweep } from './commands/sweep.js';
@@ -37,10 +37,12 @@ export function buildProgram(io: Io, setExit: (code: number) => void): Command {
     .description('operating point, linearised offset sigma, variance budget and Gaussian yield of a design')
     .argument('<design>', 'design file (YAML or JSON)')
     .option('--json', 'print one JSON object instead of tables')
-    .action(async (file: string, opts: { json?: boolean }) => {
+    .option('--drift <A,B>', 'the two conditions of the linearised drift, e.g. cold,hot (default: the coldest and hottest that differ only in temperature)')
+    .action(async (file: string, opts: { json?: boolean; drift?: string }) => {
+      const drift = parseDrift(opts.drift);
       const design = await loadDesign(file);
       warnUnitSlips(io, design);
-      const report = inspectDesign(design);
+      const report = inspectDesign(design, drift);
       assertFinite(report);
       if (opts.json === true) printJson(io, report);
       else io.out(renderInspect(report));

@@ -1,7 +1,8 @@
-import { compileStage, formatQuantity, stageDefinition, type Design, type Stage } from '@twinfet/core';
-import { linearisedSummary, chipFailure, type LinearisedSummary } from '@twinfet/montecarlo';
+import { compileConditions, compileStage, conditionSummary, defaultDriftPair, formatQuantity, namedDriftPair, stageDefinition, type Design, type Stage } from '@twinfet/core';
+import { linearisedDriftSigma, linearisedSummary, chipFailure, type LinearisedSummary } from '@twinfet/montecarlo';
 import { renderPairs, renderTable } from '../table.js';
 import { designSummary, figureSummary, figureText, headerLine, pct, sci, shareLabel } from '../describe.js';
+import { celsius, driftText, fieldCell, fieldColumns, shiftText } from '../conditionsText.js';
 
 /** The inspect report: operating point and the linearised picture of the stage's figure. */
 export interface InspectReport {
@@ -12,19 +13,56 @@ export interface InspectReport {
   /** Resistor rows, for stages that have resistors. */
   readonly resistors?: NonNullable<Stage['resistors']>;
   readonly analytic: LinearisedSummary;
+  /** With conditions: the linearised sigma and Gaussian yield at each (the design's own values inherited). */
+  readonly conditions?: readonly (Readonly<Record<string, unknown>> & {
+    readonly name: string;
+    readonly temperature: number;
+    readonly linearised: { readonly sigma: number; readonly gaussianYield: number; readonly gaussianFailure: number };
+  })[];
+  /** With conditions: the linearised sigma of the drift between two of them (null when none is taken). */
+  readonly drift?: null | { readonly from: string; readonly to: string; readonly fromTemperature: number; readonly toTemperature: number; readonly linearisedSigma: number };
   readonly warnings: readonly string[];
 }
 
-/** Builds the inspect report of a design. */
-export function inspectDesign(design: Design): InspectReport {
+/**
+ * Builds the inspect report of a design; `drift` names the two conditions of the drift
+ * (default: the coldest and hottest that differ only in temperature).
+ */
+export function inspectDesign(design: Design, drift?: readonly [string, string]): InspectReport {
   const stage = compileStage(design);
+  const at = compileConditions(design);
+  const pair = drift !== undefined ? namedDriftPair(stage.design, drift, '--drift') : at.length > 0 ? defaultDriftPair(stage.design) : null;
+  const conditions = at.map((c) => {
+    const lin = linearisedSummary(c.stage);
+    return {
+      ...conditionSummary(stage.design, c.condition),
+      name: c.condition.name,
+      temperature: c.design.temperature,
+      linearised: { sigma: lin.sigma, gaussianYield: lin.gaussian.yield, gaussianFailure: lin.gaussian.failure },
+    };
+  });
   return {
     design: designSummary(design),
     figure: figureSummary(design),
     operatingPoint: stage.operatingPoint,
     ...(stage.resistors === undefined ? {} : { resistors: stage.resistors }),
     analytic: linearisedSummary(stage),
-    warnings: stage.warnings,
+    ...(at.length === 0
+      ? {}
+      : {
+          conditions,
+          drift:
+            pair === null
+              ? null
+              : {
+                  from: at[pair.from]!.condition.name,
+                  to: at[pair.to]!.condition.name,
+                  fromTemperature: at[pair.from]!.design.temperature,
+                  toTemperature: at[pair.to]!.design.temperature,
+                  linearisedSigma: linearisedDriftSigma(at[pair.from]!.stage, at[pair.to]!.stage),
+                },
+        }),
+    warnings: [...stage.warnings, ...at.flatMap((c) => c.stage.warnings.filter((w) => !stage.warnings.includes(w)).map((w) => `at condition ${c.condition.name}: ${w}`))],
   };
 }
 
@@ -99,6 +137,7 @@ export function renderInspect(r: InspectReport): string {
     '',
     renderBudget(a, r.design),
   ];
+  if (r.conditions !== undefined) parts.push('', renderInspectConditions(r));
   for (const w of r.warnings) parts.push(`warning: ${w}`);
   return parts.join('\n');
 }
@@ -118,4 +157,40 @@ export function yieldText(y: number, digits = yieldDigits(y)): string {
 /** A yield given by its failure probability: `1 - 5.16e-33` once the nines stop being readable. */
 export function yieldFromFailure(failure: number): string {
   return failure < 1e-9 ? `1 - ${failure.toExponential(3)}` : yieldText(1 - failure);
+}
+
+/** The conditions' part of the inspect report: linearised sigma and Gaussian yield at each, and the linearised drift. */
+export function renderInspectConditions(r: InspectReport): string {
+  const rows = r.conditions ?? [];
+  const fig = stageDefinition(r.design.topology).figure;
+  const format = figureText(fig).format;
+  const cols = fieldColumns(r.design, rows);
+  const hasShift = rows.some((x) => x['shift'] !== undefined);
+  const worst = Math.max(...rows.map((x) => x.linearised.gaussianFailure));
+  const digits = yieldDigits(1 - worst);
+  // Readable nines down to 1e-9 of failure, as elsewhere; beyond, or where the table's decimals
+  // would round a failure away, `1 - p`.
+  const gaussian = (p: number): string => {
+    if (worst < 1e-9) return yieldFromFailure(p);
+    const text = yieldText(1 - p, digits);
+    return p > 0 && Number(text) === 1 ? `1 - ${p.toExponential(3)}` : text;
+  };
+  const header = ['condition', 'temperature', ...cols.map((x) => x.path), ...(hasShift ? ['shift'] : []), 'linearised sigma', 'Gaussian yield'];
+  const body = rows.map((x) => [
+    x.name,
+    celsius(x.temperature),
+    ...cols.map((col) => fieldCell(col.f, col.get(x))),
+    ...(hasShift ? [shiftText(x['shift'])] : []),
+    format(x.linearised.sigma),
+    gaussian(x.linearised.gaussianFailure),
+  ]);
+  const left = new Set([0, ...(hasShift ? [2 + cols.length] : [])]);
+  const d = r.drift;
+  return [
+    `operating conditions (linearised, the same mismatch at each; \`twinfet run\` gives the all-conditions yield)`,
+    renderTable(header, body, header.map((_, i) => (left.has(i) ? 'left' : 'right'))),
+    d === undefined || d === null
+      ? 'drift: none (no two conditions differ only in temperature; choose two with --drift A,B)'
+      : `drift ${d.from} -> ${d.to} (${celsius(d.fromTemperature)} to ${celsius(d.toTemperature)}): linearised sigma ${driftText(fig, d.linearisedSigma)}`,
+  ].join('\n');
 }

@@ -17,13 +17,28 @@ interface TailFlags extends CommonFlags {
 
 const sig = (x: number | null): string => (x === null ? 'unbounded' : x.toFixed(3));
 
+/** The design-point table (with a condition column when the failure is over conditions). */
+function pointsTable(rows: string[][], union: boolean): string {
+  const header = [...(union ? ['condition'] : []), 'side', 'distance', 'FORM p', 'found by', 'dominant mismatch'];
+  return renderTable(header, rows, [...(union ? ['left' as const] : []), 'left', 'right', 'right', 'left', 'left']);
+}
+
+/** Each condition's own failure probability from the union estimate's samples. */
+function conditionRows(r: HighSigmaReport): string {
+  const c = `${Math.round(r.confidence * 1000) / 10}%`;
+  const rows = (r.conditions ?? []).map((x) => [x.name, sci(x.failureProbability, 4), `[${sci(x.interval[0], 4)}, ${sci(x.interval[1], 4)}]`, sci(x.form, 4)]);
+  return renderTable(['condition', 'failure', `${c} interval`, 'FORM p'], rows);
+}
+
 /** Text form of a high-sigma estimate of the design's figure (also used inside `run --method importance`). */
 export function renderTail(r: HighSigmaReport, design: Pick<Design, 'topology'>): string {
   const f = figureText(stageDefinition(design.topology).figure);
   const c = `${Math.round(r.confidence * 1000) / 10}%`;
+  const union = r.conditions !== undefined;
   const pts = r.designPoints.map((p) => {
     const top = [...p.coordinates].sort((a, b) => Math.abs(b.u) - Math.abs(a.u)).slice(0, 4);
     return [
+      ...(union ? [p.condition ?? '-'] : []),
       p.side,
       p.distance.toFixed(4),
       sci(p.form, 4),
@@ -40,7 +55,7 @@ export function renderTail(r: HighSigmaReport, design: Pick<Design, 'topology'>)
       ]),
       '',
       'most probable failure points (standard-normal space; the largest coordinates)',
-      renderTable(['side', 'distance', 'FORM p', 'found by', 'dominant mismatch'], pts, ['left', 'right', 'right', 'left', 'left']),
+      pointsTable(pts, union),
     ].join('\n');
   }
   return [
@@ -48,16 +63,25 @@ export function renderTail(r: HighSigmaReport, design: Pick<Design, 'topology'>)
       [`spec ${f.magnitude} <=`, f.format(r.spec)],
       ['failure probability', `${sci(r.failureProbability, 4)}   ${c} [${sci(r.interval[0], 4)}, ${sci(r.interval[1], 4)}]`],
       ['equivalent sigma level', `${sig(r.sigmaLevel)}   ${c} [${sig(r.sigmaLevelInterval[0])}, ${sig(r.sigmaLevelInterval[1])}] (two-sided)`],
-      ['by side', `+spec ${sci(r.high, 4)}, -spec ${sci(r.low, 4)}`],
-      ['FORM estimate', `${sci(r.form.failureProbability, 4)} (${r.form.sigmaLevel.toFixed(3)} sigma)`],
+      ...(union
+        ? ([
+            ['over', `all ${r.conditions!.length} conditions: a sample fails when it fails at one condition at least (mixture over every condition's failure points)`],
+            ['by side', `+spec somewhere ${sci(r.high, 4)}, -spec somewhere ${sci(r.low, 4)}`],
+            ['FORM estimate', `${sci(r.form.failureProbability, 4)} (sum over the failure points: Boole's bound on the union of the linearised regions; ${r.form.sigmaLevel.toFixed(3)} sigma)`],
+          ] as [string, string][])
+        : ([
+            ['by side', `+spec ${sci(r.high, 4)}, -spec ${sci(r.low, 4)}`],
+            ['FORM estimate', `${sci(r.form.failureProbability, 4)} (${r.form.sigmaLevel.toFixed(3)} sigma)`],
+          ] as [string, string][])),
       [`chip failure (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, `${sci(r.chip.failure, 4)}   ${c} [${sci(r.chip.interval[0], 4)}, ${sci(r.chip.interval[1], 4)}]`],
       ['samples', `${r.samples} (${r.hits} failing; stop rule ${r.stopRule}; relative half-width ${r.relativeHalfWidth === null ? 'n/a' : (r.relativeHalfWidth * 100).toFixed(2) + '%'})`],
       ['figure of merit', `relative variance per sample ${r.relativeVariancePerSample === null ? 'n/a' : r.relativeVariancePerSample.toFixed(2)}; plain Monte Carlo would need ${r.equivalentPlainSamples === null ? 'n/a' : sci(r.equivalentPlainSamples, 3)} samples for the same interval`],
       ['time', `${r.seconds.toFixed(3)} s, seed ${r.seed}`],
     ]),
     '',
+    ...(union ? ['each condition on its own (the same weighted samples)', conditionRows(r), ''] : []),
     'most probable failure points (standard-normal space; the largest coordinates)',
-    renderTable(['side', 'distance', 'FORM p', 'found by', 'dominant mismatch'], pts, ['left', 'right', 'right', 'left', 'left']),
+    pointsTable(pts, union),
     ...(r.nonConverged > 0 ? [`warning: ${r.nonConverged} sample(s) whose balance solve did not converge were left out`] : []),
   ].join('\n');
 }

@@ -1,4 +1,4 @@
-import { compileStage, InputError, specLimit, variableDeviation, type Design, type Stage } from '@twinfet/core';
+import { compileConditions, compileStage, InputError, specLimit, variableDeviation, type Design, type Stage } from '@twinfet/core';
 import { findDesignPoint, type DesignPoint } from './designPoint.js';
 import type { ImportanceResult, ImportanceTask } from '../engine/messages.js';
 import { normalQuantile, sigmaLevel, sigmaLevelOfTails } from '../stats/normal.js';
@@ -35,6 +35,8 @@ export interface HighSigmaOptions {
 export interface ReportedDesignPoint {
   /** The failure region (`+spec`, `-spec`, or the stage's own label). */
   readonly side: string;
+  /** With conditions: the condition whose failure region this is. */
+  readonly condition?: string;
   readonly distance: number;
   readonly form: number;
   readonly method: DesignPoint['method'];
@@ -84,6 +86,21 @@ export interface HighSigmaReport {
   readonly designPoints: readonly ReportedDesignPoint[];
   readonly form: { readonly failureProbability: number; readonly sigmaLevel: number };
   readonly chip: { readonly instances: number; readonly failure: number; readonly interval: readonly [number, number] };
+  /**
+   * With conditions: `all conditions`, and the failure above is P(fails at one condition at
+   * least) from a mixture over every condition's design points; `high`/`low` are then P(beyond
+   * +spec somewhere) and P(beyond -spec somewhere), and the FORM figure is the sum over points.
+   */
+  readonly over?: 'all conditions';
+  /** With conditions: each condition's own failure probability from the same weighted samples. */
+  readonly conditions?: readonly {
+    readonly name: string;
+    readonly failureProbability: number;
+    readonly standardError: number;
+    readonly interval: readonly [number, number];
+    /** Sum of Phi(-distance) over this condition's design points. */
+    readonly form: number;
+  }[];
   readonly seconds: number;
 }
 
@@ -92,9 +109,10 @@ function finiteOrNull(x: number): number | null {
   return Number.isFinite(x) ? x : null;
 }
 
-function describePoint(stage: Stage, p: DesignPoint): ReportedDesignPoint {
+function describePoint(stage: Stage, p: DesignPoint, condition?: string): ReportedDesignPoint {
   return {
     side: p.label,
+    ...(condition === undefined ? {} : { condition }),
     distance: p.distance,
     form: p.form,
     method: p.method,
@@ -139,7 +157,15 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
   const relError = options.relError ?? 0.05;
   const seed = seedText(options.seed);
   const z = normalQuantile(1 - (1 - confidence) / 2);
-  const points = stage.failureComponents(spec).map((c) => findDesignPoint(stage, c));
+  // With conditions the failure is the union over them: a mixture over every condition's design points.
+  const atConditions = compileConditions(design);
+  const union = atConditions.length > 0;
+  const located = union
+    ? atConditions.flatMap((cs, k) => cs.stage.failureComponents(spec).map((c) => ({ point: findDesignPoint(cs.stage, c), stage: cs.stage, k })))
+    : stage.failureComponents(spec).map((c) => ({ point: findDesignPoint(stage, c), stage, k: -1 }));
+  const points = located.map((x) => x.point);
+  const byCondition = atConditions.map(() => 0);
+  const byConditionSquares = atConditions.map(() => 0);
   const fixed = options.samples;
   const maxSamples = fixed ?? options.maxSamples ?? 1e7;
 
@@ -165,6 +191,8 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
     sumLow += r.sumLow;
     hits += r.hits;
     nonConverged += r.nonConverged;
+    r.byCondition?.forEach((x, k) => (byCondition[k]! += x));
+    r.byConditionSquares?.forEach((x, k) => (byConditionSquares[k]! += x));
   };
   // Sums are of w e^{logScale}: with the scale at the nearer design point's b^2/2 the scaled
   // weights near the failure region are of order 1 at any distance (see ImportanceTask).
@@ -190,7 +218,7 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
       let planned = 0;
       for (let c = 0; c < round && planned < remaining; c++) {
         const count = Math.min(IMPORTANCE_CHUNK, remaining - planned);
-        tasks.push({ kind: 'importance', design, seed, chunk: chunk++, count, spec, shifts: points.map((p) => p.u), logScale });
+        tasks.push({ kind: 'importance', design, seed, chunk: chunk++, count, spec, shifts: points.map((p) => p.u), logScale, ...(union ? { union: true } : {}) });
         planned += count;
       }
       await runChunks(executor, taskList(tasks), consume, {
@@ -241,7 +269,7 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
     belowDoubleRange,
     relativeVariancePerSample: has ? variance / (ps * ps) : null,
     equivalentPlainSamples: relHalf !== null && relHalf > 0 && p > 0 ? finiteOrNull((z * z * (1 - p)) / p / relHalf / relHalf) : null,
-    designPoints: points.map((pt) => describePoint(stage, pt)),
+    designPoints: located.map((x) => describePoint(x.stage, x.point, x.k < 0 ? undefined : atConditions[x.k]!.condition.name)),
     // From the distances, not from formP: beyond ~38 sigma formP underflows to 0 and its level would be Infinity.
     form: { failureProbability: formP, sigmaLevel: formLevel },
     chip: {
@@ -249,6 +277,24 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
       failure: chipFailure(p, instances),
       interval: [chipFailure(lo, instances), chipFailure(hi, instances)],
     },
+    ...(union
+      ? {
+          over: 'all conditions' as const,
+          conditions: atConditions.map((cs, k) => {
+            const pk = n > 0 ? byCondition[k]! / n : 0;
+            const vk = n > 0 ? Math.max(0, byConditionSquares[k]! / n - pk * pk) : 0;
+            const estimate = Math.min(1, pk * unscale);
+            const sek = Math.sqrt(vk / Math.max(1, n)) * unscale;
+            return {
+              name: cs.condition.name,
+              failureProbability: estimate,
+              standardError: sek,
+              interval: [Math.max(0, estimate - z * sek), Math.min(1, estimate + z * sek)] as const,
+              form: located.filter((x) => x.k === k).reduce((a, x) => a + x.point.form, 0),
+            };
+          }),
+        }
+      : {}),
     seconds: (performance.now() - started) / 1000,
   };
 }

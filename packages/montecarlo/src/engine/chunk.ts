@@ -1,9 +1,10 @@
 // The compile entry alone: a worker needs no design-file reader (and so no YAML parser) to start.
-import { compileStage } from '@twinfet/core/compile';
+import { compileConditions, compileStage } from '@twinfet/core/compile';
 import type { Stage } from '@twinfet/core';
 import type { ChunkResult, ImportanceResult, ImportanceTask, MonteCarloResult, MonteCarloTask, ChunkTask } from './messages.js';
 import { addToHistogram, createHistogram } from '../stats/histogram.js';
 import { addBlock, emptyMoments } from '../stats/moments.js';
+import { createConditionsAccumulator, unionBlock } from './conditionsKernel.js';
 import { chunkRng } from '../random/stream.js';
 import { fillStandardNormals } from '../random/ziggurat.js';
 
@@ -28,6 +29,20 @@ function stageFor(design: ChunkTask['design']): Stage {
   return stage;
 }
 
+/** The design's stage at each of its conditions, cached per thread like the design's own stage. */
+const conditionSets = new Map<string, readonly Stage[]>();
+
+export function conditionStagesFor(design: ChunkTask['design']): readonly Stage[] {
+  const key = JSON.stringify(design);
+  let set = conditionSets.get(key);
+  if (set === undefined) {
+    set = compileConditions(design).map((c) => c.stage);
+    if (conditionSets.size >= STAGE_CACHE_LIMIT) conditionSets.delete(conditionSets.keys().next().value!);
+    conditionSets.set(key, set);
+  }
+  return set;
+}
+
 /** Runs one chunk of work. Pure: the result depends on the task only. */
 export function runChunk(task: ChunkTask): ChunkResult {
   const stage = stageFor(task.design);
@@ -49,10 +64,14 @@ function monteCarloKernel(stage: Stage, task: MonteCarloTask): MonteCarloResult 
   let failuresHigh = 0;
   let failuresLow = 0;
   let nonConverged = 0;
+  const atConditions =
+    task.conditions === undefined ? undefined : createConditionsAccumulator(conditionStagesFor(task.design), task.conditions, task.count, BLOCK, spec, lowLimit);
   for (let start = 0; start < task.count; start += BLOCK) {
     const n = Math.min(BLOCK, task.count - start);
     const u = draws === undefined ? blockDraws : draws.subarray(start * dim, (start + n) * dim);
     fillStandardNormals(rng, u, 0, n * dim);
+    // The same draws at every condition, before the design's own figures are compacted below.
+    atConditions?.add(u, n, start);
     const bad = stage.figures(u, n, blockOut, 0);
     // Kept offsets hold NaN where a solve failed, so rows stay aligned with the draws.
     if (offsets !== undefined) offsets.set(blockOut.subarray(0, n), start);
@@ -85,6 +104,7 @@ function monteCarloKernel(stage: Stage, task: MonteCarloTask): MonteCarloResult 
     nonConverged,
     ...(offsets === undefined ? {} : { offsets }),
     ...(draws === undefined ? {} : { draws }),
+    ...(atConditions === undefined ? {} : { conditions: atConditions.result() }),
   };
 }
 
@@ -108,6 +128,7 @@ function importanceKernel(stage: Stage, task: ImportanceTask): ImportanceResult 
   const lowLimit = stage.definition.figure.sided === 'two' ? -spec : -Infinity;
   const u = new Float64Array(BLOCK * dim);
   const out = new Float64Array(BLOCK);
+  const union = task.union === true ? conditionStagesFor(task.design) : undefined;
   const logw = new Float64Array(BLOCK);
   let sum = 0;
   let sumSquares = 0;
@@ -115,6 +136,8 @@ function importanceKernel(stage: Stage, task: ImportanceTask): ImportanceResult 
   let sumLow = 0;
   let hits = 0;
   let nonConverged = 0;
+  const byCondition = union === undefined ? undefined : new Array<number>(union.length).fill(0);
+  const byConditionSquares = union === undefined ? undefined : new Array<number>(union.length).fill(0);
   for (let start = 0; start < task.count; start += BLOCK) {
     const n = Math.min(BLOCK, task.count - start);
     fillStandardNormals(rng, u, 0, n * dim);
@@ -139,6 +162,16 @@ function importanceKernel(stage: Stage, task: ImportanceTask): ImportanceResult 
       }
       logw[i] = logK - best - Math.log(acc);
     }
+    if (union !== undefined) {
+      const r = unionBlock(union, u, n, logw, logScale, spec, lowLimit, byCondition!, byConditionSquares!);
+      sum += r.sum;
+      sumSquares += r.sumSquares;
+      sumHigh += r.sumHigh;
+      sumLow += r.sumLow;
+      hits += r.hits;
+      nonConverged += r.nonConverged;
+      continue;
+    }
     nonConverged += stage.figures(u, n, out, 0);
     for (let i = 0; i < n; i++) {
       const x = out[i]!;
@@ -153,5 +186,16 @@ function importanceKernel(stage: Stage, task: ImportanceTask): ImportanceResult 
       }
     }
   }
-  return { kind: 'importance', chunk: task.chunk, count: task.count, sum, sumSquares, sumHigh, sumLow, hits, nonConverged };
+  return {
+    kind: 'importance',
+    chunk: task.chunk,
+    count: task.count,
+    sum,
+    sumSquares,
+    sumHigh,
+    sumLow,
+    hits,
+    nonConverged,
+    ...(byCondition === undefined || byConditionSquares === undefined ? {} : { byCondition, byConditionSquares }),
+  };
 }

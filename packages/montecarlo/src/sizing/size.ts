@@ -3,7 +3,7 @@
  * model (Monte Carlo for sigma and moderate yields, importance sampling for high-sigma yields)
  * and scale up a little until the confirmed figure meets the target with its interval.
  */
-import { compileStage, formatQuantity, InputError, linearisedSigma, type Design, type InversionRegion, type Polarity, type Stage, MISMATCH_PARAMETERS, specLimit, stageDefinition } from '@twinfet/core';
+import { compileStage, formatQuantity, InputError, type Design, type InversionRegion, type Polarity, type Stage, MISMATCH_PARAMETERS, specLimit, stageDefinition } from '@twinfet/core';
 import { areaSplit, equalScalingFamily, optimalSplitFamily, type AreaSplit } from './areaSplit.js';
 import { normalQuantile, normalUpperTail, sigmaLevel, twoSidedTail } from '../stats/normal.js';
 import { createExecutor, defaultWorkers, type Executor } from '../engine/pool.js';
@@ -12,6 +12,7 @@ import { seedText } from '../random/seed.js';
 import { simulate } from '../analyses/simulate.js';
 import { limitingTerm, solveLinearised, type LinearisedFloor, type LinearisedSolution } from './sizeLinearised.js';
 import { estimateHighSigma } from '../analyses/highSigma.js';
+import { largestSigma, limitingStage } from '../analyses/worstCondition.js';
 import { allowedFailure, chipYieldFromFailure } from '../stats/yield.js';
 
 /** What the sized design must achieve. */
@@ -86,6 +87,8 @@ export interface SizedPoint {
   readonly gaussianFailure: number;
   /** Cox W L of one input device (the capacitance each input sees), F; null without process cox. */
   readonly inputCapacitance: number | null;
+  /** With conditions: the condition of largest linearised sigma, whose figures these are; else null. */
+  readonly condition: string | null;
 }
 
 /** One confirmation on the exact model. */
@@ -105,6 +108,11 @@ export interface Confirmation {
   readonly chipYieldInterval: readonly [number, number];
   /** Whether the figure meets the target by the stated rule. */
   readonly met: boolean;
+  /**
+   * With conditions: the condition that limits the confirmed figure (largest sigma for a sigma
+   * target, lowest yield or largest failure for a yield target); else null.
+   */
+  readonly condition: string | null;
 }
 
 /** The result of `sizeDesign`. */
@@ -197,10 +205,11 @@ function sigmaForFailure(design: Design, spec: number, p: number): number {
 
 /** Geometry, operating point and linearised figures of a design. */
 export function sizedPoint(design: Design, vary: SizeVary, scale: number, spec: number): SizedPoint {
-  const stage = compileStage(design);
+  const limiting = limitingStage(design);
+  const stage = limiting.stage;
   const roles = sizableBlocks(design).map((b) => b.key);
   const pairs = roles.map((r) => pairSizing(stage, r));
-  const sigma = linearisedSigma(stage);
+  const sigma = limiting.sigma;
   const count = (r: string): number => stage.definition.blocks.find((b) => b.key === r)?.elements.length ?? 2;
   const areaOf = (r: string): number => count(r) * (pairs.find((p) => p.role === r)?.gateArea ?? 0);
   return {
@@ -211,6 +220,7 @@ export function sizedPoint(design: Design, vary: SizeVary, scale: number, spec: 
     totalGateArea: roles.reduce((a, r) => a + areaOf(r), 0),
     gaussianFailure: gaussianFailure(design, spec, sigma),
     inputCapacitance: pairs[0]!.gateCapacitance,
+    condition: limiting.condition,
   };
 }
 
@@ -367,6 +377,11 @@ export async function sizeDesign(design: Design, options: SizeOptions): Promise<
   const linearised = { ...sizedPoint(lin.design, vary, lin.t, spec), atMinimum: lin.atMinimum };
   const { confirmations, current } = await confirmAlong(family, lin, { vary, spec, pl, confidence, seed: seedText(options.seed), options });
   const confirmed = confirmations[confirmations.length - 1]!;
+  const conditionCount = design.conditions?.length ?? 0;
+  if (conditionCount > 0) {
+    const what = pl.allowed === null ? 'the largest sigma over the conditions' : 'the all-conditions yield (an instance passes only if it passes at every condition)';
+    notes.push(`sized for ${what} at ${conditionCount} condition${conditionCount === 1 ? '' : 's'}; ${confirmed.condition ?? 'none'} limits it on the exact model, ${linearisedLimit(current.design)} on the linearised one`);
+  }
   if (confirmations.length > 1) {
     notes.push(`the linearised solution was scaled up ${confirmations.length - 1} time(s) until the exact-model figure met the target with its interval`);
   }
@@ -486,6 +501,12 @@ function splitComparison(design: Design, split: AreaSplit, lin: LinearisedSoluti
   };
 }
 
+/** The condition of largest linearised sigma, in words. */
+function linearisedLimit(design: Design): string {
+  const l = limitingStage(design);
+  return `${l.condition ?? 'the design'} (linearised sigma ${figureValue(design, l.sigma)})`;
+}
+
 function describeFigure(c: Confirmation, design: Design): string {
   const v = (x: number): string => figureValue(design, x);
   if (c.sigma !== null && c.sigmaInterval !== null && c.method === 'monte-carlo') {
@@ -518,14 +539,17 @@ async function confirm(
       ...(signal === undefined ? {} : { signal }),
     });
     const fi = r.yield.failure.interval;
-    const met = pl.allowed === null ? r.offset.sigmaInterval[1] <= pl.sigmaTarget : fi[1] <= pl.allowed;
+    // With conditions: the largest per-condition sigma, and the all-conditions failure.
+    const big = largestSigma(r);
+    const met = pl.allowed === null ? big.sigmaInterval[1] <= pl.sigmaTarget : fi[1] <= pl.allowed;
     return {
       method: 'monte-carlo',
       seed,
-      samples: r.evaluated,
+      samples: r.yield.evaluated ?? r.evaluated,
       point,
-      sigma: r.offset.sigma,
-      sigmaInterval: r.offset.sigmaInterval,
+      sigma: big.sigma,
+      sigmaInterval: big.sigmaInterval,
+      condition: pl.allowed === null ? big.condition : (r.yield.worst ?? null),
       failure: r.yield.failure.estimate,
       failureInterval: fi,
       chipYield: chipYieldFromFailure(r.yield.failure.estimate, instances),
@@ -553,6 +577,7 @@ async function confirm(
     chipYield: chipYieldFromFailure(r.failureProbability, instances),
     chipYieldInterval: chip(r.interval),
     met: r.interval[1] <= pl.allowed!,
+    condition: r.conditions === undefined ? null : [...r.conditions].sort((a, b) => b.failureProbability - a.failureProbability)[0]!.name,
   };
 }
 
@@ -582,7 +607,7 @@ function refine(family: SizingFamily, at: LinearisedSolution, c: Confirmation, p
     const t = at.t * 1.005;
     if (t > family.range[1]) return { reached: false, floor: { t: at.t, design: at.design, sigma: at.sigma }, limiting: limitingTerm(at.design), atMaximum: true };
     const design = family.at(t);
-    return { t, design, sigma: linearisedSigma(compileStage(design)), reached: true, atMinimum: false };
+    return { t, design, sigma: limitingStage(design).sigma, reached: true, atMinimum: false };
   }
   return next;
 }
