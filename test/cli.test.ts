@@ -1,5 +1,5 @@
 import { spawnSync } from 'node:child_process';
-import { mkdtempSync, readFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
@@ -12,6 +12,7 @@ const root = fileURLToPath(new URL('..', import.meta.url));
 const bin = join(root, 'packages/cli/bin/twinfet.js');
 const demo = join(root, 'examples/comparator-demo.yaml');
 const linear = join(root, 'test/fixtures/linear-pair.yaml');
+const senseAmp = join(root, 'examples/sense-amp-pmos.yaml');
 const out = mkdtempSync(join(tmpdir(), 'twinfet-cli-'));
 
 function twinfet(...args: string[]): { code: number; stdout: string; stderr: string } {
@@ -28,6 +29,17 @@ describe('twinfet (end to end, the built CLI)', () => {
     const v = twinfet('--version');
     expect(v.code).toBe(0);
     expect(v.stdout.trim()).toMatch(/^\d+\.\d+\.\d+$/);
+  });
+
+  it('runs from the bundle: it is newer than every build, and its inlined version is the package version', () => {
+    // The bin takes the bundle only when its stamp is at least as new as each tsbuildinfo (the
+    // global set-up has just made it), so every end-to-end test here exercises the bundle.
+    const stamp = statSync(join(root, 'packages/cli/bundle/built')).mtimeMs;
+    for (const p of ['cli', 'core', 'montecarlo']) expect(statSync(join(root, `packages/${p}/dist/tsconfig.tsbuildinfo`)).mtimeMs).toBeLessThanOrEqual(stamp);
+    const bundled = readFileSync(join(root, 'packages/cli/bundle/twinfet.js'), 'utf8');
+    expect(bundled).not.toContain('TWINFET_BUNDLED_VERSION');
+    const pkg = JSON.parse(readFileSync(join(root, 'packages/cli/package.json'), 'utf8')) as { version: string };
+    expect(twinfet('--version').stdout.trim()).toBe(pkg.version);
   });
 
   it('inspect --json gives analytic.sigma equal to the library value and a budget summing to 1', async () => {
@@ -156,6 +168,60 @@ describe('twinfet (end to end, the built CLI)', () => {
     const j = JSON.parse(r.stdout);
     expect(j.importance.spec).toBe(0.02);
     expect(j.importance.failureProbability).toBeGreaterThan(0);
+  });
+
+  it('run with no failures says so, with the upper bound on the failure probability and the usual digits', () => {
+    // The sense amplifier at 10000 samples: 4.59 sigma, expected 0.045 failures. Clopper-Pearson
+    // upper bound for 0 of 10000 at 95% two-sided: 1 - 0.025^(1/10000) = 3.688e-4 (closed form
+    // of the beta quantile at x = 0, Clopper & Pearson 1934).
+    const r = twinfet('run', senseAmp, '--samples', '10000', '--workers', '1');
+    expect(r.code).toBe(0);
+    expect(r.stdout).not.toContain('below double precision');
+    expect(r.stdout).toContain('failure probability at most 3.688e-4');
+    const line = r.stdout.split('\n').find((l) => l.startsWith('instance yield'))!;
+    expect(line).toContain('1 (no failures in 10000 samples)');
+    // The lower end with 3 figures of its failure part (0.999631), not 15 digits.
+    expect(line).toMatch(/\[0\.999631, 1\]/);
+    const chip = r.stdout.split('\n').find((l) => l.startsWith('chip yield'))!;
+    expect(chip).toContain('1 (no failures in 10000 samples)');
+    expect(chip).not.toMatch(/\d{9}/);
+  });
+
+  it('tail with a spec inside the bulk answers by plain Monte Carlo and says so, never a degenerate interval', () => {
+    const r = twinfet('tail', senseAmp, '--spec', '1uV', '--workers', '1');
+    expect(r.code).toBe(0);
+    expect(r.stdout).toContain('plain Monte Carlo with a Clopper-Pearson interval');
+    expect(r.stdout).toContain('twinfet run');
+    expect(r.stdout).not.toMatch(/\[1, 1\]|\[0, 0\]|0\.00%|would need 0 samples/);
+    // Near 1 the figures print as 1 - q, so they keep their digits: "1 - 7.980e-4 ... [1 - ..., 1 - ...]".
+    const line = r.stdout.split('\n').find((l) => l.startsWith('failure probability'))!;
+    const qs = [...line.matchAll(/1 - ([\d.e+-]+)/g)].map((m) => Number(m[1]));
+    expect(qs).toHaveLength(3);
+    expect(qs[1]).toBeGreaterThan(qs[0]!);
+    expect(qs[2]).toBeLessThan(qs[0]!);
+    // 1 uV is 9.2e-4 of sigma (1.089 mV): truth 2 Phi(-9.2e-4) = 0.99927 (A&S 26.2); the
+    // Clopper-Pearson interval of the same run covers it.
+    const j = JSON.parse(twinfet('tail', senseAmp, '--spec', '1uV', '--workers', '1', '--json').stdout);
+    expect(j.method).toBe('monte-carlo');
+    expect(j.interval[0]).toBeLessThanOrEqual(0.99927);
+    expect(j.interval[1]).toBeGreaterThanOrEqual(0.99927);
+    expect(j.interval[0]).toBeLessThan(j.interval[1]);
+    // The printed figures are those of the JSON report, rounded.
+    expect(Math.abs(qs[0]! - (1 - j.failureProbability))).toBeLessThan(1e-3 * (1 - j.failureProbability));
+  });
+
+  it('small things: --workers names itself, tail shows the temperature, run --plot says what it wrote, inspect says dbeta/beta', () => {
+    const w = twinfet('run', demo, '--workers', '2.5');
+    expect(w.code).toBe(2);
+    expect(w.stderr.trim()).toBe('twinfet: --workers: expected a whole number such as 2 or 4 (threads), got "2.5"');
+    const t = twinfet('tail', demo, '--workers', '1');
+    expect(t.stdout.split('\n')[0]).toContain('27.0 C');
+    const file = join(out, 'said.svg');
+    const p = twinfet('run', demo, '--samples', '5000', '--workers', '1', '--plot', file);
+    expect(p.stdout.trimEnd().split('\n').at(-1)).toBe(`wrote ${file}`);
+    const i = twinfet('inspect', demo);
+    expect(i.stdout).toContain('sigma dbeta/beta');
+    expect(i.stdout).not.toContain('dB/B');
   });
 
   it('a bad value exits 2 with one line naming the field, nothing on stdout', () => {

@@ -206,8 +206,10 @@ describe('through the command line', () => {
   // underflowing it samples to the 1e7 maximum, ~6 s, so only `tail --samples` is run here.)
   it.each([['tail', ['--samples', '2000']]] as const)('%s on a 1e5 um^2 mirror pair 492 sigma from its spec: exit 0 and an all-finite JSON report', async (cmd, extra) => {
     const r = await runCli([cmd, 'test/fixtures/huge-pair.yaml', '--json', '--workers', '1', ...extra]);
-    // Exit 0 and no "internal error: ... is Infinity" (output.ts refuses to print a non-finite number).
-    expect(r.stderr).toBe('');
+    // Exit 0 and no "internal error: ... is Infinity" (output.ts refuses to print a non-finite number);
+    // stderr holds at most warnings (a spec 492 sigma out is beyond the 50-sigma unit-slip rule).
+    expect(r.stderr).toMatch(/^(twinfet: warning: [^\n]*\n)*$/);
+    expect(r.stderr).not.toContain('internal error');
     expect(r.code).toBe(0);
     const report = JSON.parse(r.stdout) as Record<string, unknown>;
     expect(nonFinitePaths(report)).toEqual([]);

@@ -149,8 +149,9 @@ describe('cancellation through the API', () => {
     expect(probe.atAbort()).toBeGreaterThanOrEqual(2 * 65_536);
     expect(probe.last() - probe.atAbort()).toBeLessThanOrEqual(2 * PER_WORKER);
     await allWorkersExited();
-    // Two threads, and piscina replaces each thread whose task was aborted: 2 to 4 started.
-    expect(started.length).toBeGreaterThanOrEqual(2);
+    // At most two threads, and piscina replaces each thread whose task was aborted: at most 4
+    // started. None may have started at all: the first chunks run in this thread until the pool's
+    // threads are ready, so a run aborted early can finish before any thread starts.
     expect(started.length).toBeLessThanOrEqual(4);
     expect(workerResources()).toEqual([]);
   });
@@ -259,10 +260,11 @@ describe('SIGINT during a long CLI run', () => {
       const se = 1 / Math.sqrt(2 * (report.evaluated - 1));
       expect(Math.abs(report.offset.sigma / 3.85049e-3 - 1)).toBeLessThan(4 * se + 0.01);
     }
-    // Whole chunks only, at least one, and no more than the pool finished (exact integer checks).
+    // Whole chunks only, at least one (exact integer checks). The probe sees the pool's chunks
+    // only: the first chunks run in the calling thread while the pool's threads start, so the
+    // report may hold more chunks than the probe counted.
     expect(evaluated % 65_536).toBe(0);
     expect(evaluated).toBeGreaterThan(0);
-    expect(evaluated / 65_536).toBeLessThanOrEqual(atExit);
   });
 
   it('tail: SIGINT during a long high-sigma run ends with exit code 130 and a one-line note, not an internal error', async () => {

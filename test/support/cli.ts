@@ -1,6 +1,7 @@
 /**
  * Spawning the real command line from the repository root, for the cross-package tests.
- * The CLI runs from its build (packages/cli/bin/twinfet.js -> dist): run `npx tsc -b` first.
+ * The CLI runs from its bundle (packages/cli/bin/twinfet.js -> bundle, made from dist by the
+ * vitest global set-up, test/support/bundle.ts): run `npx tsc -b` first.
  */
 import { spawn } from 'node:child_process';
 import { fileURLToPath } from 'node:url';

@@ -28,7 +28,7 @@ export function withCommonOptions(c: Command): Command {
  */
 export function readCommon(flags: CommonFlags): { seed?: string; workers: number; confidence: number } {
   const out: { seed?: string; workers: number; confidence: number } = {
-    workers: flags.workers === undefined ? defaultWorkers() : parseCount(flags.workers, '--workers', ...RUN_LIMITS.workers),
+    workers: flags.workers === undefined ? defaultWorkers() : parseCount(flags.workers, '--workers', ...RUN_LIMITS.workers, '2 or 4 (threads)'),
     confidence: flags.confidence === undefined ? 0.95 : parseFraction(flags.confidence, '--confidence', '0.95'),
   };
   if (flags.seed !== undefined) out.seed = parseSeed(flags.seed);

@@ -125,10 +125,12 @@ export function sci(x: number, digits: number): string {
 
 /**
  * Human label of a budget group (`input pair dV_T`, `load pair dR/R`; `output device dV_T` for a
- * block of one element).
+ * block of one element); `whose` replaces `<role> pair` where the budget is of one representative
+ * element (`each cell dV_T` for a selector).
  */
-export function shareLabel(role: string, parameter: string, def?: StageDefinition): string {
+export function shareLabel(role: string, parameter: string, def?: StageDefinition, whose?: string): string {
   const label = parameter === 'vt' ? 'dV_T' : parameter === 'r' ? 'dR/R' : 'dbeta/beta';
+  if (whose !== undefined) return `${whose} ${label}`;
   const single = def?.blocks.find((b) => b.key === role)?.elements.length === 1;
   return `${role} ${single ? 'device' : 'pair'} ${label}`;
 }

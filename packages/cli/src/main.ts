@@ -1,4 +1,3 @@
-import { readFileSync } from 'node:fs';
 import { Command, CommanderError } from 'commander';
 import { InputError, isInputError } from '@twinfet/core';
 import { loadDesign } from './designFile.js';
@@ -9,8 +8,9 @@ import { parseDrift, registerRun } from './commands/run.js';
 import { registerTail } from './commands/tail.js';
 import { registerSize } from './commands/size.js';
 import { registerSweep } from './commands/sweep.js';
+import { VERSION } from './version.js';
+import { registerReport } from './commands/report.js';
 
-const version = (JSON.parse(readFileSync(new URL('../package.json', import.meta.url), 'utf8')) as { version: string }).version;
 
 /** Exit codes: 0 done, 1 internal error, 2 bad input, 130 interrupted. */
 export const EXIT = { ok: 0, internal: 1, input: 2, interrupted: 130 } as const;
@@ -27,7 +27,7 @@ function output(io: Io) {
 export function buildProgram(io: Io, setExit: (code: number) => void): Command {
   const program = new Command('twinfet')
     .description('Mismatch-limited offset and yield of MOS differential pairs (design aid; not a substitute for foundry matching data or sign-off)')
-    .version(version, '-V, --version', 'print the version')
+    .version(VERSION, '-V, --version', 'print the version')
     .showHelpAfterError(false)
     .configureOutput(output(io))
     .exitOverride();
@@ -53,6 +53,7 @@ export function buildProgram(io: Io, setExit: (code: number) => void): Command {
   registerTail(program, io, setExit);
   registerSize(program, io, setExit);
   registerSweep(program, io, setExit);
+  registerReport(program, io, setExit);
   for (const c of program.commands) c.exitOverride().configureOutput(output(io)).allowExcessArguments(true);
   // Name a stray argument ourselves: it is nearly always a unit split off its value (--spec 5 mV).
   program.hook('preAction', (_root, action) => {

@@ -3,13 +3,14 @@ import { seedText } from '@twinfet/montecarlo';
 
 /**
  * A whole number from the command line: accepts `100000`, `1e6`, `1_000_000`.
+ * @param examples what the message suggests, e.g. "2 or 4" for a thread count
  * @throws InputError naming the option.
  */
-export function parseCount(text: string, option: string, min: number, max: number): number {
+export function parseCount(text: string, option: string, min: number, max: number, examples = '100000, 1e6 or 1_000_000'): number {
   const t = text.trim().replace(/_/g, '');
   const x = /^[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?$/.test(t) ? Number(t) : Number.NaN;
   if (!Number.isFinite(x) || !Number.isInteger(x)) {
-    throw new InputError(option, `expected a whole number such as 100000, 1e6 or 1_000_000, got "${text}"`);
+    throw new InputError(option, `expected a whole number such as ${examples}, got "${text}"`);
   }
   if (x < min || x > max) {
     throw new InputError(option, `expected a whole number from ${fmt(min)} to ${fmt(max)}, got "${text}"`);

@@ -1,9 +1,17 @@
-import * as vega from 'vega';
-import { compile } from 'vega-lite';
-import type { TopLevelSpec } from 'vega-lite';
+/**
+ * The `--plot` figures and the report's distribution figure: an offset histogram with its
+ * Gaussian fit and spec lines, and a sweep's sigma and failure probability against the swept
+ * field. Both are built as chart models (../chart) and rendered to self-contained SVG.
+ */
+import { chartSvg, type Chart, type Layer, type Panel } from './chart/chart.js';
+import { linearAxis, logAxis } from './chart/axis.js';
+import { COLOR, DASH, OUTLINE } from './chart/style.js';
 
 /** Most bars a histogram draws; finer input is merged into groups of adjacent bins. */
 export const MAX_DISPLAY_BINS = 200;
+
+/** Points on the drawn Gaussian curve: smooth at the plot's width, still cheap. */
+const CURVE_POINTS = 401;
 
 /**
  * The figure a plot shows and its display unit: `scale` takes the figure's SI value to `unit`.
@@ -11,61 +19,61 @@ export const MAX_DISPLAY_BINS = 200;
  */
 export interface PlotFigure {
   /** Words for the axis ("offset", "current error"). */
-  label: string;
+  readonly label: string;
   /** Its symbol ("Vos", "e"). */
-  symbol: string;
-  /** Display unit ("mV", "%"). */
-  unit: string;
+  readonly symbol: string;
+  /** Display unit ("mV", "%"; "" for none). */
+  readonly unit: string;
   /** Factor from the SI value to the display unit (1e3 for V to mV, 100 for a fraction in %). */
-  scale: number;
+  readonly scale: number;
 }
 
 /** The offset in millivolts: what a plot shows when no figure is given. */
 export const OFFSET_PLOT_FIGURE: PlotFigure = { label: 'offset', symbol: 'Vos', unit: 'mV', scale: 1e3 };
 
-/** Points on the drawn Gaussian curve: smooth at the plot's width, still cheap. */
-const CURVE_POINTS = 401;
+/** An axis label for the figure: "offset Vos (mV)", or with words after the name ("offset sigma (mV)"). */
+export function figureAxisLabel(f: PlotFigure, after?: string): string {
+  const name = after === undefined ? `${f.label} ${f.symbol}` : `${f.label} ${after}`;
+  return f.unit === '' ? name : `${name} (${f.unit})`;
+}
 
-// Series colors: one per meaning, the same in every plot.
-const BLUE = '#3b6fb6';
-const RED = '#d1495b';
-const GREEN = '#2a9d5c';
-const ORANGE = '#e08a1e';
-const GREY = '#555555';
-
-/** Histogram of a sampled figure (input-referred offsets by default), all values in its SI unit (volts for an offset). */
+/** Histogram of a sampled figure, all values in SI units (volts for the offset). */
 export interface HistogramInput {
-  /** Plot title. */
-  title: string;
-  /** Bin edges in the figure's SI unit, increasing, length `counts.length + 1`. */
+  /** Title drawn in the SVG (a page that captions the figure itself leaves it out). */
+  title?: string;
+  /** Bin edges, increasing, length `counts.length + 1`. */
   binEdges: readonly number[];
   /** Samples in each bin. */
   counts: readonly number[];
   /** Total Monte Carlo samples (including any that fell outside the bins). */
   samples: number;
-  /** Sample mean of the figure. */
+  /** Sample mean. */
   mean: number;
-  /** Sample standard deviation of the figure (> 0). */
+  /** Sample standard deviation (> 0). */
   sigma: number;
-  /** Specification of the figure (> 0): rules are drawn at -spec and +spec. */
-  spec: number;
-  /** Extra line under the title (the sample statistics line is always shown). */
-  subtitle?: string;
+  /** Specification limit (> 0): rules at -spec and +spec, or at +spec only when `specSides` is 'one'; none when absent. */
+  spec?: number;
+  /** Which limits the spec sets: 'two' (the default) |figure| <= spec, 'one' figure <= spec. */
+  specSides?: 'two' | 'one';
   /** What the values are (default: the offset in mV). */
   figure?: PlotFigure;
+  /** Extra line under the title (the sample statistics line is always shown). */
+  subtitle?: string;
+  /** Id of the SVG (unique within a page; default "histogram"). */
+  id?: string;
 }
 
-/** One point of a parameter sweep; sigmas in the figure's SI unit (volts for an offset), yields and probabilities as fractions. */
+/** One point of a parameter sweep; sigmas in volts, yields and probabilities as fractions. */
 export interface SweepPoint {
   /** Swept value in the field's base unit (for example metres). */
   x: number;
-  /** Sigma from the linearised mismatch model. */
+  /** Offset sigma from the linearised mismatch model, volts. */
   analyticSigma: number;
-  /** Monte Carlo sigma. */
+  /** Monte Carlo offset sigma, volts. */
   mcSigma?: number;
-  /** Lower end of the Monte Carlo sigma's confidence interval. */
+  /** Lower end of the Monte Carlo sigma's confidence interval, volts. */
   mcSigmaLo?: number;
-  /** Upper end of the Monte Carlo sigma's confidence interval. */
+  /** Upper end of the Monte Carlo sigma's confidence interval, volts. */
   mcSigmaHi?: number;
   /** Monte Carlo yield, the fraction of samples within spec. */
   yield?: number;
@@ -95,7 +103,7 @@ export interface SweepInput {
   log: boolean;
   /** The swept points. */
   points: readonly SweepPoint[];
-  /** Sigma target in the figure's SI unit: drawn as a horizontal rule. */
+  /** Offset sigma target in volts: drawn as a labelled horizontal line. */
   sigmaTarget?: number;
   /** Yield target as a fraction: 1 - yieldTarget is drawn as the failure target. */
   yieldTarget?: number;
@@ -103,7 +111,7 @@ export interface SweepInput {
   figure?: PlotFigure;
 }
 
-/** A histogram's bins after merging, edges in the figure's SI unit. */
+/** A histogram's bins after merging. */
 export interface Bins {
   /** Bin edges, length `counts.length + 1`. */
   edges: number[];
@@ -161,24 +169,25 @@ function validateHistogram(input: HistogramInput): void {
   requirePositive('histogram samples', input.samples);
   requireFinite('histogram mean', input.mean);
   requirePositive('histogram sigma', input.sigma);
-  requirePositive('histogram spec', input.spec);
+  if (input.spec !== undefined) requirePositive('histogram spec', input.spec);
 }
 
-/** A value in the figure's display unit with three significant digits, for titles. */
-function shown(fig: PlotFigure, x: number): string {
-  return `${Number((x * fig.scale).toPrecision(3))} ${fig.unit}`;
+/** A number in display units with 4 significant digits and a true minus sign. */
+export function shown(v: number, unit: string): string {
+  const t = String(Number(v.toPrecision(4))).replace('-', '\u2212');
+  return unit === '' ? t : `${t} ${unit}`;
 }
 
 /**
- * The vega-lite spec of an offset histogram: bars (rebinned to at most {@link MAX_DISPLAY_BINS}),
- * the Gaussian N(mean, sigma) scaled to samples * bin width, and rules at -spec and +spec.
- * The x axis is in the figure's display unit (millivolts for an offset). Throws RangeError naming the bad field.
+ * The chart of a histogram: bars (rebinned to at most {@link MAX_DISPLAY_BINS}), the Gaussian
+ * N(mean, sigma) scaled to samples * bin width, and the spec lines labelled with their values.
+ * The x axis spans the bins and the spec lines with a small margin. Throws RangeError naming the
+ * bad field.
  */
-export function histogramSpec(input: HistogramInput): TopLevelSpec {
+export function histogramChart(input: HistogramInput): Chart {
   validateHistogram(input);
-  const fig = input.figure ?? OFFSET_PLOT_FIGURE;
-  const toDisplay = fig.scale;
-  const mv = (x: number): string => shown(fig, x);
+  const q = input.figure ?? OFFSET_PLOT_FIGURE;
+  const k = q.scale;
   const bins = rebin(input.binEdges, input.counts, MAX_DISPLAY_BINS);
   const nBins = bins.counts.length;
   const first = bins.edges[0]!;
@@ -186,78 +195,58 @@ export function histogramSpec(input: HistogramInput): TopLevelSpec {
   // Expected count per bin is samples * width * pdf; with unequal widths (a short last group
   // after rebinning) the mean width is the one the curve is drawn for.
   const binWidth = (last - first) / nBins;
-
-  const bars = bins.counts.map((count, i) => ({
-    lo: bins.edges[i]! * toDisplay,
-    hi: bins.edges[i + 1]! * toDisplay,
-    count,
-    series: 'histogram',
-  }));
-
-  const xLo = Math.min(first, -input.spec);
-  const xHi = Math.max(last, input.spec);
+  const upperOnly = input.specSides === 'one';
+  const spec = input.spec;
+  const limits = spec === undefined ? [] : upperOnly ? [spec] : [-spec, spec];
+  const xLo = Math.min(first, ...limits);
+  const xHi = Math.max(last, ...limits);
   const scale = (input.samples * binWidth) / (input.sigma * Math.sqrt(2 * Math.PI));
-  const curve: { x: number; y: number; series: string }[] = [];
+  const curve: [number, number][] = [];
   for (let i = 0; i < CURVE_POINTS; i++) {
     const v = xLo + ((xHi - xLo) * i) / (CURVE_POINTS - 1);
     const z = (v - input.mean) / input.sigma;
-    curve.push({ x: v * toDisplay, y: scale * Math.exp(-0.5 * z * z), series: 'Gaussian fit' });
+    curve.push([v * k, scale * Math.exp(-0.5 * z * z)]);
   }
-
-  const limits = [
-    { x: -input.spec * toDisplay, label: '-spec', series: 'spec' },
-    { x: input.spec * toDisplay, label: '+spec', series: 'spec' },
+  const peak = Math.max(...bins.counts, scale);
+  const u = q.unit;
+  const specText = spec === undefined ? '' : `, spec ${upperOnly ? '' : '\u00b1'}${shown(spec * k, u)}`;
+  const stats = `${input.samples} samples, mean ${shown(input.mean * k, u)}, sigma ${shown(input.sigma * k, u)}${specText}`;
+  const layers: Layer[] = [
+    {
+      kind: 'bars',
+      name: 'histogram',
+      legend: `samples per bin (bin ${shown(binWidth * k, u)})`,
+      bars: bins.counts.map((y, i) => ({ x0: bins.edges[i]! * k, x1: bins.edges[i + 1]! * k, y })),
+      fill: COLOR.fill,
+      stroke: COLOR.fillEdge,
+    },
+    { kind: 'line', name: 'gaussian', legend: 'Gaussian fit (sample mean and sigma)', points: curve, stroke: COLOR.fit, width: 2 },
+    ...limits.map(
+      (v): Layer => ({
+        kind: 'rule',
+        name: v < 0 ? 'spec-low' : 'spec-high',
+        ...(v > 0 ? { legend: specText.slice(2) } : {}),
+        axis: 'x',
+        value: v * k,
+        label: `${v < 0 ? '\u2212spec' : '+spec'} ${shown(v * k, u)}`,
+        stroke: COLOR.limit,
+        dash: DASH.spec,
+        side: v < 0 ? 'end' : 'start',
+      }),
+    ),
   ];
-
-  const stats = `${input.samples} samples, mean ${mv(input.mean)}, sigma ${mv(input.sigma)}, spec ±${mv(input.spec)}`;
   const subtitle = input.subtitle === undefined ? [stats] : [input.subtitle, stats];
-
-  const color = {
-    field: 'series',
-    type: 'nominal',
-    scale: { domain: ['histogram', 'Gaussian fit', 'spec'], range: [BLUE, RED, GREEN] },
-    legend: { title: null },
-  } as const;
-  const xAxis = { title: `${fig.label} ${fig.symbol} (${fig.unit})` };
-
   return {
-    $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    title: { text: input.title, subtitle },
-    width: 640,
-    height: 340,
-    layer: [
+    id: input.id ?? 'histogram',
+    ...(input.title === undefined ? {} : { title: input.title }),
+    subtitle,
+    description: `Histogram of ${input.samples} sampled values of the ${q.label} ${q.symbol} with the fitted Gaussian${spec === undefined ? '' : ' and the spec lines'}. ${stats}.`,
+    panels: [
       {
-        name: 'bars',
-        data: { values: bars },
-        mark: { type: 'rect', opacity: 0.85 },
-        encoding: {
-          x: { field: 'lo', type: 'quantitative', scale: { zero: false, nice: false }, axis: xAxis },
-          x2: { field: 'hi' },
-          y: { field: 'count', type: 'quantitative', axis: { title: 'samples per bin' } },
-          color,
-        },
-      },
-      {
-        name: 'gaussian',
-        data: { values: curve },
-        mark: { type: 'line', strokeWidth: 2 },
-        encoding: {
-          x: { field: 'x', type: 'quantitative' },
-          y: { field: 'y', type: 'quantitative' },
-          color,
-        },
-      },
-      {
-        name: 'specRules',
-        data: { values: limits },
-        mark: { type: 'rule', strokeWidth: 2, strokeDash: [6, 4] },
-        encoding: { x: { field: 'x', type: 'quantitative' }, color },
-      },
-      {
-        name: 'specLabels',
-        data: { values: limits },
-        mark: { type: 'text', align: 'left', baseline: 'top', dx: 4, dy: 4, fontSize: 12, color: GREEN },
-        encoding: { x: { field: 'x', type: 'quantitative' }, y: { value: 0 }, text: { field: 'label' } },
+        x: linearAxis(figureAxisLabel(q), [xLo * k, xHi * k]),
+        y: linearAxis('samples per bin', [0, peak * 1.04], { zero: true, pad: 0.02 }),
+        layers,
+        height: 280,
       },
     ],
   };
@@ -291,231 +280,214 @@ function plural(n: number, one: string, many: string): string {
   return `${n} ${n === 1 ? one : many}`;
 }
 
-/** Whole decades enclosing the positive values (at least one decade, at most up to 1). */
-function decadeDomain(values: readonly number[]): [number, number] {
-  // With nothing to plot, an empty panel spanning a typical yield range keeps the axis valid.
-  if (values.length === 0) return [1e-6, 1];
-  let lo = Math.floor(Math.log10(Math.min(...values)));
-  let hi = Math.min(0, Math.ceil(Math.log10(Math.max(...values))));
-  if (hi <= lo) {
-    if (hi === 0) lo = hi - 1;
-    else hi = lo + 1;
-  }
-  return [10 ** lo, 10 ** hi];
+/** A probability for a label: 3 significant digits, scientific below 1e-3. */
+export function probabilityText(p: number): string {
+  return p >= 1e-3 ? String(Number(p.toPrecision(3))) : p.toExponential(2).replace('e-', 'e\u2212');
 }
 
 /** Series names of the failure panel. */
-const MC_FAILURE = 'Monte Carlo 1 - yield';
-const TAIL_FAILURE = 'importance-sampling tail';
-const FAILURE_TARGET = 'target failure';
+export const MC_FAILURE = 'Monte Carlo 1 \u2212 yield';
+export const TAIL_FAILURE = 'importance sampling';
 
 /**
- * The vega-lite spec of a sweep: the figure's sigma (offset in mV by default) on top, failure probability on a log axis
- * below, against the swept field (`x * xScale`, in `fieldUnit`). Values that are zero cannot sit
- * on the log axis; they are left out and counted in the subtitle. Interval ends at zero are
- * drawn to the bottom of the axis. Throws RangeError naming the bad field.
+ * The chart of a sweep: offset sigma (mV) on top, failure probability on a log axis below,
+ * against the swept field (`x * xScale`, in `fieldUnit`). Zero failure estimates cannot sit on
+ * the log axis: they are left out, counted in the subtitle, and break the line. An interval
+ * whose lower end is zero runs to the bottom of the axis and ends in an arrow. Throws RangeError
+ * naming the bad field.
  */
-export function sweepSpec(input: SweepInput): TopLevelSpec {
+export function sweepChart(input: SweepInput): Chart {
   validateSweep(input);
   const xTitle = input.fieldUnit === '' ? input.field : `${input.field} (${input.fieldUnit})`;
-  const xOf = (p: SweepPoint): number => p.x * input.xScale;
+  const xs = input.points.map((p) => p.x * input.xScale);
+  const xAxis = input.log ? logAxis(xTitle, xs) : linearAxis(xTitle, xs);
   const fig = input.figure ?? OFFSET_PLOT_FIGURE;
-  const toDisplay = fig.scale;
+  const mv = fig.scale;
 
-  // Top panel: sigma in the figure's display unit (mV for an offset).
-  const analytic = input.points.map((p) => ({ x: xOf(p), sigma: p.analyticSigma * toDisplay, series: 'analytic' }));
-  const mcPoints = input.points.flatMap((p) => (p.mcSigma === undefined ? [] : [{ x: xOf(p), sigma: p.mcSigma * toDisplay, series: 'Monte Carlo' }]));
-  const mcBars = input.points.flatMap((p) =>
-    p.mcSigmaLo === undefined || p.mcSigmaHi === undefined
-      ? []
-      : [{ x: xOf(p), lo: p.mcSigmaLo * toDisplay, hi: p.mcSigmaHi * toDisplay, series: 'Monte Carlo' }],
-  );
-  const sigmaSeries = ['analytic', ...(mcPoints.length > 0 || mcBars.length > 0 ? ['Monte Carlo'] : [])];
-  const sigmaColors = [BLUE, ...(sigmaSeries.length > 1 ? [RED] : [])];
+  // Top panel: sigma in the figure's display unit (millivolts for an offset).
+  const sigmaLayers: Layer[] = [
+    { kind: 'line', name: 'analytic', legend: 'linearised', points: input.points.map((p, i) => [xs[i]!, p.analyticSigma * mv] as const), stroke: COLOR.main, width: 2 },
+  ];
+  const bars = input.points.flatMap((p, i) => (p.mcSigmaLo === undefined || p.mcSigmaHi === undefined ? [] : [{ at: xs[i]!, lo: p.mcSigmaLo * mv, hi: p.mcSigmaHi * mv }]));
+  const mcPoints = input.points.flatMap((p, i) => (p.mcSigma === undefined ? [] : [{ x: xs[i]!, y: p.mcSigma * mv }]));
+  if (bars.length > 0) sigmaLayers.push({ kind: 'intervals', name: 'mc-sigma-interval', legend: 'Monte Carlo interval', along: 'y', items: bars, stroke: COLOR.fit });
+  if (mcPoints.length > 0) sigmaLayers.push({ kind: 'points', name: 'mc-sigma', legend: 'Monte Carlo', points: mcPoints, marker: 'square', fill: COLOR.second, stroke: OUTLINE });
+  const sigmaValues = [...input.points.map((p) => p.analyticSigma * mv), ...mcPoints.map((p) => p.y), ...bars.flatMap((b) => [b.lo, b.hi])];
   if (input.sigmaTarget !== undefined) {
-    sigmaSeries.push('target sigma');
-    sigmaColors.push(GREY);
+    const t = input.sigmaTarget * mv;
+    sigmaLayers.push({ kind: 'rule', name: 'target-sigma', legend: 'target sigma', axis: 'y', value: t, label: `target sigma ${shown(t, fig.unit)}`, stroke: COLOR.limit, dash: DASH.target });
+    sigmaValues.push(t);
   }
+  const sigmaPanel: Panel = { x: xAxis, y: linearAxis(figureAxisLabel(fig, 'sigma'), sigmaValues, { pad: 0.08 }), layers: sigmaLayers, height: 220 };
 
   // Bottom panel: failure probabilities, positive values only (log axis).
   let mcZero = 0;
   let tailZero = 0;
-  // A line must not bridge a left-out point: each run of plotted points gets its own segment.
-  const failPoints: { x: number; p: number; series: string; segment: string }[] = [];
-  let mcRun = 0;
-  let tailRun = 0;
-  const failIntervals: { x: number; lo: number | null; hi: number; series: string }[] = [];
-  for (const pt of input.points) {
-    const x = xOf(pt);
+  const mcLine: [number, number][] = [];
+  const tailLine: [number, number][] = [];
+  const mcPts: { x: number; y: number }[] = [];
+  const tailPts: { x: number; y: number }[] = [];
+  const mcBars: { at: number; lo: number; hi: number }[] = [];
+  const tailBars: { at: number; lo: number; hi: number }[] = [];
+  input.points.forEach((pt, i) => {
+    const x = xs[i]!;
     if (pt.yield !== undefined) {
       const p = 1 - pt.yield;
       if (p > 0) {
-        failPoints.push({ x, p, series: MC_FAILURE, segment: `mc${mcRun}` });
-        if (pt.yieldLo !== undefined && pt.yieldHi !== undefined) {
-          const lo = 1 - pt.yieldHi;
-          failIntervals.push({ x, lo: lo > 0 ? lo : null, hi: 1 - pt.yieldLo, series: MC_FAILURE });
-        }
+        mcLine.push([x, p]);
+        mcPts.push({ x, y: p });
+        if (pt.yieldLo !== undefined && pt.yieldHi !== undefined) mcBars.push({ at: x, lo: 1 - pt.yieldHi, hi: 1 - pt.yieldLo });
       } else {
         mcZero++;
-        mcRun++;
+        mcLine.push([x, Number.NaN]);
       }
     }
     if (pt.tailFailure !== undefined) {
       if (pt.tailFailure > 0) {
-        failPoints.push({ x, p: pt.tailFailure, series: TAIL_FAILURE, segment: `tail${tailRun}` });
-        if (pt.tailLo !== undefined && pt.tailHi !== undefined && pt.tailHi > 0) {
-          failIntervals.push({ x, lo: pt.tailLo > 0 ? pt.tailLo : null, hi: pt.tailHi, series: TAIL_FAILURE });
-        }
+        tailLine.push([x, pt.tailFailure]);
+        tailPts.push({ x, y: pt.tailFailure });
+        if (pt.tailLo !== undefined && pt.tailHi !== undefined && pt.tailHi > 0) tailBars.push({ at: x, lo: pt.tailLo, hi: pt.tailHi });
       } else {
         tailZero++;
-        tailRun++;
+        tailLine.push([x, Number.NaN]);
       }
     }
-  }
+  });
   const targetFailure = input.yieldTarget === undefined ? undefined : 1 - input.yieldTarget;
-  const [yLo, yHi] = decadeDomain([
-    ...failPoints.map((d) => d.p),
-    ...failIntervals.flatMap((d) => (d.lo === null ? [d.hi] : [d.lo, d.hi])),
-    ...(targetFailure === undefined ? [] : [targetFailure]),
-  ]);
-  // An interval reaching zero runs to the bottom of the axis; clip keeps nothing below it.
-  const intervals = failIntervals.map((d) => ({ ...d, lo: d.lo ?? yLo, hi: Math.min(d.hi, yHi) }));
-
-  const failSeries: string[] = [];
-  const failColors: string[] = [];
-  if (input.points.some((p) => p.yield !== undefined)) {
-    failSeries.push(MC_FAILURE);
-    failColors.push(RED);
+  const failValues = [...mcPts.map((p) => p.y), ...tailPts.map((p) => p.y), ...[...mcBars, ...tailBars].flatMap((b) => [b.lo, b.hi]), ...(targetFailure === undefined ? [] : [targetFailure])].filter((v) => v > 0);
+  const failLayers: Layer[] = [];
+  if (mcBars.length > 0) failLayers.push({ kind: 'intervals', name: 'mc-failure-interval', along: 'y', items: mcBars, stroke: COLOR.main });
+  if (mcPts.length > 0) {
+    failLayers.push({ kind: 'line', name: 'mc-failure-line', points: mcLine, stroke: COLOR.main, width: 1.2 });
+    failLayers.push({ kind: 'points', name: 'mc-failure', legend: MC_FAILURE, points: mcPts, marker: 'circle', fill: COLOR.main, stroke: COLOR.main });
   }
-  if (input.points.some((p) => p.tailFailure !== undefined)) {
-    failSeries.push(TAIL_FAILURE);
-    failColors.push(ORANGE);
+  if (tailBars.length > 0) failLayers.push({ kind: 'intervals', name: 'tail-failure-interval', along: 'y', items: tailBars, stroke: COLOR.fit });
+  if (tailPts.length > 0) {
+    failLayers.push({ kind: 'line', name: 'tail-failure-line', points: tailLine, stroke: COLOR.fit, width: 1.2, dash: '4 2' });
+    failLayers.push({ kind: 'points', name: 'tail-failure', legend: TAIL_FAILURE, points: tailPts, marker: 'triangle', fill: COLOR.second, stroke: OUTLINE });
   }
   if (targetFailure !== undefined) {
-    failSeries.push(FAILURE_TARGET);
-    failColors.push(GREY);
+    failLayers.push({ kind: 'rule', name: 'target-failure', legend: 'target failure', axis: 'y', value: targetFailure, label: `target failure ${probabilityText(targetFailure)}`, stroke: COLOR.limit, dash: DASH.target });
   }
-
   const notes: string[] = [];
   if (mcZero > 0) notes.push(`${plural(mcZero, 'point', 'points')} with zero observed failures not shown`);
   if (tailZero > 0) notes.push(`${plural(tailZero, 'tail estimate', 'tail estimates')} of zero not shown`);
-
-  const xEnc = {
-    field: 'x',
-    type: 'quantitative',
-    title: xTitle,
-    scale: input.log ? ({ type: 'log' } as const) : { zero: false },
-  } as const;
-  const sigmaColor = {
-    field: 'series',
-    type: 'nominal',
-    scale: { domain: sigmaSeries, range: sigmaColors },
-    legend: { title: null, labelLimit: 260 },
-  } as const;
-  const failColor = {
-    field: 'series',
-    type: 'nominal',
-    scale: { domain: failSeries, range: failColors },
-    legend: { title: null, labelLimit: 260 },
-  } as const;
-  const ySigma = { type: 'quantitative' as const, axis: { title: `${fig.label} sigma (${fig.unit})` } };
-  const width = 560;
-  const height = 220;
-
-  const sigmaLayers: NonNullable<Extract<TopLevelSpec, { layer: unknown }>['layer']> = [
-    {
-      name: 'analyticLine',
-      data: { values: analytic },
-      mark: { type: 'line', point: true, strokeWidth: 2 },
-      encoding: { x: xEnc, y: { ...ySigma, field: 'sigma' }, color: sigmaColor },
-    },
-  ];
-  if (mcBars.length > 0) {
-    sigmaLayers.push({
-      name: 'mcSigmaBars',
-      data: { values: mcBars },
-      mark: { type: 'errorbar', ticks: true },
-      encoding: { x: xEnc, y: { ...ySigma, field: 'lo' }, y2: { field: 'hi' }, color: sigmaColor },
-    });
-  }
-  if (mcPoints.length > 0) {
-    sigmaLayers.push({
-      name: 'mcSigmaPoints',
-      data: { values: mcPoints },
-      mark: { type: 'point', filled: true, size: 60 },
-      encoding: { x: xEnc, y: { ...ySigma, field: 'sigma' }, color: sigmaColor },
-    });
-  }
-  if (input.sigmaTarget !== undefined) {
-    sigmaLayers.push({
-      name: 'sigmaTarget',
-      data: { values: [{ y: input.sigmaTarget * toDisplay, series: 'target sigma' }] },
-      mark: { type: 'rule', strokeDash: [6, 4], strokeWidth: 1.5 },
-      encoding: { y: { ...ySigma, field: 'y' }, color: sigmaColor },
-    });
-  }
-
-  const yFail = {
-    type: 'quantitative' as const,
-    scale: { type: 'log' as const, domain: [yLo, yHi], clamp: true },
-    axis: { title: 'failure probability', format: '.0e', grid: true },
-  };
-  const failLayers: NonNullable<Extract<TopLevelSpec, { layer: unknown }>['layer']> = [];
-  if (intervals.length > 0) {
-    failLayers.push({
-      name: 'failureBars',
-      data: { values: intervals },
-      mark: { type: 'errorbar', ticks: true },
-      encoding: { x: xEnc, y: { ...yFail, field: 'lo' }, y2: { field: 'hi' }, color: failColor },
-    });
-  }
-  if (failPoints.length > 0) {
-    failLayers.push({
-      name: 'failurePoints',
-      data: { values: failPoints },
-      mark: { type: 'line', point: { filled: true, size: 50 }, strokeWidth: 1.5 },
-      encoding: { x: xEnc, y: { ...yFail, field: 'p' }, color: failColor, detail: { field: 'segment', type: 'nominal' } },
-    });
-  }
-  // The target rule also anchors the axis when every point was left out.
-  failLayers.push({
-    name: 'failureTarget',
-    data: { values: targetFailure === undefined ? [] : [{ y: targetFailure, series: FAILURE_TARGET }] },
-    mark: { type: 'rule', strokeDash: [6, 4], strokeWidth: 1.5 },
-    encoding: { y: { ...yFail, field: 'y' }, ...(failSeries.length > 0 ? { color: failColor } : {}) },
-  });
+  // With nothing to plot, an empty panel over a typical yield range keeps the axis readable.
+  const yFail = logAxis('failure probability', failValues.length > 0 ? failValues : [1e-6, 1], { max: 1 });
+  const failPanel: Panel = { x: xAxis, y: yFail, layers: failLayers, height: 220, grid: 'xy' };
 
   return {
-    $schema: 'https://vega.github.io/schema/vega-lite/v6.json',
-    title: notes.length > 0 ? { text: input.title, subtitle: notes } : { text: input.title },
-    vconcat: [
-      { width, height, layer: sigmaLayers },
-      { width, height, layer: failLayers },
-    ],
-    // One x scale, so both panels line up even when the lower one leaves points out.
-    resolve: { scale: { x: 'shared', color: 'independent' }, legend: { color: 'independent' } },
+    id: 'sweep',
+    title: input.title,
+    ...(notes.length > 0 ? { subtitle: notes } : {}),
+    description: `Sigma of the ${fig.label} and failure probability against ${input.field} over ${input.points.length} points.`,
+    panels: [sigmaPanel, failPanel],
   };
 }
 
-/** Compiles a vega-lite spec and renders it headless to an SVG string; the view is always freed. */
-async function render(spec: TopLevelSpec): Promise<string> {
-  const view = new vega.View(vega.parse(compile(spec).spec), { renderer: 'none' });
-  try {
-    return await view.toSVG();
-  } finally {
-    view.finalize();
+/** A transfer curve under mismatch: its nominal curve and percentile bands over samples. */
+export interface ResponseInput {
+  /** Plot title. */
+  title: string;
+  /** Extra line under the title. */
+  subtitle?: string;
+  envelope: {
+    /** What the output is ("winner's share of the tail") and what the input is ("lead"). */
+    readonly label: string;
+    readonly input: string;
+    /** Input values in the figure's SI unit (volts for a lead), increasing. */
+    readonly x: readonly number[];
+    /** Output without mismatch at each x, a fraction. */
+    readonly nominal: readonly number[];
+    /** Output quantiles at each x: levels symmetric about 0.5 pair into bands. */
+    readonly bands: readonly { readonly p: number; readonly values: readonly number[] }[];
+    readonly samples: number;
+  };
+  /** The spec on the input (in the figure's SI unit, > 0): drawn as a rule. */
+  spec: number;
+  /** The figure the input is in (default: the offset in mV). */
+  figure?: PlotFigure;
+}
+
+function validateResponse(input: ResponseInput): void {
+  const e = input.envelope;
+  if (e.x.length < 2) throw new RangeError('response x must hold at least two points');
+  e.x.forEach((v, i) => requireFinite(`response x[${i}]`, v));
+  const series = [e.nominal, ...e.bands.map((b) => b.values)];
+  for (const ys of series) {
+    if (ys.length !== e.x.length) throw new RangeError(`response series must have ${e.x.length} values, got ${ys.length}`);
+    ys.forEach((v, i) => {
+      if (!(v >= 0 && v <= 1)) throw new RangeError(`response value ${i} must be a fraction in [0, 1], got ${v}`);
+    });
   }
+  requirePositive('response spec', input.spec);
 }
 
 /**
- * SVG of an offset histogram with its Gaussian fit and the ±spec rules; see {@link histogramSpec}.
- * @example await histogramSvg({ title: 'offset', binEdges, counts, samples: 1e5, mean: 0, sigma: 2e-3, spec: 5e-3 })
+ * A transfer curve under mismatch: the nominal output against the input (in the quantity's
+ * display unit, mV for a lead), the bands between the quantile levels that pair about the median
+ * (1-99%, 10-90%) shaded, the median dashed, and the spec marked with its value. Throws RangeError
+ * naming the bad field.
  */
-export async function histogramSvg(input: HistogramInput): Promise<string> {
-  return render(histogramSpec(input));
+export function responseChart(input: ResponseInput): Chart {
+  validateResponse(input);
+  const e = input.envelope;
+  const q = input.figure ?? OFFSET_PLOT_FIGURE;
+  const xs = e.x.map((v) => v * q.scale);
+  const pct = (v: number): number => 100 * v;
+  const sorted = [...e.bands].sort((a, b) => a.p - b.p);
+  const layers: Layer[] = [];
+  for (let i = 0; i < sorted.length / 2 - 0.5; i++) {
+    const lo = sorted[i]!;
+    const hi = sorted[sorted.length - 1 - i]!;
+    layers.push({
+      kind: 'band',
+      name: `band-${Math.round(lo.p * 100)}-${Math.round(hi.p * 100)}`,
+      legend: `${Math.round(lo.p * 100)}-${Math.round(hi.p * 100)}% of samples`,
+      x: xs,
+      lo: lo.values.map(pct),
+      hi: hi.values.map(pct),
+      fill: i === 0 ? COLOR.bandWide : COLOR.bandNarrow,
+    });
+  }
+  const median = sorted.find((b) => b.p === 0.5);
+  if (median !== undefined) {
+    layers.push({ kind: 'line', name: 'median', legend: 'median', points: xs.map((x, j) => [x, pct(median.values[j]!)] as const), stroke: COLOR.fit, width: 1.5, dash: DASH.target });
+  }
+  layers.push({ kind: 'line', name: 'nominal', legend: 'nominal (no mismatch)', points: xs.map((x, j) => [x, pct(e.nominal[j]!)] as const), stroke: COLOR.main, width: 2 });
+  const spec = input.spec * q.scale;
+  layers.push({ kind: 'rule', name: 'spec', legend: 'spec', axis: 'x', value: spec, label: `spec ${shown(spec, q.unit)}`, stroke: COLOR.limit, dash: DASH.spec });
+  const note = `${e.samples} mismatch samples; shaded: the spread between quantiles at each ${e.input}`;
+  return {
+    id: 'response',
+    title: input.title,
+    subtitle: input.subtitle === undefined ? [note] : [input.subtitle, note],
+    description: `${e.label} against ${e.input}: the nominal curve and the spread over ${e.samples} mismatch samples, with the spec at ${shown(spec, q.unit)}.`,
+    panels: [
+      {
+        x: linearAxis(`${e.input} (${q.unit})`, [...xs, spec]),
+        y: linearAxis(`${e.label} (%)`, [0, 100], { zero: true, pad: 0.02 }),
+        layers,
+        height: 300,
+      },
+    ],
+  };
 }
 
-/** SVG of a sweep's two stacked panels, sigma and failure probability; see {@link sweepSpec}. */
-export async function sweepSvg(input: SweepInput): Promise<string> {
-  return render(sweepSpec(input));
+/** SVG of a transfer curve under mismatch; see {@link responseChart}. */
+export function responseSvg(input: ResponseInput): string {
+  return chartSvg(responseChart(input));
+}
+
+/**
+ * SVG of a histogram with its Gaussian fit and the spec lines; see {@link histogramChart}.
+ * @example histogramSvg({ title: 'offset', binEdges, counts, samples: 1e5, mean: 0, sigma: 2e-3, spec: 5e-3 })
+ */
+export function histogramSvg(input: HistogramInput): string {
+  return chartSvg(histogramChart(input));
+}
+
+/** SVG of a sweep's two stacked panels, sigma and failure probability; see {@link sweepChart}. */
+export function sweepSvg(input: SweepInput): string {
+  return chartSvg(sweepChart(input));
 }

@@ -43,7 +43,7 @@ const SI_UNIT: Readonly<Record<Dimension, string>> = {
 export function sweepFields(def: StageDefinition): SweepField[] {
   const out: SweepField[] = [];
   for (const b of def.blocks) {
-    out.push(field(`${b.key}.w`, 'length', 'm', 'm'), field(`${b.key}.l`, 'length', 'm', 'm'), field(`${b.key}.area`, 'area', 'm^2', 'm^2'));
+    out.push(field(`${b.key}.w`, 'length', 'm', 'm'), field(`${b.key}.l`, 'length', 'm', 'm'), field(`${b.key}.area`, 'area', 'm^2', 'um^2'));
     for (const f of b.fields) out.push(field(`${b.key}.${f.key}`, f.dimension, f.unit, f.unit, f.integer === true));
   }
   for (const f of def.fields) out.push(field(f.key, f.dimension, SI_UNIT[f.dimension], f.dimension === 'temperature' ? 'C' : f.unit, f.integer === true));

@@ -83,7 +83,7 @@ describe('twinfet with operating conditions (built CLI)', () => {
   it('inspect: the linearised sigma and Gaussian yield at each condition and the linearised drift sigma', async () => {
     const r = twinfet('inspect', example, '--json');
     expect(r.code).toBe(0);
-    const j = JSON.parse(r.stdout) as { conditions: { name: string; linearised: { sigma: number; gaussianYield: number } }[]; drift: { linearisedSigma: number } };
+    const j = JSON.parse(r.stdout) as { conditions: { name: string; linearised: { sigma: number; yield: number } }[]; drift: { linearisedSigma: number } };
     const at = compileConditions(await loadDesign(example));
     // The same numbers as the library's (exact: the same computation).
     expect(j.conditions.map((c) => c.linearised.sigma)).toEqual(at.map((c) => linearisedSigma(c.stage)));

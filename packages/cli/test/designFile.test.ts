@@ -4,7 +4,7 @@ import { mkdtemp, rm, writeFile, chmod } from 'node:fs/promises';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { fileURLToPath } from 'node:url';
-import { closestWord, editDistance, InputError, isInputError, parseDesign as parseText, validateDesign } from '@twinfet/core';
+import { closestWord, editDistance, InputError, isInputError, parseDesign as parseText, TOPOLOGIES, validateDesign } from '@twinfet/core';
 import type { Design, DeviceGeometry } from '@twinfet/core';
 import { loadDesign } from '../src/designFile.js';
 
@@ -347,7 +347,8 @@ describe('field problems (each one line, naming the field and the bad value)', (
     ['input.polarity', (d: Data) => (d.input.polarity = 'q'), 'expected n or p', 'got "q"'],
     ['input.polarity', (d: Data) => (d.input.polarity = 'N'), 'expected n or p', 'did you mean "n"?'],
     ['input.polarity', (d: Data) => (d.input.polarity = false), 'expected n or p', 'got false'],
-    ['topology', (d: Data) => (d.topology = 'cascode'), 'expected simple, mirror, resistor, folded or current-mirror', 'got "cascode"'],
+    // The list names every registered stage type, in the registry's order.
+    ['topology', (d: Data) => (d.topology = 'cascode'), `expected ${TOPOLOGIES.slice(0, -1).join(', ')} or ${TOPOLOGIES[TOPOLOGIES.length - 1]!}`, 'simple, mirror', 'got "cascode"'],
     ['topology', (d: Data) => (d.topology = 'miror'), 'did you mean "mirror"?'],
     ['process.p.vt0', (d: Data) => (d.process.p.vt0 = '-0.5 V'), 'magnitudes', '"-0.5 V"'],
     ['process.n.vt0', (d: Data) => (d.process.n.vt0 = '0.45 A'), 'expected a voltage', '"0.45 A"'],

@@ -1,6 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { reportError } from '../src/main.js';
 import { assertFinite, NonFiniteResultError, type Io } from '../src/output.js';
+import { yieldBound, yieldText } from '../src/commands/inspect.js';
 
 describe('the last guard before a report is printed', () => {
   it('passes finite numbers and null (not available), at any depth', () => {
@@ -28,5 +29,18 @@ describe('the last guard before a report is printed', () => {
     expect(out).toEqual([]);
     expect(err).toHaveLength(1);
     expect(err[0]).toMatch(/^twinfet: internal error: report\.yield\.estimate is NaN; nothing was printed/);
+  });
+});
+
+describe('yield text', () => {
+  it('shows small yields with their digits, never as 0.0000 (format rule, no source)', () => {
+    expect(yieldText(8e-8)).toBe('8.000e-8');
+    expect(yieldText(0.0023)).toBe('0.0023');
+    expect(yieldText(0.02301)).toBe('0.02301');
+    expect(yieldText(0.99021)).toBe('0.99021');
+    // A computed yield of exactly 1 (failure below double precision), and an interval end of 1.
+    expect(yieldText(1)).toBe('1 (failure below double precision)');
+    expect(yieldBound(1, 6)).toBe('1');
+    expect(yieldBound(0.999631180085381, 6)).toBe('0.999631');
   });
 });

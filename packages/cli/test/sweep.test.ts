@@ -120,6 +120,72 @@ describe('twinfet sweep (end to end, the built CLI)', () => {
     }
   });
 
+  it('--method importance: every yield of a row comes from its importance-sampling failure (the sense-amp example)', () => {
+    // The sense amplifier at 15 C: linearised sigma 1.089 mV, spec 5 mV = 4.591 sigma, so
+    // p = 2 Phi(-4.591) = 4.41e-6 and the 1024-instance chip yield is (1 - p)^1024 = 0.99549 (by
+    // hand, A&S 26.2). The Monte Carlo count (1 failure in 20000) would give 0.950087.
+    const csv = join(out, 'is-sweep.csv');
+    const r = twinfet('sweep', senseAmp, '--vary', 'temperature', '--from', '-40 C', '--to', '125 C', '--steps', '4', '--method', 'importance', '--csv', csv, '--workers', '1');
+    expect(r.code).toBe(0);
+    const row = r.stdout.split('\n').find((l) => l.startsWith('15 C'))!;
+    const cells = row.trim().split(/\s{2,}/);
+    // Columns: value, analytic sigma, MC sigma, interval, yield (IS), interval, chip yield (IS), ...
+    const chip = Number(cells[6]);
+    const failure = Number(cells[7]);
+    expect(r.stdout).toContain('chip yield (1024, IS)');
+    expect(Math.abs(chip - Math.exp(1024 * Math.log1p(-failure)))).toBeLessThan(1e-5); // printed to 5 decimals
+    // Against the hand value: the importance estimate is +-5% at 95% (stop rule), and the exact
+    // model's p differs from the linearised Gaussian one by under 5%: 1024 p 0.1 = 4.5e-4.
+    expect(Math.abs(chip - 0.99549)).toBeLessThan(4.5e-4);
+    // The CSV says where the yields came from and gives the same figure.
+    const lines = readFileSync(csv, 'utf8').trimEnd().split('\n');
+    const head = lines[0]!.split(',');
+    const at15 = lines[2]!.split(',');
+    expect(at15[head.indexOf('yield_method')]).toBe('importance-sampling');
+    expect(Math.abs(Number(at15[head.indexOf('chip_yield')]) - chip)).toBeLessThan(1e-5);
+  });
+
+  it('CSV: one numeric format per column (exponent form, full precision; counts as whole numbers)', () => {
+    const csv = join(out, 'formats.csv');
+    const r = twinfet('sweep', senseAmp, '--vary', 'input.w', '--from', '1um', '--to', '40um', '--steps', '4', '--samples', '2000', '--method', 'importance', '--csv', csv, '--workers', '1');
+    expect(r.code).toBe(0);
+    const lines = readFileSync(csv, 'utf8').trimEnd().split('\n');
+    const head = lines[0]!.split(',');
+    const rows = lines.slice(1).map((l) => l.split(','));
+    const real = /^-?\d(\.\d+)?e[+-]\d+$/;
+    for (const [c, name] of head.entries()) {
+      for (const row of rows) {
+        const v = row[c]!;
+        if (name === 'samples' || name === 'failures') expect(v).toMatch(/^\d+$/);
+        else if (name === 'yield_method') expect(v).toMatch(/^(importance-sampling|monte-carlo)$/);
+        else {
+          expect(v).toMatch(real);
+          // Full precision: the text reads back to the double the JSON report holds (round trip).
+          expect(Number(v).toExponential()).toBe(v);
+        }
+      }
+    }
+  });
+
+  it('--vary input.area steps W L at fixed W/L, as size --vary input.area does', async () => {
+    const r = twinfet('sweep', senseAmp, '--vary', 'input.area', '--from', '4um^2', '--to', '100um^2', '--steps', '3', '--samples', '2000', '--json', '--workers', '1');
+    expect(r.code).toBe(0);
+    const j = JSON.parse(r.stdout);
+    expect(j.unit).toBe('m^2');
+    expect(j.points.map((p: { value: number }) => p.value)).toEqual([4e-12, 52e-12, 100e-12]);
+    const d = await loadDesign(senseAmp);
+    for (const p of j.points) {
+      const g = withField(d, 'input.area', p.value).input;
+      // W/L stays 24/1.5 = 16 and W L is the swept value, to the 12-digit rounding of W and L.
+      expect(Math.abs(g.w / g.l / 16 - 1)).toBeLessThan(1e-11);
+      expect(Math.abs((g.w * g.l) / p.value - 1)).toBeLessThan(1e-11);
+      expect(p.analyticSigma).toBe(linearisedSigma(compileStage({ ...d, input: g })));
+    }
+    // At fixed W/L the inversion coefficient is fixed, so both terms of sigma scale as
+    // 1/sqrt(W L) (Pelgrom 1989): from 4 to 100 um^2 sigma falls by exactly 5 (1e-9 for rounding).
+    expect(Math.abs(j.points[0].analyticSigma / j.points[2].analyticSigma - 5)).toBeLessThan(1e-9);
+  });
+
   it('refusals are one line, exit code 2, naming the option', () => {
     const cases: [string, string[], RegExp][] = [
       [demo, ['--vary', 'input.w', '--from', '0um', '--to', '10um', '--log'], /^twinfet: --log: needs --from and --to above 0/],

@@ -129,3 +129,45 @@ export function ekvInverseDifference(s1: number, s2: number, lnRatio: number): n
   }
   return ekvInverseOfRoot(s1) - ekvInverseOfRoot(s2);
 }
+
+/** Largest |x| for which an `ekvInverseDifferenceNear` function is used. */
+export const NEAR_HALF_WIDTH = 1 / 32;
+const NEAR_DEGREE = 10;
+
+/**
+ * For two sides at s_i = s0 e^{x_i} with |x_i| <= 1/32 (a pair whose current factors differ by
+ * a few percent at most), v(s1^2) - v(s2^2) without a transcendental call:
+ * v = 2 ln s + 2 ln(expm1(s)/s) and, with the series of lnExpm1OverS and s^{2n} = s0^{2n} e^{2n x},
+ * ln(expm1(s)/s) = c_0 + G(x), G(x) = sum_{k>=1} c_k x^k, c_k = (s0/2 + sum_n g_n s0^{2n} (2n)^k) / k!
+ * (g_n the coefficients of lnExpm1OverS), so v1 - v2 = 2 (x1 - x2) + 2 (G(x1) - G(x2)), G cut at
+ * degree 10. The cut is bounded when this is built: G(x1) - G(x2) = (x1 - x2) sum_k c_k
+ * (x1^{k-1} + ... + x2^{k-1}), so the terms left out change v1 - v2 by at most
+ * (1/2) sum_{k>10} k |c_k| (1/32)^{k-1} of itself (at most 2e-20 for any s0 allowed); the function is returned only when that is below
+ * 2^-60 and s0 e^{1/32} <= 1 (where lnExpm1OverS's series holds). Otherwise undefined.
+ * Rounding: G(x) ~ c_1 x is small, so its error is relative to x1 - x2, not to ln(expm1(s)/s).
+ * @example ekvInverseDifferenceNear(0.14)!(0.001, -0.001) // v difference for a 0.4% current-factor split
+ */
+export function ekvInverseDifferenceNear(s0: number): ((x1: number, x2: number) => number) | undefined {
+  if (!(s0 > 0 && s0 * Math.exp(NEAR_HALF_WIDTH) <= 1)) return undefined;
+  const coefficient = (k: number): number => {
+    let sum = 0.5 * s0;
+    let fact = 1;
+    for (let j = 2; j <= k; j++) fact *= j;
+    G_COEF.forEach((g, n) => {
+      const m = 2 * (n + 1);
+      sum += g * s0 ** m * m ** k;
+    });
+    return sum / fact;
+  };
+  let cut = 0;
+  for (let k = NEAR_DEGREE + 1; k <= 60; k++) cut += k * Math.abs(coefficient(k)) * NEAR_HALF_WIDTH ** (k - 1);
+  if (!(0.5 * cut <= 2 ** -60)) return undefined;
+  const [k1, k2, k3, k4, k5, k6, k7, k8, k9, k10] = Array.from({ length: NEAR_DEGREE }, (_, i) => coefficient(i + 1)) as [number, number, number, number, number, number, number, number, number, number];
+  // Terms paired (Estrin) so they do not wait on one another.
+  const g = (x: number): number => {
+    const x2 = x * x;
+    const x4 = x2 * x2;
+    return x * (k1 + x * k2 + x2 * (k3 + x * k4) + x4 * (k5 + x * k6 + x2 * (k7 + x * k8)) + x4 * x4 * (k9 + x * k10));
+  };
+  return (x1, x2) => 2 * (x1 - x2) + 2 * (g(x1) - g(x2));
+}

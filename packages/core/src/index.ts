@@ -28,6 +28,7 @@ export * from './linearised.js';
 export { MIRROR_TOLERANCE, MIRROR_MAX_ITERATIONS } from './stages/mirror.js';
 export { FOLDED_TOLERANCE, FOLDED_MAX_ITERATIONS } from './stages/folded.js';
 export { CURRENT_MIRROR_CAUTION } from './stages/currentMirror.js';
+export { SELECTOR_TOLERANCE, SELECTOR_MAX_ITERATIONS, cellCurrents } from './stages/selector.js';
 export { parseDesign, type DesignFormat, type ParseOptions } from './parse/parseDesign.js';
 export { closestWord, editDistance } from './parse/didYouMean.js';
 export { writeDesign, shiftedDecimal } from './parse/writeDesign.js';

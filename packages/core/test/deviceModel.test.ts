@@ -142,14 +142,11 @@ describe('simple stage: a current factor beyond the range of doubles gives NaN, 
   });
 });
 
-describe('v(s1^2) - v(s2^2) in strong inversion keeps its digits where the two inverses nearly cancel', () => {
+describe('v(s1^2) - v(s2^2), the form the hot loops use, against its Taylor expansion', () => {
   // v(IC) = 2 ln(e^s - 1), s = sqrt(IC). For close s1, s2 the difference is, to second order in
   // d = s1 - s2, v' d + v'' d^2 / 2 with v'(s) = 2 e^s / (e^s - 1) and v''(s) = -2 e^s / (e^s - 1)^2
-  // (differentiate); the third-order term is below d^3 |v'''| / 6 < 1e-30 at d = 1e-9. At s = 30
-  // each inverse is about 60, so subtracting two separately rounded ones would keep only
-  // 60 x 2^-52 / (2 d) = 7e-6 relative; the combined form keeps about 1e-15. (Below s = 1 the
-  // series form is there to save log calls, not digits: both forms then lose ~1e-16 absolute.)
-  it('s = 30 and 30 - 1e-9: equals the Taylor form to 1e-12 relative', () => {
+  // (differentiate); the third-order term is below d^3 |v'''| / 6 < 1e-30 at d = 1e-9.
+  it('s = 30 and 30 - 1e-9 (strong inversion): equal to 1e-12 relative', () => {
     const s1 = 30;
     const s2 = 30 - 1e-9;
     const d = s1 - s2;
@@ -161,6 +158,11 @@ describe('v(s1^2) - v(s2^2) in strong inversion keeps its digits where the two i
 });
 
 describe('what a compiled stage says about itself', () => {
+  it('the simple stage names its devices M1 and M2, both input, in its operating point and variables', () => {
+    const st = compileStage(simpleDesign);
+    expect(st.operatingPoint.map((o) => `${o.device}/${o.role}`)).toEqual(['M1/input', 'M2/input']);
+    expect(st.variables.map((v) => `${v.device}.${v.parameter}/${v.role}`)).toEqual(['M1.vt/input', 'M1.beta/input', 'M2.vt/input', 'M2.beta/input']);
+  });
   it('topology, dimension and U_T of each stage', () => {
     const s = compileStage(simpleDesign);
     const m = compileStage(mirrorDesign);

@@ -168,6 +168,20 @@ describe('mirror orientation where the balance solves by hand', () => {
     expect(rel(oneDraw(d, 4, 4), 4 * want)).toBeLessThan(1e-8);
   });
 
+  it('the same with the load at IC = 6e6 (sqrt IC = 2500, where e^{sqrt IC} is beyond doubles)', () => {
+    // The balance must then be solved in the log domain; the square-law answer is as above.
+    const d: Design = { ...square('n'), load: { polarity: 'p', w: 1e-6, l: 1e-3 } };
+    const st = compileStage(d);
+    expect(st.operatingPoint[2]!.ic).toBeGreaterThan(5e6);
+    const pin = d.process.n!;
+    const pl = d.process.p!;
+    const kIn = (pin.kp * d.input.w) / d.input.l / (2 * pin.slope);
+    const kL = (pl.kp * (d['load'] as DeviceGeometry).w) / (d['load'] as DeviceGeometry).l / (2 * pl.slope);
+    const want = -sigmaVt(pl, (d['load'] as DeviceGeometry).w, (d['load'] as DeviceGeometry).l) * Math.sqrt(kL / kIn);
+    expect(rel(oneDraw(d, 4), want)).toBeLessThan(1e-8);
+    expect(rel(oneDraw(d, 6), -want)).toBeLessThan(1e-8);
+  });
+
   // Exponential law (weak inversion, Mead, Analog VLSI and Neural Systems, 1989):
   // I = I_0 e^{(|V_GS| - |V_T|)/(n U_T)}. Raise M3's |V_T| by delta: M4 at the same |V_GS|
   // carries I4 = I3 e^{delta/(n_L U_T)}; at balance I2 = I4 = I1 e^{delta/(n_L U_T)}, and the
@@ -199,5 +213,28 @@ describe('mirror orientation where the balance solves by hand', () => {
     const want = sign * (pin.slope / pl.slope) * delta;
     expect(rel(oneDraw(d, 4), want)).toBeLessThan(2 * Math.sqrt(icMax));
     expect(rel(oneDraw(d, 6), -want)).toBeLessThan(2 * Math.sqrt(icMax));
+  });
+});
+
+describe('mirror stage: a current factor beyond the range of doubles gives NaN, never +-Infinity', () => {
+  it('the draws that leave the range are NaN and counted by offsets(), the others are written in place', () => {
+    // sigma(dbeta/beta) = 30% per device: u_beta1 = 5000 makes I_S1 = I_S e^{1500} (beyond
+    // doubles), so sqrt(IC1) underflows to 0 and V_G1 has no finite value.
+    const side = Math.sqrt((1e-8 / 0.3) ** 2 / 2);
+    const d: Design = { ...mirrorDesign, input: { polarity: 'n', w: side, l: side }, process: { n: { ...demoProcess.n, abeta: 1e-8 }, p: demoProcess.p } };
+    const st = compileStage(d);
+    const bad = Float64Array.of(0, 5000, 0, 0, 0, 0, 0, 0);
+    expect(Number.isNaN(st.figure(bad, 0))).toBe(true);
+    const u = new Float64Array(8 * 3);
+    u.set(bad, 0);
+    u[8] = 1; // second sample: M1's V_T one sigma high, exactly +sigma(dV_T) (see above)
+    u.set(Float64Array.of(0, 0, 0, -5000, 0, 0, 0, 0), 16);
+    const out = new Float64Array(5).fill(7);
+    expect(st.figures(u, 3, out, 2)).toBe(2);
+    expect(out[0]).toBe(7);
+    expect(out[1]).toBe(7);
+    expect(Number.isNaN(out[2]!)).toBe(true);
+    expect(rel(out[3]!, sigmaVt(d.process.n!, side, side))).toBeLessThan(1e-9);
+    expect(Number.isNaN(out[4]!)).toBe(true);
   });
 });

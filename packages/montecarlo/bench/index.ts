@@ -1,17 +1,25 @@
 /**
  * Speed and memory benchmark (`pnpm bench`): ns/sample of the chunk function in one thread,
  * samples/s of whole runs with 1 and with all workers, peak memory of a 1e8-sample run that
- * keeps no samples, the wall time of a 6-sigma high-sigma estimate through the CLI, and how
- * long cancellation takes (abort() through the API, SIGINT through the CLI).
+ * keeps no samples, the wall time of a 6-sigma high-sigma estimate through the CLI, how long
+ * cancellation takes (abort() through the API, SIGINT through the CLI), the wall time of a
+ * 1e-9 wrong-selection probability of a 64-cell selector (target: +-10% at 95% in under 2 s),
+ * the wall time of a design-review report at 1e6 samples (../../cli/bench/report.ts), and the
+ * command line's start-up. `pnpm bench --peer` instead times whole `twinfet run` processes
+ * against a numpy script of the same model (bench/peer.ts), then the start-up.
  * It prints figures; it asserts nothing (targets are checked by reading them).
  */
 import { execFileSync } from 'node:child_process';
 import { availableParallelism } from 'node:os';
 import { fileURLToPath } from 'node:url';
-import { compileStage, linearisedSigma, type Design } from '@twinfet/core';
-import { createExecutor, defaultWorkers, simulate } from '@twinfet/montecarlo';
+import { compileStage, linearisedSigma, specLimit, type Design } from '@twinfet/core';
+import { createExecutor, defaultWorkers, estimateHighSigma, selectionSeparation, simulate } from '@twinfet/montecarlo';
 import { runChunk } from '../src/engine/chunk.js';
+import { poolExecutor } from '../src/engine/pool.js';
 import { loadDesign } from '../../cli/dist/designFile.js';
+import { peerComparison } from './peer.js';
+import { startupFigures } from './startup.js';
+import { reportBench } from '../../cli/bench/report.js';
 
 const root = fileURLToPath(new URL('../../../', import.meta.url));
 const examples = ['weak-inversion-wta', 'sense-amp-pmos', 'comparator-demo'];
@@ -59,10 +67,23 @@ async function runNs(design: Design, workers: number, samples: number): Promise<
   }
 }
 
+/** From creating a pool to its first chunk's result (a job waits for none of it: see startingPoolExecutor). */
 async function poolStartMs(design: Design): Promise<number> {
   const t = performance.now();
-  await simulate(design, { samples: 131_072, workers: defaultWorkers(), keepOffsets: false });
-  return performance.now() - t;
+  const pool = poolExecutor(defaultWorkers());
+  try {
+    await pool.run({ kind: 'montecarlo', design, seed: 'start', chunk: 0, count: 65_536, spec: specLimit(design), histogram: { lo: -0.1, hi: 0.1, bins: 2000 }, keepOffsets: false, keepDraws: false });
+    return performance.now() - t;
+  } finally {
+    await pool.close();
+  }
+}
+
+if (process.argv.includes('--peer')) {
+  await peerComparison();
+  console.log('');
+  startupFigures();
+  process.exit(0);
 }
 
 const line = (cells: (string | number)[]): string => cells.map((c, i) => String(c).padStart(i === 0 ? 20 : 12)).join('');
@@ -72,16 +93,16 @@ console.log('');
 console.log(line(['design', 'topology', 'chunk ns', 'run 1w ns', 'run all ns', 'speed-up', 'samples/s']));
 for (const name of examples) {
   const design = await loadDesign(`${root}examples/${name}.yaml`);
-  // About 2-3 s of work on one thread, so the in-order merge and the last chunk's wait are noise.
-  const runSamples = (design.topology === 'simple' ? 3e7 : 8e6) / (quick ? 10 : 1);
+  // 6e6 samples (92 chunks), the size at which the two-worker speed-up is asked for.
+  const runSamples = 6e6 / (quick ? 10 : 1);
   const c = chunkNs(design);
   const one = await runNs(design, 1, runSamples);
   const all = await runNs(design, defaultWorkers(), runSamples);
   console.log(line([name, design.topology, c.toFixed(1), one.toFixed(1), all.toFixed(1), `${(one / all).toFixed(2)}x`, (1e9 / all).toExponential(2)]));
 }
 console.log('  chunk ns: one 65536-sample chunk in this thread (draws, exact offsets, statistics).');
-console.log('  run ns: wall time of simulate() per sample (3e7 simple, 8e6 mirror samples; best of 3) on a warm pool.');
-console.log(`  pool start-up plus one 131072-sample run with ${defaultWorkers()} workers: ${(await poolStartMs(await loadDesign(`${root}examples/comparator-demo.yaml`))).toFixed(0)} ms.`);
+console.log('  run ns: wall time of simulate() per sample (6e6 samples, histogram quantiles; best of 3) on a warm pool.');
+console.log(`  a fresh pool of ${defaultWorkers()} threads returns its first 65536-sample chunk after ${(await poolStartMs(await loadDesign(`${root}examples/comparator-demo.yaml`))).toFixed(0)} ms (chunks run in this thread meanwhile).`);
 
 // Peak memory of a long run that keeps no samples: it must stay flat in the sample count.
 {
@@ -174,3 +195,34 @@ console.log(`  pool start-up plus one 131072-sample run with ${defaultWorkers()}
   console.log('');
   console.log(`cancellation: abort() to rejection ${lags[0]!.toFixed(1)}-${lags[lags.length - 1]!.toFixed(1)} ms (2 workers, comparator-demo, 5 runs); SIGINT to exit of \`twinfet run\` ${sigint[0]!.toFixed(0)}-${sigint[sigint.length - 1]!.toFixed(0)} ms (3 runs)`);
 }
+
+// A 1e-9 wrong-selection probability of the 64-cell selector to +-10% at 95%, through the CLI
+// (Node start-up included) and as a library call; the separation is Bechhofer's for 1e-9.
+{
+  const file = `${root}examples/selector-64.yaml`;
+  const design = await loadDesign(file);
+  const separation = linearisedSigma(compileStage(design)) * selectionSeparation(64, 1e-9);
+  const spec = `${(separation * 1e3).toFixed(6)}mV`;
+  const bin = `${root}packages/cli/bin/twinfet.js`;
+  const times: number[] = [];
+  let out = '';
+  for (let i = 0; i < 5; i++) {
+    const t = performance.now();
+    out = execFileSync(process.execPath, [bin, 'tail', file, '--spec', spec, '--rel-error', '0.1', '--json'], { encoding: 'utf8' });
+    times.push(performance.now() - t);
+  }
+  const r = JSON.parse(out) as { failureProbability: number; samples: number; relativeHalfWidth: number; interval: [number, number] };
+  times.sort((a, b) => a - b);
+  const lib: number[] = [];
+  for (let i = 0; i < 5; i++) {
+    const t = performance.now();
+    await estimateHighSigma({ ...design, spec: { ...design.spec, separation } }, { relError: 0.1, workers: 1, seed: `bench-${i}` });
+    lib.push(performance.now() - t);
+  }
+  lib.sort((a, b) => a - b);
+  console.log('');
+  console.log(`selector tail: 64 cells, separation ${spec} (Bechhofer: wrong selection 1e-9): p = ${r.failureProbability.toExponential(3)} +-${(r.relativeHalfWidth * 100).toFixed(1)}% [${r.interval[0].toExponential(3)}, ${r.interval[1].toExponential(3)}] from ${r.samples} samples; CLI wall ${times[0]!.toFixed(0)}-${times[4]!.toFixed(0)} ms (median ${times[2]!.toFixed(0)} ms) including Node start-up; library call ${lib[0]!.toFixed(0)}-${lib[4]!.toFixed(0)} ms (target: under 2 s)`);
+}
+console.log('');
+startupFigures();
+reportBench(quick);

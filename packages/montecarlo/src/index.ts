@@ -9,10 +9,11 @@ export { fillStandardNormals, standardNormal } from './random/ziggurat.js';
 // stats/: estimators and intervals
 export { clopperPearson, oneSidedUpper } from './stats/clopperPearson.js';
 export { wilson } from './stats/wilson.js';
-export { sigmaInterval } from './stats/sigmaInterval.js';
-export { addSamples, emptyMoments, mergeMoments, stdDev, variance, type Moments } from './stats/moments.js';
+export { sigmaIntervalBonett, sigmaIntervalChiSquare } from './stats/sigmaInterval.js';
+export { addSamples, emptyMoments, kurtosis, mergeMoments, stdDev, variance, type Moments } from './stats/moments.js';
 export { addPairs, correlation, emptyCoMoments, mergeCoMoments, type CoMoments } from './stats/comoments.js';
 export { createHistogram, exactQuantile, quantileFromHistogram, type Histogram } from './stats/histogram.js';
+export { selectQuantiles, withoutNaN } from './stats/selectQuantiles.js';
 export {
   logNormalUpperTail,
   normalCdf,
@@ -24,13 +25,24 @@ export {
   twoSidedTail,
 } from './stats/normal.js';
 export { allowedFailure, chipFailure, chipYield, chipYieldFromFailure } from './stats/yield.js';
+export { correctSelection, lnWrongSelection, maxOfNormals, selectionSeparation, wrongSelection } from './stats/bechhofer.js';
 
 // engine/: chunks, executors, schedule
 export { CHUNK_SIZE, RunAborted } from './engine/schedule.js';
 export { ChunkError, createExecutor, defaultWorkers, type Executor } from './engine/pool.js';
 
 // analyses/
-export { linearisedSummary, type LinearisedSummary } from './analyses/linearisedSummary.js';
+export {
+  linearisedEstimate,
+  linearisedSummary,
+  SELECTION_CHIP_YIELD,
+  SELECTION_PROBABILITIES,
+  type GaussianSummary,
+  type LinearisedSummary,
+  type SelectionSummary,
+} from './analyses/linearisedSummary.js';
+export { figureLaw, linearisedFigureSigma, type FigureLaw } from './analyses/linearisedLaw.js';
+export { RESPONSE_LEVELS, RESPONSE_SAMPLES, responseAt, responseEnvelope, type ResponseEnvelope, type ResponseSummary } from './analyses/response.js';
 export { findDesignPoint, type DesignPoint } from './analyses/designPoint.js';
 export {
   simulate,
@@ -56,6 +68,7 @@ export { largestSigma, limitingStage, type LimitingStage } from './analyses/wors
 
 // sizing/
 export { SIZE_VARIATIONS, type SizeVary } from './sizing/resize.js';
+export { areaSplit, type AreaSplit } from './sizing/areaSplit.js';
 export {
   sizeDesign,
   type Confirmation,

@@ -96,6 +96,50 @@ describe('importance sampling against the Gaussian closed form (2 Phi(-k) for a 
     expect(Math.abs(r.chip.failure / -Math.expm1(1000 * Math.log1p(-r.failureProbability)) - 1)).toBeLessThan(1e-12);
   });
 
+  it.each([
+    ['1e-3 sigma (a 1 uV-style slip)', 1e-3],
+    ['1.2 sigma', 1.2],
+  ])('a spec inside the bulk (%s) is estimated by plain Monte Carlo with a Clopper-Pearson interval that covers 2 Phi(-k)', async (_label, k) => {
+    const r = await estimateHighSigma(at(k), { seed: `bulk-${k}`, workers: 1 });
+    expect(r.method).toBe('monte-carlo');
+    expect(r.methodReason).toMatch(/inside the bulk/);
+    // Truth for the linear pair: 2 Phi(-k) (A&S 26.2): 0.999202 at k = 1e-3, 0.230139 at 1.2.
+    const truth = twoSidedTail(k);
+    expect(r.interval[0]).toBeLessThanOrEqual(truth);
+    expect(r.interval[1]).toBeGreaterThanOrEqual(truth);
+    // Never a degenerate interval: both ends differ from the estimate's and from each other.
+    expect(r.interval[0]).toBeLessThan(r.failureProbability);
+    expect(r.interval[1]).toBeGreaterThan(r.failureProbability);
+    expect(r.interval[1]).toBeLessThan(1);
+    expect(r.relativeHalfWidth!).toBeGreaterThan(0);
+    expect(r.relativeHalfWidth!).toBeLessThanOrEqual(0.05);
+    expect(r.equivalentPlainSamples).toBeNull();
+    // Same streams as simulate: the same seed and sample count see the same failures (exact).
+    const mc = await simulate(at(k), { samples: r.samples, seed: `bulk-${k}`, workers: 1, keepOffsets: false });
+    expect(r.hits).toBe(mc.yield.failures);
+    expect(r.interval).toEqual(mc.yield.failure.interval);
+  });
+
+  it('a spec just beyond the bulk distance (1.7 sigma, p = 0.089) stays with importance sampling', async () => {
+    const r = await estimateHighSigma(at(1.7), { seed: 'edge', workers: 1 });
+    expect(r.method).toBe('importance-sampling');
+    expect(r.methodReason).toBeNull();
+    // 2 Phi(-1.7) = 0.089131 (A&S 26.2) inside the interval.
+    expect(r.interval[0]).toBeLessThanOrEqual(twoSidedTail(1.7));
+    expect(r.interval[1]).toBeGreaterThanOrEqual(twoSidedTail(1.7));
+  });
+
+  it('the chip yield (1 - p)^M is kept directly, so a chip yield of 1e-52 is not lost as 1 - failure', async () => {
+    const d = { ...at(1.6), spec: { offset: 1.6 * sigmaLin, instances: 1024 } };
+    const r = await estimateHighSigma(d, { seed: 'chip-yield', workers: 1 });
+    // Identity (exp/log1p forms): 1e-12 relative; 1 - chip.failure would be exactly 0 here.
+    expect(Math.abs(r.chip.yield / Math.exp(1024 * Math.log1p(-r.failureProbability)) - 1)).toBeLessThan(1e-12);
+    expect(r.chip.yield).toBeGreaterThan(0);
+    expect(1 - r.chip.failure).toBe(0);
+    expect(r.chip.yieldInterval[0]).toBeLessThan(r.chip.yield);
+    expect(r.chip.yieldInterval[1]).toBeGreaterThan(r.chip.yield);
+  });
+
   it('refuses bad options naming the field', async () => {
     await expect(estimateHighSigma(at(5), { relError: 0 })).rejects.toThrow(/^relError: /);
     await expect(estimateHighSigma(at(5), { samples: 5 })).rejects.toThrow(/^samples: /);

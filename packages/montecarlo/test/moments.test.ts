@@ -1,7 +1,7 @@
 import { describe, it, expect } from 'vitest';
 import { mulberry32, relErr } from './testRandom.js';
 import fc from 'fast-check';
-import { addSamples, emptyMoments, mergeMoments, stdDev, variance } from '../src/stats/moments.js';
+import { addBlock, addSamples, emptyMoments, kurtosis, mergeMoments, stdDev, variance } from '../src/stats/moments.js';
 import type { Moments } from '../src/stats/moments.js';
 
 function onePass(values: Float64Array): Moments {
@@ -20,6 +20,48 @@ describe('moments: reference values', () => {
     expect(relErr(stdDev(m), Math.sqrt(32 / 7))).toBeLessThan(1e-15);
     expect(m.min).toBe(2);
     expect(m.max).toBe(9);
+    // Cubes -27 -1 -1 -1 0 0 8 64 sum to 42; fourth powers 81 1 1 1 0 0 16 256 to 356;
+    // kurtosis 8 * 356 / 32^2 = 2.78125 (by hand). Tolerance 1e-14 relative.
+    expect(relErr(m.m3, 42)).toBeLessThan(1e-14);
+    expect(relErr(m.m4, 356)).toBeLessThan(1e-14);
+    expect(relErr(kurtosis(m), 2.78125)).toBeLessThan(1e-14);
+  });
+
+  it('kurtosis of a small data set: 4.5097352526170225 (test/fixtures/bonett_interval.py)', () => {
+    // The script computes n sum (x - mean)^4 / (sum (x - mean)^2)^2 directly from the definition.
+    // Both paths (one value at a time, one block) to 1e-13 relative (a few dozen roundings).
+    const data = Float64Array.of(1.5, -0.25, 3.0, 0.75, -2.0, 0.5, 8.0, -1.0, 0.0, 2.25);
+    expect(relErr(kurtosis(onePass(data)), 4.5097352526170225)).toBeLessThan(1e-13);
+    expect(relErr(kurtosis(addBlock(emptyMoments(), data, 0, data.length)), 4.5097352526170225)).toBeLessThan(1e-13);
+  });
+
+  it('seeded uniform and Laplace samples of 2e5: kurtosis 1.8 and 6 within 4 standard errors', () => {
+    // U(0,1): kurtosis 9/5; Laplace: 6 (moment ratios mu4 / mu2^2 from the densities, by hand).
+    // SE of the sample kurtosis ~ sqrt(Var((x-mu)^4 / sigma^4 - 2 k (x-mu)^2 / sigma^2) / n)
+    // (delta method, common practice, no source); estimated here from the sample itself.
+    const n = 200_000;
+    const rand = mulberry32(77);
+    const u = new Float64Array(n);
+    const l = new Float64Array(n);
+    for (let i = 0; i < n; i++) {
+      u[i] = rand();
+      const v = rand() - 0.5;
+      l[i] = -Math.sign(v) * Math.log(1 - 2 * Math.abs(v));
+    }
+    for (const [values, k] of [[u, 1.8], [l, 6]] as const) {
+      const m = onePass(values);
+      const s2 = m.m2 / n;
+      let acc = 0;
+      let acc2 = 0;
+      for (const x of values) {
+        const d2 = (x - m.mean) ** 2 / s2;
+        const t = d2 * d2 - 2 * k * d2;
+        acc += t;
+        acc2 += t * t;
+      }
+      const se = Math.sqrt((acc2 / n - (acc / n) ** 2) / n);
+      expect(Math.abs(kurtosis(m) - k)).toBeLessThan(4 * se);
+    }
   });
 
   it('a large offset does not destroy the variance: 1e9 + [4, 7, 13, 16] has variance 30', () => {
@@ -44,7 +86,7 @@ describe('moments: reference values', () => {
   });
 });
 
-describe('moments: merging (Chan, Golub & LeVeque 1983)', () => {
+describe('moments: merging (Chan, Golub & LeVeque 1983; Pebay 2008)', () => {
   it('merging 7 uneven chunks equals one pass to 1e-12 relative', () => {
     // Identity. Both are backward-stable; with 1e5 values of mean 3, sd 2 the rounding
     // differences are ~1e-14 relative, so 1e-12 is a safe bound.
@@ -62,6 +104,9 @@ describe('moments: merging (Chan, Golub & LeVeque 1983)', () => {
     expect(merged.count).toBe(n);
     expect(relErr(merged.mean, whole.mean)).toBeLessThan(1e-12);
     expect(relErr(merged.m2, whole.m2)).toBeLessThan(1e-12);
+    // M3 of symmetric data is near 0, so it is compared to the scale sqrt(M2 M4 / n).
+    expect(Math.abs(merged.m3 - whole.m3)).toBeLessThan(1e-12 * Math.sqrt((whole.m2 * whole.m4) / n));
+    expect(relErr(merged.m4, whole.m4)).toBeLessThan(1e-12);
     expect(merged.min).toBe(whole.min);
     expect(merged.max).toBe(whole.max);
   });
@@ -83,10 +128,18 @@ describe('moments: merging (Chan, Golub & LeVeque 1983)', () => {
           );
           const scale = Math.max(whole.max, -whole.min, 1e-300);
           const m2Scale = whole.m2 + whole.count * whole.mean * whole.mean + 1e-300;
+          // Higher sums: their rounding scales with count * max|x|^p.
+          const m3Scale = whole.count * scale ** 3 + 1e-300;
+          const m4Scale = whole.count * scale ** 4 + 1e-300;
+          const block = addBlock(addBlock(emptyMoments(), values, 0, cut), values, cut, values.length);
           return (
             merged.count === whole.count &&
             Math.abs(merged.mean - whole.mean) <= 1e-12 * scale &&
             Math.abs(merged.m2 - whole.m2) <= 1e-12 * m2Scale &&
+            Math.abs(merged.m3 - whole.m3) <= 1e-12 * m3Scale &&
+            Math.abs(merged.m4 - whole.m4) <= 1e-12 * m4Scale &&
+            Math.abs(block.m3 - whole.m3) <= 1e-12 * m3Scale &&
+            Math.abs(block.m4 - whole.m4) <= 1e-12 * m4Scale &&
             merged.min === whole.min &&
             merged.max === whole.max
           );
@@ -106,6 +159,7 @@ describe('moments: merging (Chan, Golub & LeVeque 1983)', () => {
     expect(a).toEqual(before);
     expect(relErr(ab.mean, ba.mean)).toBeLessThan(1e-15);
     expect(relErr(ab.m2, ba.m2)).toBeLessThan(1e-15);
+    expect(relErr(ab.m4, ba.m4)).toBeLessThan(1e-14);
     expect(mergeMoments(emptyMoments(), b)).toEqual(b);
   });
 

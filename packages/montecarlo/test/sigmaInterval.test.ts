@@ -2,11 +2,14 @@ import { describe, it, expect } from 'vitest';
 import { mulberry32, relErr } from './testRandom.js';
 import jStat from 'jstat';
 import {
+  BONETT_MIN_COUNT,
   CHI_SQUARE_APPROXIMATION_DOF,
   chiSquareQuantile,
   chiSquareQuantileWilsonHilferty,
-  sigmaInterval,
+  sigmaIntervalBonett,
+  sigmaIntervalChiSquare,
 } from '../src/stats/sigmaInterval.js';
+import { addSamples, emptyMoments, kurtosis } from '../src/stats/moments.js';
 
 
 /** Test-only Box-Muller normal pair from two uniforms (Box & Muller, Ann. Math. Stat. 1958). */
@@ -80,12 +83,12 @@ describe('chiSquareQuantile: the switch to Wilson-Hilferty', () => {
   });
 });
 
-describe('sigmaInterval', () => {
+describe('sigmaIntervalChiSquare', () => {
   it('N = 11, s = 1, 95%: [0.69871704416342439, 1.7549335474133559]', () => {
     // Computed with mpmath 1.3.0 from chi2inv(0.975, 10) = 20.4831773508, chi2inv(0.025, 10)
     // = 3.24697278024 (standard table from memory: 20.483 and 3.247). Tolerance 3e-11 relative
     // (jStat's 5e-11 on the quantile, halved by the square root).
-    const [lo, hi] = sigmaInterval(1, 11, 0.95);
+    const [lo, hi] = sigmaIntervalChiSquare(1, 11, 0.95);
     expect(relErr(lo, 0.69871704416342439)).toBeLessThan(3e-11);
     expect(relErr(hi, 1.7549335474133559)).toBeLessThan(3e-11);
   });
@@ -94,7 +97,7 @@ describe('sigmaInterval', () => {
     // chi2(2) quantile -2 ln(1 - p) (A&S 26.4): sigma bounds s sqrt(2 / (-2 ln(1 - p))).
     // Tolerance 3e-11 relative (jStat's quantile, halved by the square root).
     const s = 2.5;
-    const [lo, hi] = sigmaInterval(s, 3, 0.95);
+    const [lo, hi] = sigmaIntervalChiSquare(s, 3, 0.95);
     expect(relErr(lo, s / Math.sqrt(Math.log(40)))).toBeLessThan(3e-11);
     expect(relErr(hi, s / Math.sqrt(-Math.log(0.975)))).toBeLessThan(3e-11);
   });
@@ -102,7 +105,7 @@ describe('sigmaInterval', () => {
   it('N = 1e9 works and gives [0.9999561758068122, 1.0000438280610702] for s = 1', () => {
     // SciPy 1.17.1 chi2.ppf at 1e9 - 1 dof. Relative half-width ~ z / sqrt(2 N) = 4.38e-5
     // (normal approximation, common practice). Tolerance 1e-12 relative.
-    const [lo, hi] = sigmaInterval(1, 1e9, 0.95);
+    const [lo, hi] = sigmaIntervalChiSquare(1, 1e9, 0.95);
     expect(relErr(lo, 0.9999561758068122)).toBeLessThan(1e-12);
     expect(relErr(hi, 1.0000438280610702)).toBeLessThan(1e-12);
     expect(Math.abs((hi - lo) / 2 - 1.959963984540054 / Math.sqrt(2e9))).toBeLessThan(1e-8);
@@ -125,7 +128,7 @@ describe('sigmaInterval', () => {
       let ss = 0;
       for (const v of draws) ss += (v - mean) ** 2;
       const s = trueSigma * Math.sqrt(ss / (draws.length - 1));
-      const [lo, hi] = sigmaInterval(s, draws.length, 0.95);
+      const [lo, hi] = sigmaIntervalChiSquare(s, draws.length, 0.95);
       if (lo <= trueSigma && trueSigma <= hi) covered++;
     }
     const se = Math.sqrt((0.95 * 0.05) / experiments);
@@ -133,9 +136,89 @@ describe('sigmaInterval', () => {
   });
 
   it('rejects bad arguments, naming the field', () => {
-    expect(() => sigmaInterval(1, 1, 0.95)).toThrow(/count/);
-    expect(() => sigmaInterval(-1, 10, 0.95)).toThrow(/sampleStdDev/);
-    expect(() => sigmaInterval(1, 10, 0)).toThrow(/confidence/);
+    expect(() => sigmaIntervalChiSquare(1, 1, 0.95)).toThrow(/count/);
+    expect(() => sigmaIntervalChiSquare(-1, 10, 0.95)).toThrow(/sampleStdDev/);
+    expect(() => sigmaIntervalChiSquare(1, 10, 0)).toThrow(/confidence/);
     expect(() => chiSquareQuantile(1, 10)).toThrow(/p must/);
+  });
+});
+
+/** Test-only Laplace(0, 1) draw by inversion of its CDF (variance 2, kurtosis 6). */
+function laplace(rand: () => number): number {
+  const u = rand() - 0.5;
+  return -Math.sign(u) * Math.log(1 - 2 * Math.abs(u));
+}
+
+describe('sigmaIntervalBonett (Bonett, Comput. Stat. Data Anal. 50(3), 2006)', () => {
+  it('reference values from the published formula (test/fixtures/bonett_interval.py)', () => {
+    // The script evaluates Bonett's formula in Python with statistics.NormalDist for z.
+    // Tolerance 1e-12 relative: a few roundings on each side and normalQuantile's ~1e-15.
+    const cases = [
+      [1, 1000, 3, 0.95, 0.9579246470898307, 1.0459735178870566],
+      [2.5, 20000, 4.2, 0.95, 2.469318044891539, 2.531311250774258],
+      [0.01, 50, 9, 0.99, 0.0059198770775235445, 0.01780973962559003],
+    ] as const;
+    for (const [s, n, k, c, lo, hi] of cases) {
+      const [a, b] = sigmaIntervalBonett(s, n, k, c);
+      expect(relErr(a, lo)).toBeLessThan(1e-12);
+      expect(relErr(b, hi)).toBeLessThan(1e-12);
+    }
+  });
+
+  it('for a Gaussian kurtosis of 3 it is the chi-square interval to O(1/N)', () => {
+    // Both are ln s^2 +- z sqrt(2/(N-1)) to first order (Bonett 2006, sec. 2); they differ in
+    // the O(1/N) terms, so at N = 1e4 and 1e6 the ends agree to 0.2/N relative (measured at
+    // most 0.04/N).
+    for (const n of [1e4, 1e6]) {
+      const [a, b] = sigmaIntervalBonett(1, n, 3, 0.95);
+      const [c, d] = sigmaIntervalChiSquare(1, n, 0.95);
+      expect(relErr(a, c)).toBeLessThan(0.2 / n);
+      expect(relErr(b, d)).toBeLessThan(0.2 / n);
+    }
+  });
+
+  it('a larger kurtosis widens the interval: half-width grows as sqrt(kurtosis - 1)', () => {
+    // se = c sqrt((k - (n-3)/n) / (n-1)): at N = 1e6 the half-width on ln s^2 goes from
+    // sqrt(2) to sqrt(8) units between kurtosis 3 and 9, a factor of 2 (tolerance 1e-4 for the
+    // exp() curvature at half-width 0.006).
+    const w = (k: number): number => {
+      const [a, b] = sigmaIntervalBonett(1, 1e6, k, 0.95);
+      return Math.log(b / a);
+    };
+    expect(Math.abs(w(9) / w(3) - 2)).toBeLessThan(1e-4);
+  });
+
+  it('on heavy-tailed data it keeps its coverage where the chi-square interval loses it', () => {
+    // 2000 seeded experiments of N = 1000 Laplace draws (kurtosis 6, sigma sqrt 2, test-local
+    // mulberry32, seed 99). Coverage is binomial, SE = sqrt(0.95 * 0.05 / 2000) = 0.0049:
+    // Bonett within 4 SE of 95% (measured 0.9445); the chi-square interval, whose variance of
+    // s^2 assumes kurtosis 3, covers far less (measured 0.8025), asserted below 85%.
+    const rand = mulberry32(99);
+    const n = 1000;
+    const values = new Float64Array(n);
+    const truth = Math.SQRT2;
+    const experiments = 2000;
+    let bonett = 0;
+    let chi = 0;
+    for (let e = 0; e < experiments; e++) {
+      for (let i = 0; i < n; i++) values[i] = laplace(rand);
+      const m = addSamples(emptyMoments(), values, 0, n);
+      const s = Math.sqrt(m.m2 / (n - 1));
+      const [a, b] = sigmaIntervalBonett(s, n, kurtosis(m), 0.95);
+      const [c, d] = sigmaIntervalChiSquare(s, n, 0.95);
+      if (a <= truth && truth <= b) bonett++;
+      if (c <= truth && truth <= d) chi++;
+    }
+    const se = Math.sqrt((0.95 * 0.05) / experiments);
+    expect(Math.abs(bonett / experiments - 0.95)).toBeLessThan(4 * se);
+    expect(chi / experiments).toBeLessThan(0.85);
+  });
+
+  it('rejects bad arguments, naming the field', () => {
+    expect(() => sigmaIntervalBonett(1, BONETT_MIN_COUNT - 1, 3, 0.95)).toThrow(/count/);
+    expect(() => sigmaIntervalBonett(1, 100, 0.5, 0.95)).toThrow(/kurtosis/);
+    expect(() => sigmaIntervalBonett(1, 100, Number.NaN, 0.95)).toThrow(/kurtosis/);
+    expect(() => sigmaIntervalBonett(-1, 100, 3, 0.95)).toThrow(/sampleStdDev/);
+    expect(() => sigmaIntervalBonett(1, 100, 3, 1)).toThrow(/confidence/);
   });
 });

@@ -1,7 +1,8 @@
 import { compileStage, linearisedSigma } from '@twinfet/core';
 import { describe, expect, it } from 'vitest';
 import { twoSidedTail } from '../src/stats/normal.js';
-import { createExecutor } from '../src/engine/pool.js';
+import { createExecutor, poolExecutor, startingPoolExecutor } from '../src/engine/pool.js';
+import type { MonteCarloTask } from '../src/engine/messages.js';
 import { simulate, type RunReport } from '../src/analyses/simulate.js';
 import { bigMirror, bigSimple } from './designs.js';
 
@@ -74,10 +75,45 @@ describe('determinism across worker counts', () => {
     const samples = 300_000; // 5 chunks, the last one short
     const runs = [];
     for (const workers of [1, 2, 3]) runs.push(statistics(await simulate(bigMirror, { samples, seed: 'det', workers })));
-    expect(runs[1]).toBe(runs[0]);
-    expect(runs[2]).toBe(runs[0]);
+    // Pools that take every chunk (simulate's own executor may run a small job in this thread).
+    for (const workers of [2, 3]) {
+      const executor = poolExecutor(workers);
+      try {
+        runs.push(statistics(await simulate(bigMirror, { samples, seed: 'det', executor })));
+      } finally {
+        await executor.close();
+      }
+    }
+    for (const r of runs.slice(1)) expect(r).toBe(runs[0]);
     const other = statistics(await simulate(bigMirror, { samples, seed: 'det2', workers: 2 }));
     expect(other).not.toBe(runs[0]);
+  });
+});
+
+describe('where chunks run (the pool-start policy)', () => {
+  const task = (chunk: number): MonteCarloTask => ({
+    kind: 'montecarlo', design: bigSimple, seed: 'where', chunk, count: 1000, spec: 1e-3,
+    histogram: { lo: -0.01, hi: 0.01, bins: 20 }, keepOffsets: false, keepDraws: false,
+  });
+
+  it('a job of two chunks runs in this thread and never starts a pool', async () => {
+    // The policy needs two chunks timed here before it may start one, so this is exact.
+    const executor = startingPoolExecutor(2, 2);
+    const results = await Promise.all([executor.run(task(0)), executor.run(task(1))]);
+    expect(results.map((r) => r.count)).toEqual([1000, 1000]);
+    expect(executor.liveThreads()).toBe(0);
+    await executor.close();
+  });
+
+  it('a shared executor (no chunk count) starts its pool at its first chunk, and close ends it', async () => {
+    const executor = startingPoolExecutor(2);
+    try {
+      expect((await executor.run(task(5))).count).toBe(1000);
+      expect(executor.liveThreads()).toBe(2);
+    } finally {
+      await executor.close();
+    }
+    expect(executor.liveThreads()).toBe(0);
   });
 });
 

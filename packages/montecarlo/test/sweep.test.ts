@@ -1,8 +1,10 @@
 import { InputError, type Design } from '@twinfet/core';
-import { describe, expect, it } from 'vitest';
+import { afterAll, describe, expect, it } from 'vitest';
 import { createExecutor } from '../src/engine/pool.js';
 import { sweepDesigns } from '../src/analyses/sweep.js';
 import { linearSimple, testProcess } from './designs.js';
+import { twoSidedTail } from '../src/stats/normal.js';
+import { linearisedSigma, compileStage } from '@twinfet/core';
 
 const K_B = 1.380649e-23; // J/K, exact (2019 SI)
 const Q = 1.602176634e-19; // C, exact (2019 SI)
@@ -23,6 +25,7 @@ function slope(x: readonly number[], y: readonly number[]): number {
 
 describe('sweepDesigns', () => {
   const executor = createExecutor(2);
+  afterAll(() => executor.close());
 
   it('a width sweep of a V_T-dominated pair follows sigma ~ 1/sqrt(area): log-log slope -0.5 +- 0.02 (Pelgrom 1989)', async () => {
     const widths = [1e-6, 2e-6, 5e-6, 10e-6, 20e-6, 50e-6, 100e-6];
@@ -71,7 +74,33 @@ describe('sweepDesigns', () => {
       // Same seed at every point (common random numbers): the Monte Carlo sigma rises too.
       expect(pts[i]!.monteCarlo.sigma).toBeGreaterThan(pts[i - 1]!.monteCarlo.sigma);
     }
-    await executor.close();
+  });
+
+  it('with importance sampling every yield of a point comes from its importance-sampling failure', async () => {
+    // A linear pair (offset Gaussian with the linearised sigma) at 4.6 sigma, 1024 instances per
+    // chip: truth p = 2 Phi(-4.6) = 4.2263e-6 (A&S 26.2), chip yield (1 - p)^1024 = 0.995681.
+    const sigma = linearisedSigma(compileStage(linearSimple));
+    const design: Design = { ...linearSimple, spec: { offset: 4.6 * sigma, instances: 1024 } };
+    const [withIs] = await sweepDesigns([design], { samples: 20_000, seed: 'is-yield', executor, importance: true });
+    const [plain] = await sweepDesigns([design], { samples: 20_000, seed: 'is-yield', executor });
+    const t = withIs!.importance!;
+    const y = withIs!.yield;
+    expect(y.method).toBe('importance-sampling');
+    // Identities (exact): 1 - p, and the interval ends mapped through 1 - p and (1 - p)^M.
+    expect(y.estimate).toBe(1 - t.failure);
+    expect(y.interval).toEqual([1 - t.interval[1], 1 - t.interval[0]]);
+    expect(y.chipYield).toBe(Math.exp(1024 * Math.log1p(-t.failure)));
+    expect(y.chipYieldInterval).toEqual([Math.exp(1024 * Math.log1p(-t.interval[1])), Math.exp(1024 * Math.log1p(-t.interval[0]))]);
+    // Against the truth: the chip-yield interval covers (1 - 2 Phi(-4.6))^1024 (the IS interval
+    // is +-5% at 95%); the Monte Carlo count of 20000 samples (expected 0.08 failures) could not.
+    const truth = Math.exp(1024 * Math.log1p(-twoSidedTail(4.6)));
+    expect(y.chipYieldInterval[0]).toBeLessThanOrEqual(truth);
+    expect(y.chipYieldInterval[1]).toBeGreaterThanOrEqual(truth);
+    expect(Math.abs(y.chipYield - truth)).toBeLessThan(1024 * twoSidedTail(4.6) * 0.06);
+    // Without importance sampling the yields are the Monte Carlo ones.
+    expect(plain!.yield.method).toBe('monte-carlo');
+    expect(plain!.yield.chipYield).toBe(plain!.monteCarlo.chipYield);
+    expect(plain!.yield.interval).toEqual(plain!.monteCarlo.yieldInterval);
   });
 
   it('names the point of an invalid design', async () => {

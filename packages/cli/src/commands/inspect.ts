@@ -1,5 +1,5 @@
 import { compileConditions, compileStage, conditionSummary, defaultDriftPair, formatQuantity, namedDriftPair, stageDefinition, type Design, type Stage } from '@twinfet/core';
-import { linearisedDriftSigma, linearisedSummary, chipFailure, type LinearisedSummary } from '@twinfet/montecarlo';
+import { linearisedDriftSigma, linearisedEstimate, linearisedSummary, chipFailure, type LinearisedSummary, type SelectionSummary } from '@twinfet/montecarlo';
 import { renderPairs, renderTable } from '../table.js';
 import { designSummary, figureSummary, figureText, headerLine, pct, sci, shareLabel } from '../describe.js';
 import { celsius, driftText, fieldCell, fieldColumns, shiftText } from '../conditionsText.js';
@@ -13,11 +13,11 @@ export interface InspectReport {
   /** Resistor rows, for stages that have resistors. */
   readonly resistors?: NonNullable<Stage['resistors']>;
   readonly analytic: LinearisedSummary;
-  /** With conditions: the linearised sigma and Gaussian yield at each (the design's own values inherited). */
+  /** With conditions: the linearised sigma and the law's (Gaussian, Bechhofer) yield at each (the design's own values inherited). */
   readonly conditions?: readonly (Readonly<Record<string, unknown>> & {
     readonly name: string;
     readonly temperature: number;
-    readonly linearised: { readonly sigma: number; readonly gaussianYield: number; readonly gaussianFailure: number };
+    readonly linearised: { readonly sigma: number; readonly law: string; readonly yield: number; readonly failure: number };
   })[];
   /** With conditions: the linearised sigma of the drift between two of them (null when none is taken). */
   readonly drift?: null | { readonly from: string; readonly to: string; readonly fromTemperature: number; readonly toTemperature: number; readonly linearisedSigma: number };
@@ -33,12 +33,13 @@ export function inspectDesign(design: Design, drift?: readonly [string, string])
   const at = compileConditions(design);
   const pair = drift !== undefined ? namedDriftPair(stage.design, drift, '--drift') : at.length > 0 ? defaultDriftPair(stage.design) : null;
   const conditions = at.map((c) => {
-    const lin = linearisedSummary(c.stage);
+    const summary = linearisedSummary(c.stage);
+    const lin = linearisedEstimate(summary);
     return {
       ...conditionSummary(stage.design, c.condition),
       name: c.condition.name,
       temperature: c.design.temperature,
-      linearised: { sigma: lin.sigma, gaussianYield: lin.gaussian.yield, gaussianFailure: lin.gaussian.failure },
+      linearised: { sigma: summary.sigma, law: lin.name, yield: 1 - lin.failure, failure: lin.failure },
     };
   });
   return {
@@ -69,7 +70,7 @@ export function inspectDesign(design: Design, drift?: readonly [string, string])
 /** The operating-point table (shared by the commands that print it). */
 export function renderOperatingPoint(ops: Stage['operatingPoint']): string {
   const hasCap = ops.some((o) => o.gateCapacitance !== undefined);
-  const header = ['device', 'role', 'W', 'L', 'I_D', 'IC', 'region', 'gm/I_D', 'V_GS-V_T0', 'W*L', 'sigma dV_T', 'sigma dB/B'];
+  const header = ['device', 'role', 'W', 'L', 'I_D', 'IC', 'region', 'gm/I_D', 'V_GS-V_T0', 'W*L', 'sigma dV_T', 'sigma dbeta/beta'];
   if (hasCap) header.push('C_gate');
   const rows = ops.map((o) => {
     const r = [
@@ -109,31 +110,55 @@ export function renderResistors(rows: NonNullable<Stage['resistors']>): string {
   return renderTable(header, body, header.map((_, c) => (c <= 1 ? 'left' : 'right')));
 }
 
-/** The variance-budget table, in the unit of the stage's figure. */
+/**
+ * The variance-budget table, in the unit of the stage's figure (of the figure's sigma^2, or of
+ * the per-cell sigma_c^2 of a selector's Bechhofer form).
+ */
 export function renderBudget(a: LinearisedSummary, design: Pick<Design, 'topology'>): string {
   const def = stageDefinition(design.topology);
   const f = figureText(def.figure);
-  const rows = a.grouped.map((g) => [shareLabel(g.role, g.parameter, def), pct(g.share, 3), f.format(Math.sqrt(g.variance))]);
-  return renderTable(['contribution', 'share of sigma^2', 'sigma part'], rows);
+  const whose = 'gaussian' in a ? undefined : 'each cell';
+  const rows = a.grouped.map((g) => [shareLabel(g.role, g.parameter, def, whose), pct(g.share, 3), f.format(Math.sqrt(g.variance))]);
+  return renderTable(['contribution', `share of ${whose === undefined ? 'sigma' : 'sigma_c'}^2`, 'sigma part'], rows);
+}
+
+/** The linearised lines of a selector (Bechhofer's form) for inspect and run. */
+export function selectionPairs(a: SelectionSummary, format: (x: number) => string): [string, string][] {
+  const y = a.yield;
+  const needed = a.leadFor.map((l) => `${l.probability}: ${format(l.lead)}`).join(', ');
+  return [
+    ['per-cell sigma sigma_c', `${format(a.cellSigma)}  (cell i's input offset dV_T,i - (I_D/gm) dbeta_i/beta at the tie, I_B/N each)`],
+    [`spec L <=`, `${format(y.spec)}  (tau = spec / sigma_c = ${y.tau.toFixed(4)}, ${y.populations} cells)`],
+    ['Bechhofer correct selection', `${yieldFromFailure(y.failure)}  (wrong selection ${sci(y.failure, 4)})`],
+    [`Bechhofer chip yield (${y.chipInstances} selector${y.chipInstances === 1 ? '' : 's'})`, yieldFromFailure(chipFailure(y.failure, y.chipInstances))],
+    ['lead needed for P(correct)', needed],
+    [`lead needed for chip yield ${a.chipLeadFor.chipYield}`, `${format(a.chipLeadFor.lead)} over ${a.chipLeadFor.instances} selector${a.chipLeadFor.instances === 1 ? '' : 's'}`],
+  ];
 }
 
 /** Text form of the inspect report. */
 export function renderInspect(r: InspectReport): string {
   const a = r.analytic;
-  const g = a.gaussian;
   const f = figureText(r.figure);
+  let linearised: [string, string][];
+  if ('gaussian' in a) {
+    const g = a.gaussian;
+    linearised = [
+      [`${f.label} sigma (linearised)`, f.format(a.sigma)],
+      [`spec ${f.magnitude} <=`, `${f.format(g.spec)}  (${g.sigmaLevel.toFixed(3)} sigma)`],
+      ['Gaussian instance yield', `${yieldFromFailure(g.failure)}  (failure ${sci(g.failure, 4)})`],
+      [`Gaussian chip yield (${g.chipInstances} instance${g.chipInstances === 1 ? '' : 's'})`, yieldFromFailure(chipFailure(g.failure, g.chipInstances))],
+    ];
+  } else {
+    linearised = [[`${f.label} (linearised)`, `mean ${f.format(a.mean)}, sigma ${f.format(a.sigma)}`], ...selectionPairs(a, f.format)];
+  }
   const parts = [
     headerLine(r.design, { stageWord: false }),
     '',
     renderOperatingPoint(r.operatingPoint),
     ...(r.resistors === undefined ? [] : ['', renderResistors(r.resistors)]),
     '',
-    renderPairs([
-      [`${f.label} sigma (linearised)`, f.format(a.sigma)],
-      [`spec ${f.magnitude} <=`, `${f.format(g.spec)}  (${g.sigmaLevel.toFixed(3)} sigma)`],
-      ['Gaussian instance yield', `${yieldFromFailure(g.failure)}  (failure ${sci(g.failure, 4)})`],
-      [`Gaussian chip yield (${g.chipInstances} instance${g.chipInstances === 1 ? '' : 's'})`, yieldFromFailure(chipFailure(g.failure, g.chipInstances))],
-    ]),
+    renderPairs(linearised),
     '',
     renderBudget(a, r.design),
   ];
@@ -148,10 +173,19 @@ export function yieldDigits(y: number): number {
   return f <= 0 ? 15 : Math.min(15, Math.max(4, Math.ceil(-Math.log10(f)) + 2));
 }
 
-/** A yield printed with enough nines to see the tail (`digits` to align several). */
+/**
+ * A computed yield printed with enough nines to see the tail (`digits` to align several); a
+ * yield below 0.1 to 4 significant figures (scientific below 1e-3), since fixed decimals would print 8e-8 as 0.0000.
+ */
 export function yieldText(y: number, digits = yieldDigits(y)): string {
   if (1 - y <= 0) return '1 (failure below double precision)';
+  if (y < 0.1) return sci(y, 4);
   return y.toFixed(digits);
+}
+
+/** An estimated yield or an interval end: exactly 1 prints as 1 (no failures seen, or the end of an interval). */
+export function yieldBound(y: number, digits: number): string {
+  return y === 1 ? '1' : yieldText(y, digits);
 }
 
 /** A yield given by its failure probability: `1 - 5.16e-33` once the nines stop being readable. */
@@ -159,14 +193,14 @@ export function yieldFromFailure(failure: number): string {
   return failure < 1e-9 ? `1 - ${failure.toExponential(3)}` : yieldText(1 - failure);
 }
 
-/** The conditions' part of the inspect report: linearised sigma and Gaussian yield at each, and the linearised drift. */
+/** The conditions' part of the inspect report: linearised sigma and the law's yield at each, and the linearised drift. */
 export function renderInspectConditions(r: InspectReport): string {
   const rows = r.conditions ?? [];
   const fig = stageDefinition(r.design.topology).figure;
   const format = figureText(fig).format;
   const cols = fieldColumns(r.design, rows);
   const hasShift = rows.some((x) => x['shift'] !== undefined);
-  const worst = Math.max(...rows.map((x) => x.linearised.gaussianFailure));
+  const worst = Math.max(...rows.map((x) => x.linearised.failure));
   const digits = yieldDigits(1 - worst);
   // Readable nines down to 1e-9 of failure, as elsewhere; beyond, or where the table's decimals
   // would round a failure away, `1 - p`.
@@ -175,14 +209,14 @@ export function renderInspectConditions(r: InspectReport): string {
     const text = yieldText(1 - p, digits);
     return p > 0 && Number(text) === 1 ? `1 - ${p.toExponential(3)}` : text;
   };
-  const header = ['condition', 'temperature', ...cols.map((x) => x.path), ...(hasShift ? ['shift'] : []), 'linearised sigma', 'Gaussian yield'];
+  const header = ['condition', 'temperature', ...cols.map((x) => x.path), ...(hasShift ? ['shift'] : []), 'linearised sigma', `${rows[0]?.linearised.law ?? 'Gaussian'} yield`];
   const body = rows.map((x) => [
     x.name,
     celsius(x.temperature),
     ...cols.map((col) => fieldCell(col.f, col.get(x))),
     ...(hasShift ? [shiftText(x['shift'])] : []),
     format(x.linearised.sigma),
-    gaussian(x.linearised.gaussianFailure),
+    gaussian(x.linearised.failure),
   ]);
   const left = new Set([0, ...(hasShift ? [2 + cols.length] : [])]);
   const d = r.drift;

@@ -1,6 +1,6 @@
 import { createWriteStream } from 'node:fs';
-import { formatQuantity, InputError, isInputError, MISMATCH_PARAMETERS, variableDeviation, type Design } from '@twinfet/core';
-import { RUN_LIMITS, simulateWithSamples, type RunOutcome, type RunReport } from '@twinfet/montecarlo';
+import { compileStage, InputError, isInputError, MISMATCH_PARAMETERS, stageDefinition, variableDeviation, type Design } from '@twinfet/core';
+import { linearisedEstimate, responseEnvelope, RUN_LIMITS, simulateWithSamples, type RunOutcome, type RunReport } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
 import { readCommon, readSpec, withCommonOptions, type CommonFlags } from '../commonOptions.js';
 import { figureJson, figureText, headerLine, pct, plotFigure, sci, type FigureText } from '../describe.js';
@@ -11,7 +11,7 @@ import { assertFinite, printJson, type Io } from '../output.js';
 import { withInterrupt } from '../interrupt.js';
 import { renderPairs } from '../table.js';
 import { textHistogram } from '../textHistogram.js';
-import { renderBudget, yieldDigits, yieldFromFailure, yieldText } from './inspect.js';
+import { renderBudget, selectionPairs, yieldBound, yieldDigits, yieldFromFailure } from './inspect.js';
 import { renderTail } from './tail.js';
 import { writeOutputFile } from '../files.js';
 import { renderRunConditions } from '../conditionsText.js';
@@ -93,15 +93,9 @@ async function writeSamplesCsv(path: string, outcome: RunOutcome): Promise<void>
 
 /** The histogram plot of a run, in the display unit of its figure. */
 export async function runPlot(report: RunReport, title: string): Promise<string> {
-  // Loaded on demand: the plotting library takes ~200 ms to import, which other runs should not pay.
-  const { histogramSvg } = await import('../plot.js');
-  const h = report.histogram;
-  const half = Math.max(5 * report.offset.sigma, 1.15 * report.yield.spec);
-  const first = Math.max(0, Math.floor((-half - h.lo) / h.binWidth));
-  const last = Math.min(h.counts.length, Math.ceil((half - h.lo) / h.binWidth));
-  const counts = h.counts.slice(first, last);
-  const edges = Array.from({ length: counts.length + 1 }, (_, i) => h.lo + (first + i) * h.binWidth);
-  return histogramSvg({ title, binEdges: edges, counts, samples: report.evaluated, mean: report.offset.mean, sigma: report.offset.sigma, spec: report.yield.spec, subtitle: `seed ${report.seed}`, figure: plotFigure(report.figure) });
+  // Loaded on demand, so a run without --plot does not load the plotting code.
+  const [{ chartSvg }, { runHistogramChart }] = await Promise.all([import('../chart/chart.js'), import('../runHistogram.js')]);
+  return chartSvg(runHistogramChart(report, { title, figure: plotFigure(report.figure), specSides: report.figure.sided }));
 }
 
 /** Row labels of the text histogram: the offset in mV to 3 decimals as before, a dimensionless figure in %. */
@@ -110,11 +104,41 @@ function histogramRowLabel(f: FigureText): (v: number) => string {
   return (v) => `${(Math.abs(v) < 1e-15 ? 0 : v * scale).toFixed(3)} ${unit}`;
 }
 
+/** Points of the response plot's lead grid. */
+const RESPONSE_POINTS = 41;
+
+/**
+ * The response plot of a stage that has a transfer curve (a selector's winner's share against
+ * the lead): the nominal curve and the percentile bands over samples, the spec marked. The lead
+ * runs from -spec to where the nominal share reaches 90% (at least 3 spec).
+ */
+export async function responsePlot(design: Design, report: RunReport, title: string): Promise<string> {
+  const { responseSvg } = await import('../plot.js');
+  const stage = compileStage(design);
+  const curve = stage.response!;
+  const zero = new Float64Array(stage.dimension);
+  const spec = report.yield.spec;
+  let top = Math.max(3 * spec, 1e-3);
+  for (let i = 0; i < 60 && curve.evaluate(zero, 0, top) < 0.9; i++) top *= 1.5;
+  const xs = Array.from({ length: RESPONSE_POINTS }, (_, i) => -spec + ((top + spec) * i) / (RESPONSE_POINTS - 1));
+  const envelope = responseEnvelope(stage, xs, report.seed);
+  // No sample could be evaluated at some lead (every solve failed): the histogram instead.
+  if (envelope === undefined) return runPlot(report, title);
+  const pf = plotFigure(report.figure);
+  return responseSvg({ title, envelope, spec, subtitle: `seed ${report.seed}`, figure: pf });
+}
+
 const range = (iv: readonly [number, number], f: (v: number) => string): string => `[${f(iv[0])}, ${f(iv[1])}]`;
-/** A yield, its interval and the method, printed with one number of decimals. */
-const yieldWithInterval = (y: number, iv: readonly [number, number], c: string): string => {
-  const digits = yieldDigits(Math.min(y, iv[0]) === 1 ? y : Math.max(y, iv[1]));
-  return `${yieldText(y, digits)}   ${c} ${range(iv, (v) => yieldText(v, digits))}`;
+/**
+ * A yield estimated from `failures` in `samples`, and its interval, printed with one number of
+ * decimals: enough to show the failure part of the largest value below 1 (with no failures,
+ * of the lower end) to three figures.
+ */
+const yieldWithInterval = (y: number, iv: readonly [number, number], c: string, failures: number, samples: number): string => {
+  const below1 = [y, iv[1]].filter((v) => v < 1);
+  const digits = yieldDigits(below1.length > 0 ? Math.max(...below1) : iv[0]);
+  const estimate = failures === 0 ? `1 (no failures in ${samples} samples)` : yieldBound(y, digits);
+  return `${estimate}   ${c} ${range(iv, (v) => yieldBound(v, digits))}`;
 };
 
 /** Text form of the run report. */
@@ -129,6 +153,9 @@ export function renderRun(r: RunReport, design: Design): string {
   const qHead = q.signed.map((x) => `${x.p * 100}%`.padStart(qWidth)).join('');
   const qRow = (xs: typeof q.signed): string => xs.map((x) => cellText(x).padStart(qWidth)).join('');
   const agree = r.analytic.agreement;
+  const twoSided = r.figure.sided === 'two';
+  const estimate = linearisedEstimate(r.analytic);
+  const note = stageDefinition(design.topology).figure.note;
   const lines = [
     headerLine(design),
     `Monte Carlo on the exact model: ${r.evaluated} samples${r.partial ? ' (PARTIAL: interrupted, finished chunks only)' : ''}, seed ${r.seed}, ${r.workers} worker(s), ${r.seconds.toFixed(2)} s, ${sci(r.samplesPerSecond, 3)} samples/s`,
@@ -136,35 +163,66 @@ export function renderRun(r: RunReport, design: Design): string {
     '',
     renderPairs([
       [`${f.label} mean`, `${mv(r.offset.mean)}   ${c} ${range(r.offset.meanInterval, mv)}`],
-      [`${f.label} sigma`, `${mv(r.offset.sigma)}   ${c} ${range(r.offset.sigmaInterval, mv)} (chi-square)`],
+      [`${f.label} sigma`, `${mv(r.offset.sigma)}   ${c} ${range(r.offset.sigmaInterval, mv)} (${r.offset.sigmaIntervalMethod === 'bonett' ? `Bonett, valid for a non-Gaussian ${f.label}` : 'chi-square'})`],
+      [`${f.label} kurtosis`, `${r.offset.kurtosis.toFixed(3)}   (3 for a Gaussian ${f.label}; above 3, heavier tails)`],
       ['linearised sigma', `${mv(r.analytic.sigma)}   Monte Carlo differs by ${pct(agree.relativeDifference, 2)} (${agree.standardErrors.toFixed(1)} standard errors)${agree.consistent ? '' : `  <- more than sampling error allows: the ${f.label} is not linear in the mismatch here`}`],
+      ...('gaussian' in r.analytic ? [] : [['linearised mean', mv(r.analytic.mean)] as [string, string]]),
       ['min / max', `${mv(r.offset.min)} / ${mv(r.offset.max)}`],
     ]),
     '',
     `quantiles (${r.offset.quantileMethod === 'exact' ? 'exact, from every sample' : 'from the histogram, within one bin width'})`,
     `${'p'.padEnd(8)}${qHead}`,
     `${f.symbol.padEnd(8)}${qRow(q.signed)}`,
-    `${f.magnitude.padEnd(8)}${qRow(q.absolute)}`,
+    ...(twoSided ? [`${f.magnitude.padEnd(8)}${qRow(q.absolute)}`] : []),
+    ...(note === undefined ? [] : [`note: ${note}`]),
     '',
-    textHistogram(r.histogram, Math.max(4 * r.offset.sigma, 1.1 * r.yield.spec), r.yield.spec, 25, 50, histogramRowLabel(f)),
+    twoSided
+      ? textHistogram(r.histogram, Math.max(4 * r.offset.sigma, 1.1 * r.yield.spec), r.yield.spec, 25, 50, histogramRowLabel(f))
+      : textHistogram(r.histogram, Math.max(4 * r.offset.sigma, 1.1 * Math.abs(r.yield.spec - r.offset.mean)), r.yield.spec, 25, 50, histogramRowLabel(f), true, r.offset.mean),
     '',
     renderBudget(r.analytic, design),
     '',
     ...(r.conditions === undefined ? [] : [renderRunConditions(r, design, yieldDigits), '']),
     renderPairs(r.conditions === undefined ? [
       [`spec ${f.magnitude} <=`, mv(r.yield.spec)],
-      ['failures', `${r.yield.failures} of ${r.evaluated} ${r.figure.sided === 'two' ? ` (${r.yield.failuresHigh} above +spec, ${r.yield.failuresLow} below -spec)` : ' (above the spec)'}`],
-      ['instance yield', `${yieldWithInterval(r.yield.estimate, r.yield.interval, c)} (${r.yield.method})`],
-      ['Gaussian estimate', `${yieldFromFailure(r.analytic.gaussian.failure)}   from the linearised sigma`],
-      [`chip yield (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, yieldWithInterval(r.chip.estimate, r.chip.interval, c)],
+      [
+        'failures',
+        `${r.yield.failures} of ${r.evaluated}${twoSided ? ` (${r.yield.failuresHigh} above +spec, ${r.yield.failuresLow} below -spec)` : ' (above the spec)'}${r.yield.failures === 0 ? `; failure probability at most ${sci(r.yield.failure.interval[1], 4)} (upper end of the ${c} interval)` : ''}`,
+      ],
+      ['instance yield', `${yieldWithInterval(r.yield.estimate, r.yield.interval, c, r.yield.failures, r.evaluated)} (${r.yield.method})`],
+      ...('gaussian' in r.analytic
+        ? [['Gaussian estimate', `${yieldFromFailure(r.analytic.gaussian.failure)}   from the linearised sigma`] as [string, string]]
+        : [
+            [
+              `${estimate.name} estimate`,
+              `${yieldFromFailure(estimate.failure)}   from the per-cell sigma${r.analytic.yieldAgreement === undefined ? '' : `; Monte Carlo differs by ${sci(r.analytic.yieldAgreement.difference, 3)} (${r.analytic.yieldAgreement.standardErrors.toFixed(1)} standard errors)${r.analytic.yieldAgreement.consistent ? '' : '  <- more than sampling error allows'}`}`,
+            ] as [string, string],
+          ]),
+      [`chip yield (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, yieldWithInterval(r.chip.estimate, r.chip.interval, c, r.yield.failures, r.evaluated)],
     ] : [
       [`spec ${f.magnitude} <=`, mv(r.yield.spec)],
-      ['failures', `${r.yield.failures} of ${r.yield.evaluated ?? r.evaluated} fail at one condition at least${r.figure.sided === 'two' ? ` (${r.yield.failuresHigh} above +spec somewhere, ${r.yield.failuresLow} below -spec somewhere)` : ''}`],
-      ['yield, all conditions', `${yieldWithInterval(r.yield.estimate, r.yield.interval, c)} (${r.yield.method}; an instance passes only if it passes at every condition)`],
+      [
+        'failures',
+        `${r.yield.failures} of ${r.yield.evaluated ?? r.evaluated} fail at one condition at least${twoSided ? ` (${r.yield.failuresHigh} above +spec somewhere, ${r.yield.failuresLow} below -spec somewhere)` : ''}${r.yield.failures === 0 ? `; failure probability at most ${sci(r.yield.failure.interval[1], 4)} (upper end of the ${c} interval)` : ''}`,
+      ],
+      ['yield, all conditions', `${yieldWithInterval(r.yield.estimate, r.yield.interval, c, r.yield.failures, r.yield.evaluated ?? r.evaluated)} (${r.yield.method}; an instance passes only if it passes at every condition)`],
       ['worst condition', `${r.yield.worst ?? '-'} (the lowest yield of its own)`],
-      [`chip yield (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, `${yieldWithInterval(r.chip.estimate, r.chip.interval, c)} (from the all-conditions yield)`],
+      [`chip yield (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, `${yieldWithInterval(r.chip.estimate, r.chip.interval, c, r.yield.failures, r.yield.evaluated ?? r.evaluated)} (from the all-conditions yield)`],
     ]),
   ];
+  // The spec and the Bechhofer figures are in the yield lines above; the sigma and the leads are added.
+  if (!('gaussian' in r.analytic)) lines.push('', renderPairs(selectionPairs(r.analytic, mv).filter(([k]) => k.startsWith('per-cell') || k.startsWith('lead needed'))));
+  const resp = r.response;
+  if (resp !== undefined) {
+    const qs = resp.quantiles.map((x) => `${x.p * 100}% ${pct(x.value, 4)}`).join(', ');
+    lines.push(
+      '',
+      renderPairs([
+        [`${resp.label} at ${resp.input} ${mv(resp.at)}`, `nominal ${pct(resp.nominal, 4)}; over ${resp.evaluated} samples mean ${pct(resp.mean, 4)}, sigma ${pct(resp.sigma, 3)}`],
+        ['its quantiles', qs],
+      ]),
+    );
+  }
   if (r.yield.limitedBySamples) {
     lines.push(
       '',
@@ -189,7 +247,7 @@ export function registerRun(program: Command, io: Io, setExit: (code: number) =>
       .option('--method <M>', 'plain (default), or importance to add the high-sigma estimate')
       .option('--drift <A,B>', 'the two conditions to take the drift of the figure between, e.g. cold,hot (default: the coldest and hottest that differ only in temperature)')
       .option('--samples-out <FILE.csv>', "write each sample's figure and mismatch draws")
-      .option('--plot <FILE.svg>', 'histogram with the fitted Gaussian and the +-spec lines'),
+      .option('--plot <FILE.svg>', "histogram with the fitted Gaussian and the +-spec lines (a selector: the winner's share against the lead, with its mismatch envelope)"),
   ).action(async (file: string, flags: RunFlags) => {
     const o = parseRunFlags(flags);
     const design = await loadDesign(file);
@@ -225,9 +283,18 @@ export function registerRun(program: Command, io: Io, setExit: (code: number) =>
     const report = outcome.report;
     assertFinite(report);
     if (flags.samplesOut !== undefined) await writeSamplesCsv(flags.samplesOut, outcome);
-    if (flags.plot !== undefined) await writeOutputFile(flags.plot, '--plot', await runPlot(report, `${design.name}: ${report.figure.label} distribution`));
+    if (flags.plot !== undefined) {
+      const svg = compileStage(design).response === undefined
+        ? await runPlot(report, `${design.name}: ${report.figure.label} distribution`)
+        : await responsePlot(design, report, `${design.name}: ${report.response?.label ?? 'response'} against ${report.response?.input ?? 'input'}`);
+      await writeOutputFile(flags.plot, '--plot', svg);
+    }
     if (flags.json === true) printJson(io, figureJson(report));
-    else io.out(renderRun(report, design));
+    else {
+      io.out(renderRun(report, design));
+      if (flags.samplesOut !== undefined) io.out(`wrote ${flags.samplesOut}`);
+      if (flags.plot !== undefined) io.out(`wrote ${flags.plot}`);
+    }
     setExit(report.partial ? 130 : 0);
   });
 }

@@ -1,6 +1,5 @@
-import { readFileSync } from 'node:fs';
-import { closestWord, formatQuantity, InputError, isInputError, stageDefinition, writeDesign, type Design } from '@twinfet/core';
-import { SIZE_VARIATIONS, sizeDesign, type Confirmation, type SizedPoint, type SizeReport, type SizeTarget, type SizeVary } from '@twinfet/montecarlo';
+import { closestWord, compileStage, formatQuantity, InputError, isInputError, parseQuantity, stageDefinition, writeDesign, type Design } from '@twinfet/core';
+import { figureLaw, SIZE_VARIATIONS, sizeDesign, type Confirmation, type SizedPoint, type SizeReport, type SizeTarget, type SizeVary } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
 import { readCommon, readSpec, withCommonOptions, type CommonFlags } from '../commonOptions.js';
 import { figureSummary, figureText, headerLine, parseFigureOption, pct, sci, type FigureText } from '../describe.js';
@@ -11,7 +10,8 @@ import { parseCount, parseFraction } from '../options.js';
 import { assertFinite, printJson, type Io } from '../output.js';
 import { withInterrupt } from '../interrupt.js';
 import { renderPairs, renderTable } from '../table.js';
-import { yieldText } from './inspect.js';
+import { yieldBound, yieldDigits, yieldText } from './inspect.js';
+import { VERSION } from '../version.js';
 
 interface SizeFlags extends CommonFlags {
   sigma?: string;
@@ -21,8 +21,6 @@ interface SizeFlags extends CommonFlags {
   samples?: string;
   write?: string;
 }
-
-const version = (JSON.parse(readFileSync(new URL('../../package.json', import.meta.url), 'utf8')) as { version: string }).version;
 
 /** Library option names as the command line spells them. */
 const OPTION_OF: Readonly<Record<string, string>> = {
@@ -111,7 +109,7 @@ function figure(c: Confirmation, r: SizeReport, mv: (x: number) => string): stri
 }
 
 /** A yield or interval end: exactly 1 prints as 1 (an interval end or an estimate from no failures). */
-const bound = (y: number): string => (y === 1 ? '1' : y < 1e-3 ? sci(y, 4) : yieldText(y));
+const bound = (y: number): string => yieldBound(y, yieldDigits(y));
 
 /** Text form of a sizing report. */
 export function renderSize(r: SizeReport, source: string, design: Design): string {
@@ -135,7 +133,7 @@ export function renderSize(r: SizeReport, source: string, design: Design): strin
   }
   pairs.push(
     ['failure at spec', `${sci(c.failure, 4)}   ${cl} [${sci(c.failureInterval[0], 4)}, ${sci(c.failureInterval[1], 4)}] (${f.magnitude} > ${mv(r.spec)}${c.sigma === null ? `; ${method}` : ''})`],
-    ['instance yield', `${c.failure === 0 ? `1 (no failures in ${c.samples} samples)` : bound(1 - c.failure)}   Gaussian estimate ${yieldText(1 - r.result.gaussianFailure)}`],
+    ['instance yield', `${c.failure === 0 ? `1 (no failures in ${c.samples} samples)` : bound(1 - c.failure)}   ${figureLaw(compileStage(design)).name} estimate ${yieldText(1 - r.result.gaussianFailure)}`],
     [`chip yield (${r.instances})`, `${bound(c.chipYield)}   ${cl} [${bound(c.chipYieldInterval[0])}, ${bound(c.chipYieldInterval[1])}]`],
     ['target', c.met ? `met: ${r.rule}` : `NOT met (${r.rule})`],
     ...(c.condition === null
@@ -199,7 +197,7 @@ function fileHeader(r: SizeReport, source: string, design: Design): string[] {
     ? `sigma ${mv(c.sigma)}, ${conf(r.confidence)} [${mv(c.sigmaInterval[0])}, ${mv(c.sigmaInterval[1])}]`
     : `failure ${sci(c.failure, 4)}, ${conf(r.confidence)} [${sci(c.failureInterval[0], 4)}, ${sci(c.failureInterval[1], 4)}]`;
   return [
-    `Sized by twinfet ${version} from ${source} for ${targetText(r, f)}, varying ${r.vary}.`,
+    `Sized by twinfet ${VERSION} from ${source} for ${targetText(r, f)}, varying ${r.vary}.`,
     `Confirmed on the exact model: ${fig} (${method}).`,
     `Linearised sigma ${mv(r.result.sigmaLinearised)}. Process parameters and bias are copied unchanged from ${source}.`,
   ];

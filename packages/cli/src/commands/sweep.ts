@@ -11,8 +11,8 @@ import { assertFinite, printJson, type Io } from '../output.js';
 import type { SweepPoint } from '../plot.js';
 import { withInterrupt } from '../interrupt.js';
 import { renderTable } from '../table.js';
-import { plotAxis, sweepField, sweepValues, withField, type SweepField } from '../sweepField.js';
-import { yieldDigits, yieldText } from './inspect.js';
+import { plotAxis, SWEEP_FIELDS, sweepField, sweepValues, withField, type SweepField } from '../sweepField.js';
+import { yieldBound, yieldDigits } from './inspect.js';
 
 interface SweepFlags extends CommonFlags {
   vary?: string;
@@ -91,8 +91,6 @@ function shown(f: SweepField, v: number): string {
   return formatQuantity(v, f.tableUnit, 4);
 }
 
-/** A yield or interval end: exactly 1 prints as 1 (no failures seen), tiny values in scientific form. */
-const bound = (y: number, digits: number): string => (y === 1 ? '1' : y < 1e-3 ? sci(y, 4) : yieldText(y, digits));
 const conf = (c: number): string => `${Math.round(c * 1000) / 10}%`;
 
 /** Text table of a sweep. */
@@ -101,29 +99,36 @@ export function renderSweep(r: SweepReport, f: SweepField): string {
   const mv = figureText(r.figure).format;
   const hasTail = r.method === 'importance';
   const counts = new Set(r.points.map((p) => p.instances));
-  const chipHead = counts.size === 1 ? `chip yield (${r.points[0]!.instances})` : 'chip yield';
-  const header = [f.path, 'analytic sigma', 'MC sigma', `${c} interval`, 'yield', `${c} interval`, chipHead];
+  const chipNotes = [...(counts.size === 1 ? [String(r.points[0]!.instances)] : []), ...(hasTail ? ['IS'] : [])];
+  const chipHead = chipNotes.length === 0 ? 'chip yield' : `chip yield (${chipNotes.join(', ')})`;
+  // With importance sampling every yield of a row comes from its importance-sampling failure.
+  const yieldHead = hasTail ? 'yield (IS)' : 'yield';
+  const header = [f.path, 'analytic sigma', 'MC sigma', `${c} interval`, yieldHead, `${c} interval`, chipHead];
   if (hasTail) header.push('IS failure', `${c} interval`, 'sigma level');
   const withConditions = r.points.some((p) => p.limitingCondition !== null);
   if (withConditions) header.push('limited by (sigma / yield)');
   if (r.targets.sigma !== null) header.push(`sigma <= ${mv(r.targets.sigma)}`);
   if (r.targets.yield !== null) header.push(`yield >= ${r.targets.yield}`);
+  const wholeNumbers = SWEEP_FIELDS.find((x) => x.path === r.field)?.integer === true;
   const rows = r.points.map((p) => {
     const m = p.monteCarlo;
+    const y = p.yield;
     // Digits enough for three figures of the interval's larger failure, per row.
-    const digits = yieldDigits(m.yieldInterval[0]);
+    const digits = yieldDigits(y.interval[0]);
+    const estimate = y.method === 'monte-carlo' && m.failures === 0 ? '1 (no failures)' : yieldBound(y.estimate, digits);
     const row = [
       shown(f, p.value),
       mv(p.analyticSigma),
       mv(m.sigma),
       `[${mv(m.sigmaInterval[0])}, ${mv(m.sigmaInterval[1])}]`,
-      m.failures === 0 ? '1 (no failures)' : bound(m.yield, digits),
-      `[${bound(m.yieldInterval[0], digits)}, ${bound(m.yieldInterval[1], digits)}]`,
-      bound(m.chipYield, digits),
+      estimate,
+      `[${yieldBound(y.interval[0], digits)}, ${yieldBound(y.interval[1], digits)}]`,
+      yieldBound(y.chipYield, yieldDigits(y.chipYieldInterval[0])),
     ];
     if (hasTail) {
       const t = p.importance!;
-      row.push(sci(t.failure, 4), `[${sci(t.interval[0], 3)}, ${sci(t.interval[1], 3)}]`, t.sigmaLevel === null ? 'n/a' : t.sigmaLevel.toFixed(3));
+      // A point whose spec lies in the bulk was estimated by plain Monte Carlo (marked MC).
+      row.push(`${sci(t.failure, 4)}${t.method === 'monte-carlo' ? ' (MC)' : ''}`, `[${sci(t.interval[0], 3)}, ${sci(t.interval[1], 3)}]`, t.sigmaLevel === null ? 'n/a' : t.sigmaLevel.toFixed(3));
     }
     if (withConditions) row.push(p.limitingCondition === null ? '-' : `${p.limitingCondition.sigma} / ${p.limitingCondition.yield}`);
     if (p.meetsTarget.sigma !== null) row.push(p.meetsTarget.sigma);
@@ -136,24 +141,39 @@ export function renderSweep(r: SweepReport, f: SweepField): string {
     '',
     renderTable(header, rows, header.map((_, i) => (i === 0 ? 'left' : 'right'))),
   ];
+  if (hasTail) lines.push(`note: yields and chip yields are 1 - p and (1 - p)^instances of the importance-sampling failure p (IS failure); MC sigma from ${r.samples} Monte Carlo samples`);
+  if (r.points.some((p) => p.importance?.method === 'monte-carlo')) {
+    lines.push('note: (MC): the spec lies inside the bulk of the distribution there, so the failure is a plain Monte Carlo estimate with a Clopper-Pearson interval, and the row\'s yields are its Monte Carlo ones');
+  }
   for (const n of r.notes) lines.push(`note: ${n}`);
   for (const w of r.warnings) lines.push(`warning: ${w}`);
   return lines.join('\n');
 }
 
-const cell = (x: number | null): string => (x === null ? '' : String(x));
+/** A real-valued CSV cell: shortest round-trip digits, always in exponent form, so a column has one format. */
+const real = (x: number | null): string => (x === null ? '' : x.toExponential());
+/** A count cell (whole numbers). */
+const count = (x: number): string => String(x);
 
 /** CSV of a sweep, SI units, one row per point; empty cells where a figure is not available. */
 export function sweepCsv(r: SweepReport): string {
   const u = r.unit === '' ? r.field : `${r.field}_${r.unit}`;
   const col = figureText(r.figure).column;
-  const header = [u, `analytic_sigma_${col}`, `mc_sigma_${col}`, `mc_sigma_lo_${col}`, `mc_sigma_hi_${col}`, 'samples', 'failures', 'yield', 'yield_lo', 'yield_hi', 'chip_yield', 'chip_yield_lo', 'chip_yield_hi', 'is_failure', 'is_failure_lo', 'is_failure_hi', 'is_sigma_level'];
+  const header = [u, `analytic_sigma_${col}`, `mc_sigma_${col}`, `mc_sigma_lo_${col}`, `mc_sigma_hi_${col}`, 'samples', 'failures', 'yield_method', 'yield', 'yield_lo', 'yield_hi', 'chip_yield', 'chip_yield_lo', 'chip_yield_hi', 'is_failure', 'is_failure_lo', 'is_failure_hi', 'is_sigma_level'];
+  const wholeNumbers = SWEEP_FIELDS.find((x) => x.path === r.field)?.integer === true;
   const rows = r.points.map((p) => {
     const m = p.monteCarlo;
+    const y = p.yield;
     const t = p.importance;
-    return [p.value, p.analyticSigma, m.sigma, m.sigmaInterval[0], m.sigmaInterval[1], m.samples, m.failures, m.yield, m.yieldInterval[0], m.yieldInterval[1], m.chipYield, m.chipYieldInterval[0], m.chipYieldInterval[1], t?.failure ?? null, t?.interval[0] ?? null, t?.interval[1] ?? null, t?.sigmaLevel ?? null]
-      .map(cell)
-      .join(',');
+    return [
+      wholeNumbers ? count(p.value) : real(p.value),
+      ...[p.analyticSigma, m.sigma, m.sigmaInterval[0], m.sigmaInterval[1]].map(real),
+      count(m.samples),
+      count(m.failures),
+      y.method,
+      ...[y.estimate, y.interval[0], y.interval[1], y.chipYield, y.chipYieldInterval[0], y.chipYieldInterval[1]].map(real),
+      ...[t?.failure ?? null, t?.interval[0] ?? null, t?.interval[1] ?? null, t?.sigmaLevel ?? null].map(real),
+    ].join(',');
   });
   return `${[header.join(','), ...rows].join('\n')}\n`;
 }
@@ -165,7 +185,7 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
       .command('sweep')
       .description('step one numeric design field and report analytic and Monte Carlo sigma and yield at each value')
       .argument('<design>', 'design file (YAML or JSON)')
-      .option('--vary <FIELD>', 'the field to step: input.w, input.l, load.w, load.l, sources.current, tail, temperature, spec.offset (spec.error), spec.instances, process.n.avt, ...')
+      .option('--vary <FIELD>', 'the field to step: input.w, input.l, input.area (W L at fixed W/L), load.w, load.l, load.area, sources.current, tail, temperature, spec.offset (spec.error), spec.instances, process.n.avt, ...')
       .option('--from <A>', 'first value, with the field\'s unit, e.g. 1um, 5uA, "27 C"')
       .option('--to <B>', 'last value, e.g. 20um')
       .option('--steps <N>', 'number of values, ends included (default 5)')
@@ -180,7 +200,7 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
   ).action(async (file: string, flags: SweepFlags) => {
     const common = readCommon(flags);
     if (flags.vary === undefined) throw new InputError('--vary', 'missing; give the field to step, e.g. --vary input.w');
-    const steps = flags.steps === undefined ? 5 : parseCount(flags.steps, '--steps', 2, 200);
+    const steps = flags.steps === undefined ? 5 : parseCount(flags.steps, '--steps', 2, 200, '5 or 11');
     const samples = flags.samples === undefined ? SWEEP_SAMPLES : parseCount(flags.samples, '--samples', 100, 1e9);
     const method = flags.method ?? 'plain';
     if (method !== 'plain' && method !== 'importance') throw new InputError('--method', `expected plain or importance, got "${method}"`);
@@ -259,7 +279,7 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
               ? null
               : p.importance !== null
                 ? verdict(p.importance.interval[0], p.importance.interval[1], 1 - targetYield)
-                : verdict(1 - p.monteCarlo.yieldInterval[1], 1 - p.monteCarlo.yieldInterval[0], 1 - targetYield),
+                : verdict(1 - p.yield.interval[1], 1 - p.yield.interval[0], 1 - targetYield),
         },
       })),
       notes,
@@ -280,9 +300,9 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
         yieldHi: p.monteCarlo.yieldInterval[1],
         ...(p.importance === null ? {} : { tailFailure: p.importance.failure, tailLo: p.importance.interval[0], tailHi: p.importance.interval[1] }),
       }));
-      // Loaded on demand: the plotting library takes ~200 ms to import.
+      // Loaded on demand, so a sweep without --plot does not load the plotting code.
       const { sweepSvg } = await import('../plot.js');
-      const svg = await sweepSvg({
+      const svg = sweepSvg({
         title: `${design.name}: ${report.figure.label} against ${f.path}`,
         field: f.path,
         fieldUnit: axis.unit,

@@ -15,7 +15,23 @@ interface TailFlags extends CommonFlags {
   samples?: string;
 }
 
-const sig = (x: number | null): string => (x === null ? 'unbounded' : x.toFixed(3));
+/** A sigma level: 3 decimals, or 3 significant figures below 0.1 (a spec inside the bulk). */
+const sig = (x: number | null): string => (x === null ? 'unbounded' : x > 0 && x < 0.1 ? x.toPrecision(3) : x.toFixed(3));
+
+/** A probability, or near 1 as 1 - q (4 significant figures would round 0.99998 to 1). */
+const prob = (p: number, complement = p > 0.999): string => (p === 1 ? '1' : complement ? `1 - ${sci(1 - p, 4)}` : sci(p, 4));
+
+/** An estimate and its interval in one form: all as 1 - q when any of them is above 0.999. */
+function probWithInterval(p: number, iv: readonly [number, number], c: string): string {
+  const complement = [p, iv[0], iv[1]].some((v) => v > 0.999);
+  return `${prob(p, complement)}   ${c} [${prob(iv[0], complement)}, ${prob(iv[1], complement)}]`;
+}
+
+/** A chip yield (1 - p)^M; below the doubles' range as a power of ten from M log10(1 - p). */
+function chipYieldText(chipYield: number, failure: number, instances: number): string {
+  if (chipYield >= 1e-300) return sci(chipYield, 4);
+  return failure >= 1 ? '0 (every instance fails)' : `10^${((instances * Math.log1p(-failure)) / Math.LN10).toFixed(0)}`;
+}
 
 /** The design-point table (with a condition column when the failure is over conditions). */
 function pointsTable(rows: string[][], union: boolean): string {
@@ -58,28 +74,48 @@ export function renderTail(r: HighSigmaReport, design: Pick<Design, 'topology'>)
       pointsTable(pts, union),
     ].join('\n');
   }
+  const plain = r.method === 'monte-carlo';
+  const instances = `${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'}`;
+  // When nearly every chip fails, 1 - 1e-80 would print as 1: show the chip yield instead.
+  const chip: [string, string] =
+    r.chip.failure > 0.5
+      ? [
+          `chip yield (${instances})`,
+          `${chipYieldText(r.chip.yield, r.failureProbability, r.chip.instances)}   ${c} [${chipYieldText(r.chip.yieldInterval[0], r.interval[1], r.chip.instances)}, ${chipYieldText(r.chip.yieldInterval[1], r.interval[0], r.chip.instances)}]`,
+        ]
+      : [`chip failure (${instances})`, `${sci(r.chip.failure, 4)}   ${c} [${sci(r.chip.interval[0], 4)}, ${sci(r.chip.interval[1], 4)}]`];
+  const halfWidth = r.relativeHalfWidth === null ? 'n/a' : `${Number((r.relativeHalfWidth * 100).toPrecision(3))}%`;
+  // Mirror-image regions (a selector's competitors) are named as such; a one-sided figure has one side.
+  const somewhere = union ? ' somewhere' : '';
+  const regions: [string, string][] =
+    r.mirrorRegions !== undefined
+      ? [['failure regions', `${r.mirrorRegions} mirror images of one another (${r.designPoints[0]?.side ?? ''} and the like), one mixture centre each; the first one's point is shown${union ? ' for each condition' : ''}`]]
+      : f.magnitude === f.symbol
+        ? []
+        : [['by side', `+spec${somewhere} ${sci(r.high, 4)}, -spec${somewhere} ${sci(r.low, 4)}`]];
   return [
     renderPairs([
+      ...(plain ? [['method', `plain Monte Carlo with a Clopper-Pearson interval: ${r.methodReason ?? ''}. For the whole distribution use \`twinfet run\``] as [string, string]] : []),
       [`spec ${f.magnitude} <=`, f.format(r.spec)],
-      ['failure probability', `${sci(r.failureProbability, 4)}   ${c} [${sci(r.interval[0], 4)}, ${sci(r.interval[1], 4)}]`],
+      ['failure probability', `${probWithInterval(r.failureProbability, r.interval, c)}${plain ? ' (Clopper-Pearson)' : ''}`],
       ['equivalent sigma level', `${sig(r.sigmaLevel)}   ${c} [${sig(r.sigmaLevelInterval[0])}, ${sig(r.sigmaLevelInterval[1])}] (two-sided)`],
       ...(union
-        ? ([
-            ['over', `all ${r.conditions!.length} conditions: a sample fails when it fails at one condition at least (mixture over every condition's failure points)`],
-            ['by side', `+spec somewhere ${sci(r.high, 4)}, -spec somewhere ${sci(r.low, 4)}`],
-            ['FORM estimate', `${sci(r.form.failureProbability, 4)} (sum over the failure points: Boole's bound on the union of the linearised regions; ${r.form.sigmaLevel.toFixed(3)} sigma)`],
-          ] as [string, string][])
-        : ([
-            ['by side', `+spec ${sci(r.high, 4)}, -spec ${sci(r.low, 4)}`],
-            ['FORM estimate', `${sci(r.form.failureProbability, 4)} (${r.form.sigmaLevel.toFixed(3)} sigma)`],
-          ] as [string, string][])),
-      [`chip failure (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, `${sci(r.chip.failure, 4)}   ${c} [${sci(r.chip.interval[0], 4)}, ${sci(r.chip.interval[1], 4)}]`],
-      ['samples', `${r.samples} (${r.hits} failing; stop rule ${r.stopRule}; relative half-width ${r.relativeHalfWidth === null ? 'n/a' : (r.relativeHalfWidth * 100).toFixed(2) + '%'})`],
-      ['figure of merit', `relative variance per sample ${r.relativeVariancePerSample === null ? 'n/a' : r.relativeVariancePerSample.toFixed(2)}; plain Monte Carlo would need ${r.equivalentPlainSamples === null ? 'n/a' : sci(r.equivalentPlainSamples, 3)} samples for the same interval`],
+        ? ([['over', `all ${r.conditions!.length} conditions: a sample fails when it fails at one condition at least (${plain ? 'the same draws at every condition' : "mixture over every condition's failure points"})`]] as [string, string][])
+        : []),
+      ...regions,
+      [
+        union ? 'FORM estimate (sum over conditions)' : r.mirrorRegions === undefined ? 'FORM estimate' : 'FORM estimate (sum over regions)',
+        `${prob(r.form.failureProbability)} (${union ? "Boole's bound on the union of the linearised regions; " : ''}${sig(r.form.sigmaLevel)} sigma)`,
+      ],
+      chip,
+      ['samples', `${r.samples} (${r.hits} failing; stop rule ${r.stopRule}; relative half-width ${halfWidth})`],
+      ...(plain
+        ? []
+        : [['figure of merit', `relative variance per sample ${r.relativeVariancePerSample === null ? 'n/a' : r.relativeVariancePerSample.toFixed(2)}; plain Monte Carlo would need ${r.equivalentPlainSamples === null ? 'n/a' : sci(r.equivalentPlainSamples, 3)} samples for the same interval`] as [string, string]]),
       ['time', `${r.seconds.toFixed(3)} s, seed ${r.seed}`],
     ]),
     '',
-    ...(union ? ['each condition on its own (the same weighted samples)', conditionRows(r), ''] : []),
+    ...(union ? [`each condition on its own (the same ${plain ? '' : 'weighted '}samples)`, conditionRows(r), ''] : []),
     'most probable failure points (standard-normal space; the largest coordinates)',
     pointsTable(pts, union),
     ...(r.nonConverged > 0 ? [`warning: ${r.nonConverged} sample(s) whose balance solve did not converge were left out`] : []),
@@ -107,7 +143,7 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
   withCommonOptions(
     program
       .command('tail')
-      .description('high-sigma failure probability P(|Vos| > spec) (or of the current error) by importance sampling about the most probable failure points')
+      .description('high-sigma failure probability P(|Vos| > spec) (or of the current error, or P(L > separation) for a selector) by importance sampling about the most probable failure points')
       .argument('<design>', 'design file (YAML or JSON)')
       .option('--spec <V>', "limit overriding the design's spec, e.g. 20mV (an offset) or 1% (a current error)")
       .option('--rel-error <E>', 'stop when the interval half-width is this fraction of the estimate (default 0.05)')
@@ -144,7 +180,7 @@ export function registerTail(program: Command, io: Io, setExit: (code: number) =
     assertFinite(report);
     if (flags.json === true) printJson(io, { design: designSummary(design), figure: figureSummary(design), ...figureNamed(report, design) });
     else {
-      io.out(`${headerLine(design, { withTemperature: false })}\nimportance sampling on the exact model\n\n${renderTail(report, design)}`);
+      io.out(`${headerLine(design)}\n${report.method === 'monte-carlo' ? 'plain Monte Carlo' : 'importance sampling'} on the exact model\n\n${renderTail(report, design)}`);
     }
     setExit(0);
   });

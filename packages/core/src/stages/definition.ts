@@ -36,7 +36,11 @@ export interface BlockDefinition {
   readonly key: string;
   /** MOS devices (polarity, w, l) or resistor bodies (w, l). */
   readonly kind: 'mos' | 'resistor';
-  /** The element names, in sample order (`M1`, `M2`; `R1`, `R2`). */
+  /**
+   * The element names, in sample order (`M1`, `M2`; `R1`, `R2`). A block whose size a field sets
+   * (a selector's `cells`) lists them symbolically; count a design's elements from its stage's
+   * variables.
+   */
   readonly elements: readonly string[];
   /** Human label ("input pair", "mirror load"). */
   readonly label: string;
@@ -74,6 +78,8 @@ export interface FigureDefinition {
   readonly limits: readonly [number, number];
   /** Example of the spec line (`offset: 10 mV`). */
   readonly example: string;
+  /** Words reports print beside the figure's statistics (why its distribution is skewed, ...). */
+  readonly note?: string;
 }
 
 /** Operating point of one MOS device at balance with no mismatch. */
@@ -141,14 +147,59 @@ export interface FailureComponent {
   readonly evaluate: (u: Float64Array, base: number) => number;
 }
 
+/**
+ * The distribution of a linearised figure that is not the Gaussian of its sensitivities. The
+ * sensitivities then belong to one representative variable x, and `scale` below is their sigma
+ * s = sqrt(sum_j (dx/du_j)^2).
+ * - `selection`: the figure is x_1 - min_{j=2..k} x_j with x_1 .. x_k independent N(0, s^2),
+ *   so P(figure <= D) is Bechhofer's probability of a correct selection of the best of k normal
+ *   populations at separation D (Bechhofer, Ann. Math. Statist. 25(1), 1954).
+ */
+export interface LinearisedLaw {
+  readonly kind: 'selection';
+  /** k, the number of populations compared. */
+  readonly populations: number;
+}
+
+/**
+ * Failure regions that are images of one another under exchanging groups of variables (the
+ * cells of a selector). The variables fall into dimension / groupSize groups of `groupSize`
+ * consecutive variables; group 0 belongs to every region, and `failureComponents(limit)[c]` is
+ * the region of group c + 1, the image of region 0 under swapping groups 1 and c + 1. Region 0's
+ * design point then has every group from 2 on equal, so it can be searched in a space of
+ * 3 groups and mirrored to the others.
+ */
+export interface FailureSymmetry {
+  readonly groupSize: number;
+}
+
+/** A stage's transfer curve: one output against one input, for reports and plots. */
+export interface ResponseCurve {
+  /** What the output is ("winner's share of the tail"). */
+  readonly label: string;
+  /** What the input is, in the figure's unit (`lead`). */
+  readonly input: string;
+  /** The output for the draws u[base .. base + dimension) at input x (a fraction); NaN if not evaluated. */
+  evaluate(u: Float64Array, base: number, x: number): number;
+}
+
 /** What a stage module's `compile` returns: constants hoisted, the hot figure functions, the linearised picture. */
 export interface StageModel {
   /** U_T at the design temperature, V. */
   readonly thermalVoltage: number;
   /** The independent standard-normal variables of one sample, in sample order. */
   readonly variables: readonly RandomVariable[];
-  /** d(figure)/du at u = 0, one per variable (figure units per unit standard deviation). */
+  /**
+   * d(figure)/du at u = 0, one per variable (figure units per unit standard deviation); for a
+   * stage with a `linearisedLaw`, those of the law's representative variable.
+   */
   readonly sensitivities: Float64Array;
+  /** The linearised figure's distribution when it is not Gaussian (default: Gaussian, `sided`). */
+  readonly linearisedLaw?: LinearisedLaw;
+  /** Set when the failure components are mirror images of one another (see FailureSymmetry). */
+  readonly failureSymmetry?: FailureSymmetry;
+  /** The stage's transfer curve, where it has one worth reporting. */
+  readonly response?: ResponseCurve;
   readonly operatingPoint: readonly DeviceOperatingPoint[];
   /** Resistors, for stages that have them. */
   readonly resistors?: readonly ResistorOperatingPoint[];

@@ -1,6 +1,7 @@
 import type { Design } from '../design.js';
-import { ekvInverseDifference, normalisedGmOverId } from '../ekv.js';
+import { ekvInverseOfRoot, lnExpm1OverS, normalisedGmOverId } from '../ekv.js';
 import { deviceBlock, deviceConstants, deviceOperatingPoint, deviceVariables, geometryWarnings, tailCurrent } from '../elements.js';
+import { EXPM1_SMALL_LIMIT, expm1Small, expSmall } from '../expSmall.js';
 import { thermalVoltage } from '../thermal.js';
 import { INPUT_PAIR, OFFSET_FIGURE, otherPolarity, TAIL_FIELD } from './common.js';
 import type { BlockDefinition, StageDefinition, StageModel } from './definition.js';
@@ -51,9 +52,11 @@ function compileMirrorPair(design: Design): StageModel {
   const tol = MIRROR_TOLERANCE;
   const maxIter = MIRROR_MAX_ITERATIONS;
 
-  // The batch is solved in phases, each a loop over independent samples (first guesses, then
-  // Newton rounds over the samples still active, then the offsets), so the CPU overlaps the
-  // transcendental calls of neighbouring samples instead of waiting on one sample's chain.
+  // The batch is solved in passes over the block, numpy-fashion: each pass is a loop whose
+  // iterations are independent and whose transcendental calls do not wait on one another (a
+  // chain such as expm1 -> log1p inside one iteration leaves the CPU waiting on its latency;
+  // in separate passes the calls of neighbouring samples overlap). Every value is computed by
+  // the same expression as in a per-sample loop, so the bits do not depend on the passes.
   // Scratch arrays only grow; they never carry results from one call to the next.
   let cap = 0;
   let A3 = new Float64Array(0);
@@ -64,7 +67,11 @@ function compileMirrorPair(design: Design): StageModel {
   let LO = A3;
   let HI = A3;
   let L4 = A3;
+  let EM = A3;
+  let X1 = A3;
+  let X2 = A3;
   let ACTIVE = new Int32Array(0);
+  let KIND = new Int32Array(0);
   const ensure = (n: number): void => {
     if (n <= cap) return;
     cap = Math.max(n, 2 * cap);
@@ -76,26 +83,34 @@ function compileMirrorPair(design: Design): StageModel {
     LO = new Float64Array(cap);
     HI = new Float64Array(cap);
     L4 = new Float64Array(cap);
+    EM = new Float64Array(cap);
+    X1 = new Float64Array(cap);
+    X2 = new Float64Array(cap);
     ACTIVE = new Int32Array(cap);
+    KIND = new Int32Array(cap);
   };
 
   const figures = (u: Float64Array, count: number, out: Float64Array, outBase: number): number => {
     ensure(count);
+    // Pass 1: the load's current factors (their exponents are a few percent: expSmall's
+    // polynomial) and e^{-d/2} (an exp call; d/2 is often beyond its range).
     for (let i = 0, b = 0; i < count; i++, b += 8) {
-      const a3 = a0 * Math.exp(bRL * u[b + 4]! + bSL * u[b + 5]!);
-      const a4 = a0 * Math.exp(bRL * u[b + 6]! + bSL * u[b + 7]!);
+      A3[i] = a0 * expSmall(bRL * u[b + 4]! + bSL * u[b + 5]!);
+      A4[i] = a0 * expSmall(bRL * u[b + 6]! + bSL * u[b + 7]!);
       const hd = 0.5 * dScale * (u[b + 6]! - u[b + 4]!);
-      // First guess: with L4 ~ s - gamma d/2, h(s) = 0 is a quadratic with a closed-form root;
-      // its error is second order in the mismatch, so Newton needs about one step from it.
+      HD[i] = hd;
+      DX[i] = Math.exp(-hd);
+    }
+    // Pass 2: first guess. With L4 ~ s - gamma d/2, h(s) = 0 is a quadratic with a closed-form
+    // root; its error is second order in the mismatch, so Newton needs about one step from it.
+    for (let i = 0; i < count; i++) {
+      const a3 = A3[i]!;
+      const a4 = A4[i]!;
       const hi = 1 / Math.sqrt(a3);
-      const ghd = gamma * hd;
+      const ghd = gamma * HD[i]!;
       const disc = a3 + a4 - a3 * a4 * ghd * ghd;
       let s = disc > 0 ? (a4 * ghd + Math.sqrt(disc)) / (a3 + a4) : sStart;
       if (!(s > 0 && s < hi)) s = 0.5 * hi;
-      A3[i] = a3;
-      A4[i] = a4;
-      HD[i] = hd;
-      DX[i] = Math.exp(-hd);
       S[i] = s;
       LO[i] = 0;
       HI[i] = hi;
@@ -105,6 +120,17 @@ function compileMirrorPair(design: Design): StageModel {
     // h(s) = a3 s^2 + a4 L4^2 - 1 with L4 = ln(1 + e^{v4/2}) = log1p(expm1(s) e^{-d/2}).
     let active = count;
     for (let k = 0; k < maxIter && active > 0; k++) {
+      // Passes 3 and 4: expm1(s), then L4 = log1p(expm1(s) D) (s > 30 is handled in pass 5).
+      for (let j = 0; j < active; j++) {
+        const i = ACTIVE[j]!;
+        const s = S[i]!;
+        if (s <= 30) EM[i] = Math.expm1(s);
+      }
+      for (let j = 0; j < active; j++) {
+        const i = ACTIVE[j]!;
+        if (S[i]! <= 30) L4[i] = Math.log1p(EM[i]! * DX[i]!);
+      }
+      // Pass 5: the guarded Newton step.
       let still = 0;
       for (let j = 0; j < active; j++) {
         const i = ACTIVE[j]!;
@@ -114,9 +140,9 @@ function compileMirrorPair(design: Design): StageModel {
         let dl4: number;
         let d2l4 = Number.NaN; // second derivative, where it is cheap (below)
         if (s <= 30) {
-          const em = Math.expm1(s);
+          const em = EM[i]!;
           const ey = em * dexp;
-          l4 = Math.log1p(ey);
+          l4 = L4[i]!;
           const q = 1 / (1 + ey);
           dl4 = dexp * (em + 1) * q;
           d2l4 = dl4 * (1 - dl4); // = e^s D (1 - D) / (1 + (e^s - 1) D)^2
@@ -127,8 +153,8 @@ function compileMirrorPair(design: Design): StageModel {
           if (y > 0) { const e = Math.exp(-y); l4 = y + Math.log1p(e); g = 1 / (1 + e); }
           else { const e = Math.exp(y); l4 = Math.log1p(e); g = e / (1 + e); }
           dl4 = g / -Math.expm1(-s); // dy/ds = 1/(1 - e^{-s})
+          L4[i] = l4;
         }
-        L4[i] = l4;
         const a3 = A3[i]!;
         const a4 = A4[i]!;
         const h = a3 * s * s + a4 * l4 * l4 - 1;
@@ -160,19 +186,56 @@ function compileMirrorPair(design: Design): StageModel {
       active = still;
     }
     for (let j = 0; j < active; j++) L4[ACTIVE[j]!] = Number.NaN; // not converged: reported as NaN
-    let failed = 0;
+    // sqrt(IC1) = s sqrt(a3 I_B/I_S1) and sqrt(IC2) = L4 sqrt(a4 I_B/I_S2) (I2 = I4); then
+    // v1 - v2 as ekvInverseDifference computes it, its calls spread over passes 7 and 8.
+    // Pass 6: s1 and s2 (their exponents are differences of current-factor deviates: expSmall).
     for (let i = 0, b = 0; i < count; i++, b += 8) {
-      // sqrt(IC1) = s sqrt(a3 I_B/I_S1) and sqrt(IC2) = L4 sqrt(a4 I_B/I_S2) (I2 = I4): the log of
-      // their ratio is ln(s/L4) plus the mismatch exponents, so at most one log call is needed.
-      const s = S[i]!;
-      const l4 = L4[i]!;
       const z3 = bRL * u[b + 4]! + bSL * u[b + 5]!;
       const z4 = bRL * u[b + 6]! + bSL * u[b + 7]!;
       const q1 = 0.5 * (z3 - (bRIn * u[b]! + bSIn * u[b + 1]!));
       const q2 = 0.5 * (z4 - (bRIn * u[b + 2]! + bSIn * u[b + 3]!));
-      const s1 = s * c0 * Math.exp(q1);
-      const s2 = l4 * c0 * Math.exp(q2);
-      const dv = ekvInverseDifference(s1, s2, s1 <= 1 && s2 <= 1 ? Math.log(s / l4) + q1 - q2 : Number.NaN);
+      A3[i] = S[i]! * c0 * expSmall(q1);
+      A4[i] = L4[i]! * c0 * expSmall(q2);
+      HD[i] = q1;
+      DX[i] = q2;
+    }
+    // Pass 7: each sample's region: both sides at or below s = 1 need the log of s/L4 (pass 8).
+    // Both above, with v = 2 ln(e^s - 1): v1 - v2 = 2 log1p(expm1(s1 - s2) (1 + 1/expm1(s2))),
+    // one expm1 call here and, for |s1 - s2| <= 1/4, a polynomial for expm1(s1 - s2) (pass 8);
+    // a wider split keeps ekvInverseDifference's 2 (s1 - s2) + 2 ln(expm1(-s1)/expm1(-s2)).
+    // Otherwise (or NaN), v1 - v2 directly.
+    for (let i = 0; i < count; i++) {
+      const s1 = A3[i]!;
+      const s2 = A4[i]!;
+      if (s1 <= 1 && s2 <= 1) {
+        KIND[i] = 0;
+        X1[i] = S[i]! / L4[i]!;
+      } else if (s1 > 1 && s2 > 1) {
+        const split = s1 - s2;
+        if (split >= -EXPM1_SMALL_LIMIT && split <= EXPM1_SMALL_LIMIT) {
+          KIND[i] = 1;
+          X1[i] = Math.expm1(s2);
+        } else {
+          KIND[i] = 3;
+          X1[i] = Math.expm1(-s1);
+          X2[i] = Math.expm1(-s2);
+        }
+      } else {
+        KIND[i] = 2;
+        X1[i] = ekvInverseOfRoot(s1) - ekvInverseOfRoot(s2);
+      }
+    }
+    // Pass 8: the one log (or log1p), v1 - v2 and Vos.
+    let failed = 0;
+    for (let i = 0, b = 0; i < count; i++, b += 8) {
+      const kind = KIND[i]!;
+      const s1 = A3[i]!;
+      const s2 = A4[i]!;
+      let dv: number;
+      if (kind === 0) dv = 2 * (Math.log(X1[i]!) + HD[i]! - DX[i]!) + 2 * (lnExpm1OverS(s1) - lnExpm1OverS(s2));
+      else if (kind === 1) dv = 2 * Math.log1p(expm1Small(s1 - s2) * (1 + 1 / X1[i]!));
+      else if (kind === 3) dv = 2 * (s1 - s2) + 2 * Math.log(X1[i]! / X2[i]!);
+      else dv = X1[i]!;
       const vos = sign * (sVtIn * (u[b]! - u[b + 2]!) + nutIn * dv);
       // NaN from a failed solve, or a side whose current underflowed to zero (no finite
       // balance): reported as non-converged, never as a number or +-Infinity.

@@ -9,10 +9,11 @@ import type { StageDefinition } from './definition.js';
 import { FOLDED_STAGE } from './folded.js';
 import { MIRROR_STAGE } from './mirror.js';
 import { RESISTOR_STAGE } from './resistor.js';
+import { SELECTOR_STAGE } from './selector.js';
 import { SIMPLE_STAGE } from './simple.js';
 
 /** Every stage type, in the order help texts list them. */
-export const STAGES: readonly StageDefinition[] = [SIMPLE_STAGE, MIRROR_STAGE, RESISTOR_STAGE, FOLDED_STAGE, CURRENT_MIRROR_STAGE];
+export const STAGES: readonly StageDefinition[] = [SIMPLE_STAGE, MIRROR_STAGE, RESISTOR_STAGE, FOLDED_STAGE, CURRENT_MIRROR_STAGE, SELECTOR_STAGE];
 
 /** The topology names, as a design file writes them. */
 export const TOPOLOGIES: readonly string[] = STAGES.map((s) => s.topology);

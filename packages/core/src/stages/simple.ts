@@ -1,5 +1,5 @@
 import type { Design } from '../design.js';
-import { ekvInverseDifference, normalisedGmOverId } from '../ekv.js';
+import { ekvInverseDifference, ekvInverseDifferenceNear, NEAR_HALF_WIDTH, normalisedGmOverId } from '../ekv.js';
 import { deviceBlock, deviceConstants, deviceOperatingPoint, deviceVariables, geometryWarnings, tailCurrent } from '../elements.js';
 import { thermalVoltage } from '../thermal.js';
 import { INPUT_PAIR, OFFSET_FIGURE, TAIL_FIELD } from './common.js';
@@ -28,13 +28,21 @@ function compileSimplePair(design: Design): StageModel {
   // sqrt(IC_i) = sqrt(IC0) * exp(-z_beta,i / 2): one exp per device, no sqrt per sample.
   const s0 = Math.sqrt(op1.ic);
 
+  // Below IC ~ 0.94 and for the usual few-percent current factors, v1 - v2 is a short series in
+  // the exponents x_i = -z_i/2 (no exp call); other draws take the closed form.
+  const near = ekvInverseDifferenceNear(s0);
   const figure = (u: Float64Array, base: number): number => {
     const a = u[base]!;
     const c2 = u[base + 2]!;
     const z1 = bR * a + bS * u[base + 1]!;
     const z2 = bR * c2 + bS * u[base + 3]!;
+    const x1 = -0.5 * z1;
+    const x2 = -0.5 * z2;
     // ln(s1/s2) = -(z1 - z2)/2 exactly, so weak and moderate inversion need no log call.
-    const dv = ekvInverseDifference(s0 * Math.exp(-0.5 * z1), s0 * Math.exp(-0.5 * z2), -0.5 * (z1 - z2));
+    const dv =
+      near !== undefined && x1 >= -NEAR_HALF_WIDTH && x1 <= NEAR_HALF_WIDTH && x2 >= -NEAR_HALF_WIDTH && x2 <= NEAR_HALF_WIDTH
+        ? near(x1, x2)
+        : ekvInverseDifference(s0 * Math.exp(x1), s0 * Math.exp(x2), -0.5 * (z1 - z2));
     const vos = sign * (sVt * (a - c2) + nut * dv);
     // A current factor so far out that exp overflows (sigma(dbeta/beta) of hundreds) has no
     // finite balance: NaN, counted as not evaluated like a failed mirror solve, never +-Infinity.

@@ -7,11 +7,13 @@ import { conditionSummary, defaultDriftPair, InputError, namedDriftPair, type Co
 import type { ConditionsPlan, ConditionsResult } from '../engine/messages.js';
 import { clopperPearson } from '../stats/clopperPearson.js';
 import { correlation, emptyCoMoments, mergeCoMoments, type CoMoments } from '../stats/comoments.js';
-import { createHistogram, exactQuantile, mergeHistograms, quantileFromHistogram, type Histogram } from '../stats/histogram.js';
-import { emptyMoments, mergeMoments, type Moments } from '../stats/moments.js';
-import { sigmaInterval } from '../stats/sigmaInterval.js';
+import { createHistogram, mergeHistograms, quantileFromHistogram, type Histogram } from '../stats/histogram.js';
+import { emptyMoments, kurtosis, mergeMoments, type Moments } from '../stats/moments.js';
+import { selectQuantiles, withoutNaN } from '../stats/selectQuantiles.js';
+import { sigmaIntervalBonett, sigmaIntervalChiSquare } from '../stats/sigmaInterval.js';
 import { wilson } from '../stats/wilson.js';
-import { linearisedSummary } from './linearisedSummary.js';
+import { linearisedEstimate, linearisedSummary } from './linearisedSummary.js';
+import { BONETT_FROM } from './runReport.js';
 
 /** Histogram bins of the drift (used for its quantiles only when the drifts are not kept). */
 export const DRIFT_HISTOGRAM_BINS = 2000;
@@ -28,10 +30,8 @@ export type ConditionResult = {
   /** Samples whose figure was evaluated at this condition. */
   readonly evaluated: number;
   readonly nonConverged: number;
-  readonly offset: {
+  readonly offset: SigmaFigures & {
     readonly mean: number;
-    readonly sigma: number;
-    readonly sigmaInterval: readonly [number, number];
     readonly min: number;
     readonly max: number;
   };
@@ -45,12 +45,21 @@ export type ConditionResult = {
   /** Of the instances failing at some condition: how many fail here, and how many fail here only. */
   readonly failing: number;
   readonly onlyFailing: number;
-  /** The linearised sigma and the Gaussian yield at this condition. */
-  readonly linearised: { readonly sigma: number; readonly gaussianYield: number; readonly gaussianFailure: number };
+  /** The linearised sigma, and the yield and failure of the figure's linearised law (Gaussian, Bechhofer) at this condition. */
+  readonly linearised: { readonly sigma: number; readonly law: string; readonly yield: number; readonly failure: number };
 } & Readonly<Record<string, unknown>>;
 
+/** Sigma, its interval (Bonett's as in the run report, chi-square below BONETT_FROM samples or for a constant figure) and the kurtosis. */
+export interface SigmaFigures {
+  readonly sigma: number;
+  readonly sigmaInterval: readonly [number, number];
+  readonly sigmaIntervalMethod: 'bonett' | 'chi-square';
+  /** n M4 / M2^2 (null when the figure does not vary). */
+  readonly kurtosis: number | null;
+}
+
 /** Per-sample drift between two conditions, (x_to - x_from) / (T_to - T_from), in the figure's unit per kelvin. */
-export interface DriftReport {
+export interface DriftReport extends SigmaFigures {
   readonly from: string;
   readonly to: string;
   /** Temperatures of the two conditions, K. */
@@ -58,8 +67,6 @@ export interface DriftReport {
   readonly toTemperature: number;
   readonly samples: number;
   readonly mean: number;
-  readonly sigma: number;
-  readonly sigmaInterval: readonly [number, number];
   readonly min: number;
   readonly max: number;
   readonly quantileMethod: 'exact' | 'histogram';
@@ -198,6 +205,16 @@ function sd(m: Moments): number {
   return m.count < 2 ? 0 : Math.sqrt(m.m2 / (m.count - 1));
 }
 
+/** Sigma of moments of at least two samples, with its interval as the run report gives the design's. */
+function sigmaFigures(m: Moments, confidence: number): SigmaFigures {
+  const sigma = sd(m);
+  const n = m.count;
+  if (!(sigma > 0)) return { sigma, sigmaInterval: [sigma, sigma], sigmaIntervalMethod: 'chi-square', kurtosis: null };
+  const k = kurtosis(m);
+  if (n >= BONETT_FROM && Number.isFinite(k)) return { sigma, sigmaInterval: sigmaIntervalBonett(sigma, n, k, confidence), sigmaIntervalMethod: 'bonett', kurtosis: k };
+  return { sigma, sigmaInterval: sigmaIntervalChiSquare(sigma, n, confidence), sigmaIntervalMethod: 'chi-square', kurtosis: Number.isFinite(k) ? k : null };
+}
+
 /**
  * The report at the conditions from the merged totals.
  * @throws InputError when fewer than two samples could be evaluated at some condition
@@ -219,21 +236,22 @@ export function conditionsOutcome(
     if (n < 2) {
       throw new InputError(`conditions[${i}]`, `only ${n} figure(s) could be evaluated at condition ${cs.condition.name} (the balance solve failed); check its bias and temperature`);
     }
-    const sigma = sd(p.moments);
+    const spread = sigmaFigures(p.moments, confidence);
     const failures = p.high + p.low;
     const fi = interval(failures, n);
-    const lin = linearisedSummary(cs.stage, spec);
+    const summary = linearisedSummary(cs.stage, spec);
+    const lin = linearisedEstimate(summary);
     return {
       ...conditionSummary(design, cs.condition),
       name: cs.condition.name,
       temperature: cs.design.temperature,
       evaluated: n,
       nonConverged: p.nonConverged,
-      offset: { mean: p.moments.mean, sigma, sigmaInterval: sigmaInterval(sigma, n, confidence), min: p.moments.min, max: p.moments.max },
+      offset: { mean: p.moments.mean, ...spread, min: p.moments.min, max: p.moments.max },
       yield: { failures, failuresHigh: p.high, failuresLow: p.low, estimate: 1 - failures / n, interval: [1 - fi[1], 1 - fi[0]] },
       failing: p.failing,
       onlyFailing: p.only,
-      linearised: { sigma: lin.sigma, gaussianYield: lin.gaussian.yield, gaussianFailure: lin.gaussian.failure },
+      linearised: { sigma: summary.sigma, law: lin.name, yield: 1 - lin.failure, failure: lin.failure },
     };
   });
   const nAll = t.evaluatedAll;
@@ -267,13 +285,12 @@ function driftReport(stages: readonly ConditionStage[], pair: DriftPair, d: NonN
   const m = d.moments;
   const n = m.count;
   if (n < 2) throw new InputError('drift', `only ${n} sample(s) could be evaluated at both ${a.condition.name} and ${b.condition.name}; no drift can be given`);
-  const sigma = sd(m);
   let quantileMethod: DriftReport['quantileMethod'] = 'histogram';
   let quantiles: { p: number; value: number | null }[];
   if (d.values !== undefined) {
     quantileMethod = 'exact';
-    const sorted = Float64Array.from(d.values.subarray(0, done).filter((x) => x === x)).sort();
-    quantiles = DRIFT_QUANTILE_LEVELS.map((p) => ({ p, value: exactQuantile(sorted, p) }));
+    const values = selectQuantiles(withoutNaN(d.values.subarray(0, done)), DRIFT_QUANTILE_LEVELS);
+    quantiles = DRIFT_QUANTILE_LEVELS.map((p, i) => ({ p, value: values[i]! }));
   } else {
     quantiles = DRIFT_QUANTILE_LEVELS.map((p) => {
       const v = quantileFromHistogram(d.histogram, p);
@@ -287,8 +304,7 @@ function driftReport(stages: readonly ConditionStage[], pair: DriftPair, d: NonN
     toTemperature: b.design.temperature,
     samples: n,
     mean: m.mean,
-    sigma,
-    sigmaInterval: sigmaInterval(sigma, n, confidence),
+    ...sigmaFigures(m, confidence),
     min: m.min,
     max: m.max,
     quantileMethod,

@@ -51,8 +51,13 @@ function norm(u: Float64Array): number {
  */
 function startDirection(stage: Stage, f: Evaluate): Float64Array {
   if (f === stage.figure) return stage.sensitivities;
-  const g = new Float64Array(stage.dimension);
-  gradient(f, new Float64Array(stage.dimension), g, new Float64Array(stage.dimension));
+  return gradientAtZero(f, stage.dimension);
+}
+
+/** The central-difference gradient of f at u = 0 in `dim` variables. */
+export function gradientAtZero(f: Evaluate, dim: number): Float64Array {
+  const g = new Float64Array(dim);
+  gradient(f, new Float64Array(dim), g, new Float64Array(dim));
   return g;
 }
 
@@ -64,10 +69,16 @@ function startDirection(stage: Stage, f: Evaluate): Float64Array {
  * direction finds a boundary point instead (reported as such).
  */
 export function findDesignPoint(stage: Stage, component: FailureComponent): DesignPoint {
-  const dim = stage.dimension;
+  return searchDesignPoint(stage.dimension, component, startDirection(stage, component.evaluate));
+}
+
+/**
+ * The HL-RF search of findDesignPoint in a standard-normal space of `dim` variables, from the
+ * direction `s` (the function's gradient at 0, or an approximation of it).
+ */
+export function searchDesignPoint(dim: number, component: FailureComponent, s: Float64Array): DesignPoint {
   const f = component.evaluate;
   const target = component.target;
-  const s = startDirection(stage, f);
   let s2 = 0;
   for (const x of s) s2 += x * x;
   const u = new Float64Array(dim);

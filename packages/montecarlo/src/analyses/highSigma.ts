@@ -1,11 +1,14 @@
 import { compileConditions, compileStage, InputError, specLimit, variableDeviation, type Design, type Stage } from '@twinfet/core';
 import { findDesignPoint, type DesignPoint } from './designPoint.js';
-import type { ImportanceResult, ImportanceTask } from '../engine/messages.js';
+import { findMirroredDesignPoint, type MirroredDesignPoint } from './mirroredDesignPoint.js';
+import type { ImportanceResult, ImportanceTask, MirroredCentres } from '../engine/messages.js';
 import { normalQuantile, sigmaLevel, sigmaLevelOfTails } from '../stats/normal.js';
 import { createExecutor, defaultWorkers, inThreadExecutor, type Executor } from '../engine/pool.js';
 import { runChunks, taskList } from '../engine/schedule.js';
 import { seedText } from '../random/seed.js';
-import { chipFailure } from '../stats/yield.js';
+import { chipFailure, chipYieldFromFailure } from '../stats/yield.js';
+import { BULK_DISTANCE, BULK_FAILURE, bulkFailure } from './bulkFailure.js';
+import { clopperPearson } from '../stats/clopperPearson.js';
 
 /** Importance-sampling chunk size: small, so the stop rule can act after a few thousand samples. */
 export const IMPORTANCE_CHUNK = 4096;
@@ -55,6 +58,15 @@ export interface ReportedDesignPoint {
 /** The high-sigma failure estimate. */
 export interface HighSigmaReport {
   readonly spec: number;
+  /**
+   * How the failure probability was estimated: importance sampling, or plain Monte Carlo with a
+   * Clopper-Pearson interval when the spec lies inside the bulk of the distribution (a failure
+   * point closer than 1.5 sigma, or a failure probability above 0.1), where importance sampling
+   * gains nothing and its normal interval degenerates near p = 1.
+   */
+  readonly method: 'importance-sampling' | 'monte-carlo';
+  /** Why plain Monte Carlo was used (null for importance sampling). */
+  readonly methodReason: string | null;
   readonly failureProbability: number;
   readonly standardError: number;
   readonly interval: readonly [number, number];
@@ -79,26 +91,42 @@ export interface HighSigmaReport {
    * `sigmaLevel` and `form.sigmaLevel` come from the design points' distances.
    */
   readonly belowDoubleRange: boolean;
-  /** Relative variance per sample, var(w 1{fail}) / p^2: the figure of merit. */
+  /** Relative variance per sample, var(w 1{fail}) / p^2: the figure of merit ((1 - p) / p for plain Monte Carlo). */
   readonly relativeVariancePerSample: number | null;
-  /** Plain Monte Carlo samples for the same relative half-width h: z^2 (1 - p) / (p h^2). */
+  /** Plain Monte Carlo samples for the same relative half-width h: z^2 (1 - p) / (p h^2) (null when this is plain Monte Carlo). */
   readonly equivalentPlainSamples: number | null;
   readonly designPoints: readonly ReportedDesignPoint[];
+  /**
+   * Set when the failure regions are mirror images of one another (a selector's competitors):
+   * how many there are. `designPoints` then holds the first region's point only; every other
+   * region's is its mirror image, at the same distance, and the mixture has one centre per region.
+   */
+  readonly mirrorRegions?: number;
   readonly form: { readonly failureProbability: number; readonly sigmaLevel: number };
-  readonly chip: { readonly instances: number; readonly failure: number; readonly interval: readonly [number, number] };
+  /**
+   * Chip failure 1 - (1 - p)^M over M instances and its interval; the chip yield (1 - p)^M and
+   * its interval, computed directly so that a chip yield of 1e-80 is not lost as 1 - failure.
+   */
+  readonly chip: {
+    readonly instances: number;
+    readonly failure: number;
+    readonly interval: readonly [number, number];
+    readonly yield: number;
+    readonly yieldInterval: readonly [number, number];
+  };
   /**
    * With conditions: `all conditions`, and the failure above is P(fails at one condition at
    * least) from a mixture over every condition's design points; `high`/`low` are then P(beyond
    * +spec somewhere) and P(beyond -spec somewhere), and the FORM figure is the sum over points.
    */
   readonly over?: 'all conditions';
-  /** With conditions: each condition's own failure probability from the same weighted samples. */
+  /** With conditions: each condition's own failure probability from the same samples. */
   readonly conditions?: readonly {
     readonly name: string;
     readonly failureProbability: number;
     readonly standardError: number;
     readonly interval: readonly [number, number];
-    /** Sum of Phi(-distance) over this condition's design points. */
+    /** Sum of Phi(-distance) over this condition's failure regions. */
     readonly form: number;
   }[];
   readonly seconds: number;
@@ -157,13 +185,37 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
   const relError = options.relError ?? 0.05;
   const seed = seedText(options.seed);
   const z = normalQuantile(1 - (1 - confidence) / 2);
-  // With conditions the failure is the union over them: a mixture over every condition's design points.
+  // With conditions the failure is the union over them: a mixture over every condition's design
+  // points (for mirror-image regions, the equal mixture of each condition's mirrored mixture).
   const atConditions = compileConditions(design);
   const union = atConditions.length > 0;
-  const located = union
-    ? atConditions.flatMap((cs, k) => cs.stage.failureComponents(spec).map((c) => ({ point: findDesignPoint(cs.stage, c), stage: cs.stage, k })))
-    : stage.failureComponents(spec).map((c) => ({ point: findDesignPoint(stage, c), stage, k: -1 }));
-  const points = located.map((x) => x.point);
+  const symmetry = stage.failureSymmetry;
+  interface Located {
+    readonly stage: Stage;
+    /** Index of the condition (-1: the design itself). */
+    readonly k: number;
+    readonly regions: number;
+    readonly points: DesignPoint[];
+    readonly mirrored?: MirroredDesignPoint;
+  }
+  const located: Located[] = (union ? atConditions.map((cs, k) => ({ stage: cs.stage, k })) : [{ stage, k: -1 }]).map((at) => {
+    const components = at.stage.failureComponents(spec);
+    if (symmetry === undefined) return { ...at, regions: components.length, points: components.map((c) => findDesignPoint(at.stage, c)) };
+    const mirrored = findMirroredDesignPoint(at.stage, components[0]!, symmetry.groupSize);
+    return { ...at, regions: components.length, points: [mirrored.point], mirrored };
+  });
+  const points: DesignPoint[] = located.flatMap((x) => x.points);
+  const centres = (m: MirroredDesignPoint): MirroredCentres => ({ groupSize: m.groupSize, groups: m.groups, fixed: m.fixed, own: m.own, rest: m.rest });
+  const mirrorSets = located.flatMap((x) => (x.mirrored === undefined ? [] : [centres(x.mirrored)]));
+  const mixture: Pick<ImportanceTask, 'shifts' | 'mirrored' | 'mirroredSets'> =
+    symmetry === undefined ? { shifts: points.map((p) => p.u) } : union ? { shifts: [], mirroredSets: mirrorSets } : { shifts: [], mirrored: mirrorSets[0]! };
+  // Every mirror image has the same distance, so a set's FORM sum is copies of its first point's.
+  const formOf = (x: Located): number => (x.mirrored === undefined ? x.points.reduce((acc, p) => acc + p.form, 0) : x.regions * x.points[0]!.form);
+  const distancesOf = (x: Located): number[] =>
+    x.mirrored === undefined ? x.points.map((p) => p.distance) : new Array<number>(x.regions).fill(x.points[0]!.distance);
+  const regions = located[0]!.regions;
+  const reportedPoints = (): ReportedDesignPoint[] =>
+    located.flatMap((x) => x.points.map((pt) => describePoint(x.stage, pt, x.k < 0 ? undefined : atConditions[x.k]!.condition.name)));
   const byCondition = atConditions.map(() => 0);
   const byConditionSquares = atConditions.map(() => 0);
   const fixed = options.samples;
@@ -204,10 +256,78 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
     const variance = Math.max(0, sumSquares / n - ps * ps);
     return { ps, ses: Math.sqrt(variance / n), variance };
   };
-  const formTails = points.reduce((acc, p) => acc + p.form, 0);
-  const belowDoubleRange = formTails < 1e-300 && Math.exp(-logScale) === 0;
+  const formTails = located.reduce((acc, x) => acc + formOf(x), 0);
+  const nearest = Math.min(...points.map((p) => p.distance));
+  const inBulk = nearest < BULK_DISTANCE || formTails > BULK_FAILURE;
+  const belowDoubleRange = !inBulk && formTails < 1e-300 && Math.exp(-logScale) === 0;
   if (belowDoubleRange) stopRule = 'below-double-range';
+  const instances = stage.design.spec.instances;
+  const plain = async (reason: string): Promise<HighSigmaReport> => {
+    const b = await bulkFailure(design, {
+      spec,
+      seed,
+      confidence,
+      relError,
+      samples: fixed,
+      maxSamples,
+      executor,
+      mayOpenPool: ownExecutor,
+      workers: wantedWorkers,
+      signal: options.signal,
+      onProgress: options.onProgress,
+      union,
+    });
+    executor = b.executor;
+    const p = b.failures / b.samples;
+    const [lo, hi] = b.interval;
+    return {
+      spec,
+      method: 'monte-carlo',
+      methodReason: reason,
+      failureProbability: p,
+      standardError: Math.sqrt((p * (1 - p)) / b.samples),
+      interval: [lo, hi],
+      confidence,
+      sigmaLevel: p > 0 ? sigmaLevel(p) : null,
+      sigmaLevelInterval: [hi > 0 ? sigmaLevel(hi) : null, lo > 0 ? sigmaLevel(lo) : null],
+      relativeHalfWidth: p > 0 ? (hi - lo) / 2 / p : null,
+      high: b.failuresHigh / b.samples,
+      low: b.failuresLow / b.samples,
+      samples: b.samples,
+      hits: b.failures,
+      nonConverged: b.nonConverged,
+      seed,
+      stopRule: b.stopRule,
+      belowDoubleRange: false,
+      relativeVariancePerSample: p > 0 ? (1 - p) / p : null,
+      equivalentPlainSamples: null,
+      designPoints: reportedPoints(),
+      ...(symmetry === undefined ? {} : { mirrorRegions: regions }),
+      form: { failureProbability: formTails, sigmaLevel: sigmaLevelOfTails(located.flatMap(distancesOf)) },
+      chip: chipFigures(p, lo, hi, instances),
+      ...(b.byCondition === undefined
+        ? {}
+        : {
+            over: 'all conditions' as const,
+            conditions: b.byCondition.map((c, k) => {
+              const pk = c.samples > 0 ? c.failures / c.samples : 0;
+              return {
+                name: atConditions[k]!.condition.name,
+                failureProbability: pk,
+                standardError: c.samples > 0 ? Math.sqrt((pk * (1 - pk)) / c.samples) : 0,
+                interval: c.samples > 0 ? clopperPearson(c.failures, c.samples, confidence) : ([0, 1] as const),
+                form: formOf(located[k]!),
+              };
+            }),
+          }),
+      seconds: (performance.now() - started) / 1000,
+    };
+  };
   try {
+    if (inBulk) {
+      const why = nearest < BULK_DISTANCE ? `a failure point is ${nearest.toPrecision(3)} sigma from the origin` : `the FORM failure probability is ${formTails.toPrecision(3)}`;
+      return await plain(`the spec lies inside the bulk of the offset distribution (${why}; below ${BULK_DISTANCE} sigma or above ${BULK_FAILURE} importance sampling gains nothing)`);
+    }
     let round = 1;
     while (!belowDoubleRange) {
       const remaining = maxSamples - n;
@@ -218,7 +338,7 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
       let planned = 0;
       for (let c = 0; c < round && planned < remaining; c++) {
         const count = Math.min(IMPORTANCE_CHUNK, remaining - planned);
-        tasks.push({ kind: 'importance', design, seed, chunk: chunk++, count, spec, shifts: points.map((p) => p.u), logScale, ...(union ? { union: true } : {}) });
+        tasks.push({ kind: 'importance', design, seed, chunk: chunk++, count, spec, ...mixture, logScale, ...(union ? { union: true } : {}) });
         planned += count;
       }
       await runChunks(executor, taskList(tasks), consume, {
@@ -235,6 +355,10 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
       if (n >= maxSamples && fixed === undefined) stopRule = 'max-samples';
       round = Math.min(round * 2, 64);
     }
+    if (n > 0 && (sum / n) * unscale > BULK_FAILURE) {
+      // The failure points looked far enough, but the estimate says the spec is in the bulk.
+      return await plain(`the importance-sampling estimate ${((sum / n) * unscale).toPrecision(3)} is above ${BULK_FAILURE}: the spec lies inside the bulk of the offset distribution`);
+    }
   } finally {
     if (ownExecutor) await executor.close();
   }
@@ -246,12 +370,13 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
   const lo = Math.max(0, p - z * se);
   const hi = Math.min(1, p + z * se);
   const formP = formTails;
-  const instances = stage.design.spec.instances;
   const has = ps > 0;
   const relHalf = has ? (z * ses) / ps : null;
-  const formLevel = sigmaLevelOfTails(points.map((p) => p.distance));
+  const formLevel = sigmaLevelOfTails(located.flatMap(distancesOf));
   return {
     spec,
+    method: 'importance-sampling',
+    methodReason: null,
     failureProbability: p,
     standardError: se,
     interval: [lo, hi],
@@ -269,14 +394,11 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
     belowDoubleRange,
     relativeVariancePerSample: has ? variance / (ps * ps) : null,
     equivalentPlainSamples: relHalf !== null && relHalf > 0 && p > 0 ? finiteOrNull((z * z * (1 - p)) / p / relHalf / relHalf) : null,
-    designPoints: located.map((x) => describePoint(x.stage, x.point, x.k < 0 ? undefined : atConditions[x.k]!.condition.name)),
+    designPoints: reportedPoints(),
+    ...(symmetry === undefined ? {} : { mirrorRegions: regions }),
     // From the distances, not from formP: beyond ~38 sigma formP underflows to 0 and its level would be Infinity.
     form: { failureProbability: formP, sigmaLevel: formLevel },
-    chip: {
-      instances,
-      failure: chipFailure(p, instances),
-      interval: [chipFailure(lo, instances), chipFailure(hi, instances)],
-    },
+    chip: chipFigures(p, lo, hi, instances),
     ...(union
       ? {
           over: 'all conditions' as const,
@@ -290,11 +412,21 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
               failureProbability: estimate,
               standardError: sek,
               interval: [Math.max(0, estimate - z * sek), Math.min(1, estimate + z * sek)] as const,
-              form: located.filter((x) => x.k === k).reduce((a, x) => a + x.point.form, 0),
+              form: formOf(located[k]!),
             };
           }),
         }
       : {}),
     seconds: (performance.now() - started) / 1000,
+  };
+}
+
+function chipFigures(p: number, lo: number, hi: number, instances: number): HighSigmaReport['chip'] {
+  return {
+    instances,
+    failure: chipFailure(p, instances),
+    interval: [chipFailure(lo, instances), chipFailure(hi, instances)],
+    yield: chipYieldFromFailure(p, instances),
+    yieldInterval: [chipYieldFromFailure(hi, instances), chipYieldFromFailure(lo, instances)],
   };
 }

@@ -1,19 +1,21 @@
 /**
- * The report of a Monte Carlo run, assembled from the merged chunk results: the figure's moments
- * and sigma interval, exact or histogram quantiles, the yield with its interval, the chip yield,
+ * The report of a Monte Carlo run, assembled from the merged chunk results: the figure's moments,
+ * kurtosis and sigma interval (Bonett's, which holds for non-Gaussian figures), exact or histogram quantiles, the yield with its interval, the chip yield,
  * and the linearised picture beside it.
  */
 import type { ConditionStage, Stage } from '@twinfet/core';
 import { clopperPearson } from '../stats/clopperPearson.js';
-import { binWidth, createHistogram, exactQuantile, quantileFromHistogram, type Histogram } from '../stats/histogram.js';
-import type { Moments } from '../stats/moments.js';
+import { binWidth, createHistogram, quantileFromHistogram, type Histogram } from '../stats/histogram.js';
+import { selectQuantiles, withoutNaN } from '../stats/selectQuantiles.js';
+import { kurtosis, type Moments } from '../stats/moments.js';
 import { normalQuantile } from '../stats/normal.js';
-import { sigmaInterval } from '../stats/sigmaInterval.js';
+import { sigmaIntervalBonett, sigmaIntervalChiSquare } from '../stats/sigmaInterval.js';
 import { wilson } from '../stats/wilson.js';
 import { CHUNK_SIZE } from '../engine/schedule.js';
 import type { HighSigmaReport } from './highSigma.js';
 import type { LinearisedSummary } from './linearisedSummary.js';
 import type { ConditionResult, ConditionsOutcome, DriftReport } from './conditionRun.js';
+import type { ResponseSummary } from './response.js';
 
 /** Quantile levels reported for the signed figure and for its magnitude. */
 export const QUANTILE_LEVELS = [0.001, 0.01, 0.5, 0.99, 0.999] as const;
@@ -21,6 +23,8 @@ export const QUANTILE_LEVELS = [0.001, 0.01, 0.5, 0.99, 0.999] as const;
 export const AGREEMENT_Z = 4;
 /** Fewer failures than this make the yield estimate sample-limited. */
 export const FEW_FAILURES = 10;
+/** From this many evaluated samples the sigma interval is Bonett's; below, the chi-square one (too few for a kurtosis). */
+export const BONETT_FROM = 10;
 
 /** Interval method for the yield. */
 export type IntervalMethod = 'clopper-pearson' | 'wilson';
@@ -46,7 +50,16 @@ export interface RunReport {
     readonly mean: number;
     readonly meanInterval: readonly [number, number];
     readonly sigma: number;
+    /**
+     * Interval on sigma by `sigmaIntervalMethod`: Bonett's (2006), which holds for
+     * non-Gaussian offsets, from 10 evaluated samples on; chi-square below.
+     */
     readonly sigmaInterval: readonly [number, number];
+    readonly sigmaIntervalMethod: 'bonett' | 'chi-square';
+    /** The chi-square interval (exact for Gaussian offsets only), for comparison. */
+    readonly sigmaIntervalChiSquare: readonly [number, number];
+    /** Sample kurtosis n M4 / M2^2 of the offset (3 for a Gaussian; larger means heavier tails). */
+    readonly kurtosis: number;
     readonly min: number;
     readonly max: number;
     readonly quantileMethod: 'exact' | 'histogram';
@@ -55,6 +68,11 @@ export interface RunReport {
   readonly histogram: { readonly lo: number; readonly hi: number; readonly binWidth: number; readonly counts: readonly number[]; readonly underflow: number; readonly overflow: number };
   readonly analytic: LinearisedSummary & {
     readonly agreement: { readonly relativeDifference: number; readonly standardErrors: number; readonly consistent: boolean };
+    /**
+     * For a law other than the Gaussian (a selector's Bechhofer form): the Monte Carlo yield
+     * against the law's, in binomial standard errors sqrt(P (1 - P) / N) of the law's P.
+     */
+    readonly yieldAgreement?: { readonly difference: number; readonly standardErrors: number; readonly consistent: boolean };
   };
   readonly yield: {
     readonly spec: number;
@@ -87,6 +105,8 @@ export interface RunReport {
   readonly conditions?: readonly ConditionResult[];
   /** With conditions at two temperatures: the per-sample drift (null when none was taken). */
   readonly drift?: DriftReport | null;
+  /** The stage's transfer curve at the spec (a selector's winner's share), nominal and spread. */
+  readonly response?: ResponseSummary;
   readonly nonConverged: number;
   readonly seconds: number;
   readonly samplesPerSecond: number;
@@ -118,6 +138,8 @@ export interface RunTally {
   /** Every finished sample's figure (NaN where a solve failed), when kept. */
   readonly kept: Float64Array | undefined;
   readonly importance: HighSigmaReport | undefined;
+  /** The stage's transfer curve at the spec, for a stage that has one. */
+  readonly response?: ResponseSummary | undefined;
   /** performance.now() at the start of the run. */
   readonly started: number;
   /** With conditions: their statistics, and their compiled stages (for their warnings). */
@@ -125,8 +147,10 @@ export interface RunTally {
   readonly conditionStages?: readonly ConditionStage[];
 }
 
-function quantiles(sorted: Float64Array): QuantileValue[] {
-  return QUANTILE_LEVELS.map((p) => ({ p, value: exactQuantile(sorted, p) }));
+/** Exact quantiles of the kept figures (of their magnitudes with `absolute`), as a full sort would give them. */
+function quantiles(kept: Float64Array, absolute: boolean): QuantileValue[] {
+  const values = selectQuantiles(kept, QUANTILE_LEVELS, { absolute });
+  return QUANTILE_LEVELS.map((p, i) => ({ p, value: values[i]! }));
 }
 
 function histogramQuantiles(h: Histogram): QuantileValue[] {
@@ -171,18 +195,31 @@ export function assembleRunReport(stage: Stage, t: RunTally): RunReport {
   let absolute: QuantileValue[];
   if (offsets !== undefined) {
     quantileMethod = 'exact';
-    const kept = offsets.subarray(0, done).filter((x) => x === x);
-    const sorted = Float64Array.from(kept).sort();
-    signed = quantiles(sorted);
-    const abs = kept.map(Math.abs).sort();
-    absolute = quantiles(abs);
+    // The non-converged samples (NaN, already counted) are left out of the quantiles.
+    const kept = withoutNaN(offsets.subarray(0, done));
+    signed = quantiles(kept, false);
+    absolute = quantiles(kept, true);
   } else {
     signed = histogramQuantiles(histogram);
     absolute = histogramQuantiles(folded(histogram));
   }
 
-  const se = sigma / Math.sqrt(2 * (n - 1));
+  const k = kurtosis(moments);
+  const chiSquare = sigmaIntervalChiSquare(sigma, n, confidence);
+  const bonett = n >= BONETT_FROM;
+  // Standard error of s by the delta method on Var(ln s^2) = (kurtosis - (n-3)/n) / (n-1)
+  // (Bonett 2006): sigma / sqrt(2 (n-1)) for a Gaussian, wider for heavy tails.
+  const se = 0.5 * sigma * Math.sqrt(Math.max(0, k - (n - 3) / n) / (n - 1));
   const standardErrors = (sigma - analytic.sigma) / se;
+  let yieldAgreement: NonNullable<RunReport['analytic']['yieldAgreement']> | undefined;
+  if (!('gaussian' in analytic)) {
+    // The law is the design's own: compare it with the design's own yield, not the all-conditions one.
+    const p = analytic.yield.estimate;
+    const own = 1 - (failuresHigh + failuresLow) / n;
+    const zy = (own - p) / Math.sqrt((p * (1 - p)) / n);
+    yieldAgreement = { difference: own - p, standardErrors: zy, consistent: Math.abs(zy) <= AGREEMENT_Z };
+  }
+  const response = t.response;
   const warnings = [...stage.warnings];
   if (nonConverged > 0) warnings.push(`${nonConverged} sample(s) whose balance solve did not converge were left out of every statistic`);
   for (const c of atAll?.conditions ?? []) {
@@ -205,7 +242,10 @@ export function assembleRunReport(stage: Stage, t: RunTally): RunReport {
       mean: moments.mean,
       meanInterval: [moments.mean - (z * sigma) / Math.sqrt(n), moments.mean + (z * sigma) / Math.sqrt(n)],
       sigma,
-      sigmaInterval: sigmaInterval(sigma, n, confidence),
+      sigmaInterval: bonett ? sigmaIntervalBonett(sigma, n, k, confidence) : chiSquare,
+      sigmaIntervalMethod: bonett ? 'bonett' : 'chi-square',
+      sigmaIntervalChiSquare: chiSquare,
+      kurtosis: k,
       min: moments.min,
       max: moments.max,
       quantileMethod,
@@ -226,6 +266,7 @@ export function assembleRunReport(stage: Stage, t: RunTally): RunReport {
         standardErrors,
         consistent: Math.abs(standardErrors) <= AGREEMENT_Z,
       },
+      ...(yieldAgreement === undefined ? {} : { yieldAgreement }),
     },
     yield: {
       spec,
@@ -243,6 +284,7 @@ export function assembleRunReport(stage: Stage, t: RunTally): RunReport {
     chip: { instances: m, estimate: chip(y), interval: [chip(yLo), chip(yHi)] },
     ...(importance === undefined ? {} : { importance }),
     ...(atAll === undefined ? {} : { conditions: atAll.conditions, drift: atAll.drift }),
+    ...(response === undefined ? {} : { response }),
     nonConverged,
     seconds,
     samplesPerSecond: n / seconds,

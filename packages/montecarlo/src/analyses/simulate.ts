@@ -1,6 +1,6 @@
 import { compileConditions, compileStage, InputError, specLimit, type Design, type FigureDefinition, type RandomVariable } from '@twinfet/core';
 import { linearisedSummary } from './linearisedSummary.js';
-import { createHistogram, mergeHistograms } from '../stats/histogram.js';
+import { createHistogram, mergeHistograms, type Histogram } from '../stats/histogram.js';
 import type { InjectedFault, MonteCarloResult, MonteCarloTask } from '../engine/messages.js';
 import { emptyMoments, mergeMoments, type Moments } from '../stats/moments.js';
 import { createExecutor, defaultWorkers, type Executor } from '../engine/pool.js';
@@ -9,6 +9,7 @@ import { seedText } from '../random/seed.js';
 import { estimateHighSigma, type HighSigmaReport } from './highSigma.js';
 import { assembleRunReport, type IntervalMethod, type RunReport } from './runReport.js';
 import { addConditionChunk, conditionsOutcome, conditionsPlan, driftPairFor, emptyConditionTotals } from './conditionRun.js';
+import { responseAt } from './response.js';
 
 export { QUANTILE_LEVELS, AGREEMENT_Z, FEW_FAILURES, type IntervalMethod, type QuantileValue, type RunReport } from './runReport.js';
 /** Offsets are kept (exact quantiles) up to this many samples unless told otherwise. */
@@ -80,6 +81,8 @@ export interface RunOutcome {
   readonly figure: FigureDefinition;
   /** With conditions and kept draws: every sample's figure at each condition (NaN where a solve failed). */
   readonly conditionFigures?: readonly Float64Array[];
+  /** With a drift taken: the histogram of the per-sample drift (the figure's unit per kelvin). */
+  readonly driftHistogram?: Histogram;
 }
 
 function checkOptions(o: SimulateOptions): void {
@@ -165,7 +168,7 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
     }),
   };
   const workers = Math.min(options.workers ?? defaultWorkers(), chunks);
-  const executor = options.executor ?? createExecutor(workers);
+  const executor = options.executor ?? createExecutor(workers, { chunks });
 
   let moments: Moments = emptyMoments();
   let histogram = createHistogram(histogramSpec.lo, histogramSpec.hi, histogramSpec.bins);
@@ -233,6 +236,7 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
     nonConverged,
     kept: offsets === undefined ? undefined : offsets.subarray(0, done),
     importance,
+    response: partial ? undefined : responseAt(stage, spec, seed),
     started,
     ...(totals === undefined
       ? {}
@@ -251,5 +255,6 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
     ...(totals === undefined || !keepDraws
       ? {}
       : { conditionFigures: totals.per.map((p) => (partial ? p.figures!.subarray(0, done) : p.figures!)) }),
+    ...(totals?.drift === undefined ? {} : { driftHistogram: totals.drift.histogram }),
   };
 }

@@ -9,6 +9,7 @@ import { seedText } from '../random/seed.js';
 import { simulate } from './simulate.js';
 import { estimateHighSigma } from './highSigma.js';
 import { largestSigma, limitingStage } from './worstCondition.js';
+import { chipYieldFromFailure } from '../stats/yield.js';
 
 /** Monte Carlo samples per sweep point by default. */
 export const SWEEP_SAMPLES = 20_000;
@@ -38,7 +39,7 @@ export interface SweepPointResult {
   /** |Vos| limit and instances per chip used at this point. */
   readonly spec: number;
   readonly instances: number;
-  /** Linearised offset sigma, volts (with conditions: the largest over them). */
+  /** Linearised sigma of the figure, volts (with conditions: the largest over them). */
   readonly analyticSigma: number;
   /**
    * With conditions: the condition of largest linearised sigma, of largest Monte Carlo sigma
@@ -58,8 +59,22 @@ export interface SweepPointResult {
     /** Fewer than 10 failures: the yield is limited by the sample count. */
     readonly limitedBySamples: boolean;
   };
+  /**
+   * The point's yields, from the importance-sampling failure when the point has one (it is the
+   * better estimate in the tails), else from the Monte Carlo count (`monteCarlo` above): instance
+   * yield 1 - p and chip yield (1 - p)^instances, with their intervals.
+   */
+  readonly yield: {
+    readonly method: 'monte-carlo' | 'importance-sampling';
+    readonly estimate: number;
+    readonly interval: readonly [number, number];
+    readonly chipYield: number;
+    readonly chipYieldInterval: readonly [number, number];
+  };
   /** Importance-sampling failure probability (null unless asked for). */
   readonly importance: null | {
+    /** `monte-carlo` when the spec lies inside the bulk and the estimate fell back to plain Monte Carlo (see HighSigmaReport). */
+    readonly method: 'importance-sampling' | 'monte-carlo';
     readonly failure: number;
     readonly interval: readonly [number, number];
     /** Equivalent two-sided sigma level (null when the estimate is 0). */
@@ -113,6 +128,17 @@ export async function sweepDesigns(designs: readonly Design[], options: SweepOpt
     const tail = options.importance === true ? await estimateHighSigma(design, common) : undefined;
     const lin = limitingStage(stage.design);
     const big = largestSigma(r);
+    const m = stage.design.spec.instances;
+    const yieldFigures: SweepPointResult['yield'] =
+      tail === undefined || tail.method === 'monte-carlo'
+        ? { method: 'monte-carlo', estimate: r.yield.estimate, interval: r.yield.interval, chipYield: r.chip.estimate, chipYieldInterval: r.chip.interval }
+        : {
+            method: 'importance-sampling',
+            estimate: 1 - tail.failureProbability,
+            interval: [1 - tail.interval[1], 1 - tail.interval[0]],
+            chipYield: chipYieldFromFailure(tail.failureProbability, m),
+            chipYieldInterval: [chipYieldFromFailure(tail.interval[1], m), chipYieldFromFailure(tail.interval[0], m)],
+          };
     return {
       index,
       spec,
@@ -130,10 +156,11 @@ export async function sweepDesigns(designs: readonly Design[], options: SweepOpt
         chipYieldInterval: r.chip.interval,
         limitedBySamples: r.yield.limitedBySamples,
       },
+      yield: yieldFigures,
       importance:
         tail === undefined
           ? null
-          : { failure: tail.failureProbability, interval: tail.interval, sigmaLevel: tail.sigmaLevel, samples: tail.samples },
+          : { method: tail.method, failure: tail.failureProbability, interval: tail.interval, sigmaLevel: tail.sigmaLevel, samples: tail.samples },
       warnings: r.warnings,
     };
   };

@@ -3,14 +3,15 @@
  * a run, the largest Monte Carlo sigma and the lowest yield. Without conditions the design's own
  * stage is the only one (named null).
  */
-import { compileConditions, compileStage, linearisedSigma, type Design, type Stage } from '@twinfet/core';
+import { compileConditions, compileStage, type Design, type Stage } from '@twinfet/core';
+import { linearisedFigureSigma } from './linearisedLaw.js';
 import type { RunReport } from './simulate.js';
 
 /** The stage that limits a design on the linearised model, and its condition's name. */
 export interface LimitingStage {
   readonly condition: string | null;
   readonly stage: Stage;
-  /** Its linearised sigma, the figure's unit. */
+  /** Its linearised figure sigma (the law's, see linearisedLaw.ts), the figure's unit. */
   readonly sigma: number;
 }
 
@@ -22,11 +23,11 @@ export function limitingStage(design: Design): LimitingStage {
   const at = compileConditions(design);
   if (at.length === 0) {
     const stage = compileStage(design);
-    return { condition: null, stage, sigma: linearisedSigma(stage) };
+    return { condition: null, stage, sigma: linearisedFigureSigma(stage) };
   }
   let best: LimitingStage | undefined;
   for (const c of at) {
-    const sigma = linearisedSigma(c.stage);
+    const sigma = linearisedFigureSigma(c.stage);
     if (best === undefined || sigma > best.sigma) best = { condition: c.condition.name, stage: c.stage, sigma };
   }
   return best!;

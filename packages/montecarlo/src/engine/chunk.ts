@@ -1,7 +1,7 @@
 // The compile entry alone: a worker needs no design-file reader (and so no YAML parser) to start.
 import { compileConditions, compileStage } from '@twinfet/core/compile';
 import type { Stage } from '@twinfet/core';
-import type { ChunkResult, ImportanceResult, ImportanceTask, MonteCarloResult, MonteCarloTask, ChunkTask } from './messages.js';
+import type { ChunkResult, ImportanceResult, ImportanceTask, MirroredCentres, MonteCarloResult, MonteCarloTask, ChunkTask } from './messages.js';
 import { addToHistogram, createHistogram } from '../stats/histogram.js';
 import { addBlock, emptyMoments } from '../stats/moments.js';
 import { createConditionsAccumulator, unionBlock } from './conditionsKernel.js';
@@ -108,13 +108,19 @@ function monteCarloKernel(stage: Stage, task: MonteCarloTask): MonteCarloResult 
   };
 }
 
-function importanceKernel(stage: Stage, task: ImportanceTask): ImportanceResult {
-  const dim = stage.dimension;
-  const rng = chunkRng(task.seed, 'importance', task.chunk);
-  const k = task.shifts.length;
+/**
+ * The importance-sampling proposal: shifts the standard-normal draw of one sample in place to a
+ * centre picked at random, and returns log w, w = phi(u) / q(u) with
+ * q = (1/k) sum_c phi(u - mu_c): log w = log k - logsumexp_c(mu_c . u - |mu_c|^2 / 2).
+ */
+type Proposal = (rng: ReturnType<typeof chunkRng>, u: Float64Array, base: number) => number;
+
+/** Explicit centres: O(k x dimension) per sample. */
+function explicitMixture(shiftList: ImportanceTask['shifts'], dim: number): Proposal {
+  const k = shiftList.length;
   const shifts = new Float64Array(k * dim);
   const halfNorms = new Float64Array(k);
-  task.shifts.forEach((s, c) => {
+  shiftList.forEach((s, c) => {
     let q = 0;
     for (let j = 0; j < dim; j++) {
       shifts[c * dim + j] = s[j]!;
@@ -123,6 +129,133 @@ function importanceKernel(stage: Stage, task: ImportanceTask): ImportanceResult 
     halfNorms[c] = 0.5 * q;
   });
   const logK = Math.log(k);
+  return (rng, u, base) => {
+    const c = Math.min(k - 1, Math.floor(rng.double() * k));
+    for (let j = 0; j < dim; j++) u[base + j]! += shifts[c * dim + j]!;
+    let best = -Infinity;
+    for (let cc = 0; cc < k; cc++) {
+      let dot = 0;
+      for (let j = 0; j < dim; j++) dot += shifts[cc * dim + j]! * u[base + j]!;
+      const a = dot - halfNorms[cc]!;
+      if (a > best) best = a;
+    }
+    let acc = 0;
+    for (let cc = 0; cc < k; cc++) {
+      let dot = 0;
+      for (let j = 0; j < dim; j++) dot += shifts[cc * dim + j]! * u[base + j]!;
+      acc += Math.exp(dot - halfNorms[cc]! - best);
+    }
+    return logK - best - Math.log(acc);
+  };
+}
+
+/**
+ * Mirror-image centres (FailureSymmetry): centre c (c = 1 .. G-1) is `fixed` on group 0, `own`
+ * on group c and `rest` elsewhere, so mu_c . u = fixed . u_0 + rest . T + (own - rest) . u_c with
+ * T the sum of groups 1 .. G-1, and every |mu_c| is the same: O(dimension) per sample.
+ */
+function mirroredMixture(m: MirroredCentres, dim: number): Proposal {
+  const parts = mirroredParts(m, dim);
+  return (rng, u, base) => {
+    parts.shift(rng, u, base);
+    return parts.logWeight(u, base);
+  };
+}
+
+/** A mirrored mixture in two steps: shift a draw to one of its centres; log w of a shifted draw. */
+interface MirroredParts {
+  shift(rng: ReturnType<typeof chunkRng>, u: Float64Array, base: number): void;
+  logWeight(u: Float64Array, base: number): number;
+}
+
+function mirroredParts(m: MirroredCentres, dim: number): MirroredParts {
+  const w = m.groupSize;
+  const groups = m.groups;
+  if (groups * w !== dim) throw new Error(`internal: mirrored mixture of ${groups} groups of ${w} in ${dim} variables`);
+  const k = groups - 1;
+  const fixed = Float64Array.from(m.fixed);
+  const own = Float64Array.from(m.own);
+  const rest = Float64Array.from(m.rest);
+  const diff = new Float64Array(w);
+  let norm = 0;
+  for (let i = 0; i < w; i++) {
+    diff[i] = own[i]! - rest[i]!;
+    norm += fixed[i]! * fixed[i]! + own[i]! * own[i]! + (groups - 2) * rest[i]! * rest[i]!;
+  }
+  const half = 0.5 * norm;
+  const logK = Math.log(k);
+  const total = new Float64Array(w);
+  return {
+    shift(rng, u, base) {
+      const c = 1 + Math.min(k - 1, Math.floor(rng.double() * k));
+      for (let i = 0; i < w; i++) u[base + i]! += fixed[i]!;
+      for (let g = 1; g < groups; g++) {
+        const src = g === c ? own : rest;
+        const off = base + g * w;
+        for (let i = 0; i < w; i++) u[off + i]! += src[i]!;
+      }
+    },
+    logWeight(u, base) {
+      let a = 0;
+      total.fill(0);
+      for (let i = 0; i < w; i++) a += fixed[i]! * u[base + i]!;
+      let best = -Infinity;
+      for (let g = 1; g < groups; g++) {
+        const off = base + g * w;
+        let b = 0;
+        for (let i = 0; i < w; i++) {
+          const x = u[off + i]!;
+          total[i]! += x;
+          b += diff[i]! * x;
+        }
+        if (b > best) best = b;
+      }
+      for (let i = 0; i < w; i++) a += rest[i]! * total[i]!;
+      let acc = 0;
+      for (let g = 1; g < groups; g++) {
+        const off = base + g * w;
+        let b = 0;
+        for (let i = 0; i < w; i++) b += diff[i]! * u[off + i]!;
+        acc += Math.exp(b - best);
+      }
+      return logK - (a - half + best) - Math.log(acc);
+    },
+  };
+}
+
+/**
+ * The equal mixture of S mirrored mixtures (one per operating condition): pick a set, shift to
+ * one of its centres; q / phi = (1/S) sum_s q_s / phi, so log w = log S - logsumexp_s(-log w_s).
+ */
+function mirroredSetsMixture(sets: readonly MirroredCentres[], dim: number): Proposal {
+  const parts = sets.map((m) => mirroredParts(m, dim));
+  const count = parts.length;
+  const logS = Math.log(count);
+  const minus = new Float64Array(count);
+  return (rng, u, base) => {
+    const s = Math.min(count - 1, Math.floor(rng.double() * count));
+    parts[s]!.shift(rng, u, base);
+    let best = -Infinity;
+    for (let t = 0; t < count; t++) {
+      const x = -parts[t]!.logWeight(u, base);
+      minus[t] = x;
+      if (x > best) best = x;
+    }
+    let acc = 0;
+    for (let t = 0; t < count; t++) acc += Math.exp(minus[t]! - best);
+    return logS - best - Math.log(acc);
+  };
+}
+
+function importanceKernel(stage: Stage, task: ImportanceTask): ImportanceResult {
+  const dim = stage.dimension;
+  const rng = chunkRng(task.seed, 'importance', task.chunk);
+  const propose =
+    task.mirroredSets !== undefined
+      ? mirroredSetsMixture(task.mirroredSets, dim)
+      : task.mirrored === undefined
+        ? explicitMixture(task.shifts, dim)
+        : mirroredMixture(task.mirrored, dim);
   const logScale = task.logScale;
   const spec = task.spec;
   const lowLimit = stage.definition.figure.sided === 'two' ? -spec : -Infinity;
@@ -141,27 +274,7 @@ function importanceKernel(stage: Stage, task: ImportanceTask): ImportanceResult 
   for (let start = 0; start < task.count; start += BLOCK) {
     const n = Math.min(BLOCK, task.count - start);
     fillStandardNormals(rng, u, 0, n * dim);
-    for (let i = 0; i < n; i++) {
-      // Pick a centre, shift the draw, and weigh by phi(u) / q(u) with
-      // q = (1/k) sum_c phi(u - mu_c): log w = log k - logsumexp_c(mu_c . u - |mu_c|^2 / 2).
-      const c = Math.min(k - 1, Math.floor(rng.double() * k));
-      const base = i * dim;
-      for (let j = 0; j < dim; j++) u[base + j]! += shifts[c * dim + j]!;
-      let best = -Infinity;
-      for (let cc = 0; cc < k; cc++) {
-        let dot = 0;
-        for (let j = 0; j < dim; j++) dot += shifts[cc * dim + j]! * u[base + j]!;
-        const a = dot - halfNorms[cc]!;
-        if (a > best) best = a;
-      }
-      let acc = 0;
-      for (let cc = 0; cc < k; cc++) {
-        let dot = 0;
-        for (let j = 0; j < dim; j++) dot += shifts[cc * dim + j]! * u[base + j]!;
-        acc += Math.exp(dot - halfNorms[cc]! - best);
-      }
-      logw[i] = logK - best - Math.log(acc);
-    }
+    for (let i = 0; i < n; i++) logw[i] = propose(rng, u, i * dim);
     if (union !== undefined) {
       const r = unionBlock(union, u, n, logw, logScale, spec, lowLimit, byCondition!, byConditionSquares!);
       sum += r.sum;

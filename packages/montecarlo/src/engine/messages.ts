@@ -85,11 +85,31 @@ export interface ConditionsResult {
   };
 }
 
+/** The centres of G - 1 mirror-image failure regions over G groups of `groupSize` variables. */
+export interface MirroredCentres {
+  readonly groupSize: number;
+  readonly groups: number;
+  readonly fixed: readonly number[];
+  readonly own: readonly number[];
+  readonly rest: readonly number[];
+}
+
 /** Mean-shift importance sampling from the equal mixture of N(shift_k, I). */
 export interface ImportanceTask extends TaskBase {
   readonly kind: 'importance';
   /** Mixture centres in standard-normal space, each of the stage's dimension. */
   readonly shifts: readonly (readonly number[])[];
+  /**
+   * Instead of `shifts`: the groups - 1 centres of mirror-image regions (FailureSymmetry), centre
+   * c having `fixed` on group 0, `own` on group c and `rest` on every other group, so that the
+   * weight of a sample costs O(dimension) rather than O(centres x dimension).
+   */
+  readonly mirrored?: MirroredCentres;
+  /**
+   * Instead of `shifts` or `mirrored`, with conditions: one set of mirror-image centres per
+   * condition; the proposal is the equal mixture of the sets' mixtures.
+   */
+  readonly mirroredSets?: readonly MirroredCentres[];
   /**
    * Weights are accumulated as w e^{logScale}, so that at 26-37 sigma (w ~ e^{-b^2/2}) neither
    * w nor w^2 underflows; the caller divides the sums back.

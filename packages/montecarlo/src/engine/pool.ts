@@ -1,7 +1,8 @@
 import { once } from 'node:events';
 import { availableParallelism } from 'node:os';
 import type { Worker } from 'node:worker_threads';
-import { Piscina } from 'piscina';
+import { createRequire } from 'node:module';
+import type { Piscina as PiscinaPool } from 'piscina';
 import type { ChunkResult, ChunkTask, WorkerReply } from './messages.js';
 import { runChunk } from './chunk.js';
 
@@ -49,22 +50,28 @@ function abortError(): Error {
   return e;
 }
 
+/** Runs a chunk in this thread after yielding to the event loop; `timed` gets its compute time, ms. */
+async function runHere(task: ChunkTask, signal: AbortSignal | undefined, timed?: (ms: number) => void): Promise<ChunkResult> {
+  if (signal?.aborted) throw abortError();
+  // Yield to the event loop between chunks so that an abort or SIGINT can be seen.
+  await new Promise<void>((r) => setImmediate(r));
+  if (signal?.aborted) throw abortError();
+  const t = performance.now();
+  try {
+    return runChunk(task);
+  } catch (e) {
+    const err = e instanceof Error ? e : new Error(String(e));
+    throw new ChunkError(`a Monte Carlo chunk failed: ${err.message}`, { cause: err });
+  } finally {
+    timed?.(performance.now() - t);
+  }
+}
+
 /** Chunks run in the calling thread: for --workers 1, tests and small jobs. */
 export function inThreadExecutor(): Executor {
   return {
     threads: 0,
-    async run(task, signal) {
-      if (signal?.aborted) throw abortError();
-      // Yield to the event loop between chunks so that an abort or SIGINT can be seen.
-      await new Promise<void>((r) => setImmediate(r));
-      if (signal?.aborted) throw abortError();
-      try {
-        return runChunk(task);
-      } catch (e) {
-        const err = e instanceof Error ? e : new Error(String(e));
-        throw new ChunkError(`a Monte Carlo chunk failed: ${err.message}`, { cause: err });
-      }
-    },
+    run: (task, signal) => runHere(task, signal),
     async close() {},
     liveThreads: () => 0,
   };
@@ -74,14 +81,22 @@ export function inThreadExecutor(): Executor {
 const IMPORT_ONLY = process.allowedNodeEnvironmentFlags.has('--no-experimental-require-module')
   ? ['--no-experimental-require-module']
   : [];
+// piscina (and worker_threads under it) is loaded with the first pool, not with this module, so a
+// run in one thread, `inspect` or `--version` does not pay for it (about 10 ms of start-up).
+let PiscinaClass: typeof PiscinaPool | undefined;
+function piscinaClass(): typeof PiscinaPool {
+  PiscinaClass ??= (createRequire(import.meta.url)('piscina') as typeof import('piscina')).Piscina;
+  return PiscinaClass;
+}
 
 /**
  * A piscina pool of `workers` threads. Under vitest (sources) the worker is `worker.ts`, loaded
  * through tsx; built, it is `worker.js`.
  */
-export function poolExecutor(workers: number): Executor {
+export function poolExecutor(workers: number): Executor & { readyThreads(): number } {
   const fromSource = import.meta.url.endsWith('.ts');
   const filename = new URL(fromSource ? './worker.ts' : './worker.js', import.meta.url).href;
+  const Piscina = piscinaClass();
   const pool = new Piscina<ChunkTask, WorkerReply>({
     filename,
     minThreads: workers,
@@ -101,11 +116,19 @@ export function poolExecutor(workers: number): Executor {
   // destroy() has returned (destroy clears its `destroying` flag) makes it start replacements,
   // threads that outlive the pool. close() therefore waits for the dropped ones first.
   const alive = new Set<Worker>();
+  // A thread's first message is piscina's "ready" (sent once it has loaded worker.js).
+  const ready = new Set<Worker>();
   const track = (): void => {
     for (const w of pool.threads) {
       if (alive.has(w)) continue;
       alive.add(w);
-      w.once('exit', () => alive.delete(w));
+      w.once('message', () => {
+        if (alive.has(w)) ready.add(w);
+      });
+      w.once('exit', () => {
+        alive.delete(w);
+        ready.delete(w);
+      });
     }
   };
   pool.on('workerCreate', track);
@@ -148,10 +171,77 @@ export function poolExecutor(workers: number): Executor {
       if (!closed) track();
       return alive.size;
     },
+    readyThreads: () => {
+      track();
+      return closed ? 0 : ready.size;
+    },
   };
 }
 
-/** An executor for `workers` (1 = in this thread). */
-export function createExecutor(workers: number): Executor {
-  return workers <= 1 ? inThreadExecutor() : poolExecutor(workers);
+/**
+ * One-thread work a job must still have left before a pool is started for it, ms: starting
+ * and closing 1-2 threads costs 40-80 ms, which only a longer remainder pays back.
+ */
+export const POOL_WORTH_MS = 100;
+
+/**
+ * An executor for `workers` threads that never makes a job wait for them. Chunks run in this
+ * thread until pool threads have loaded, then go to the pool (at most 2 per ready thread in
+ * flight, so this thread is left to merge). With `chunks`, the job's chunk count, the pool is
+ * started only once the chunks timed here show that the rest would take longer than
+ * POOL_WORTH_MS in one thread, so a small job never starts it; without, at the first chunk (an
+ * executor shared by many runs). Where a chunk runs changes no result: chunks are pure and are
+ * merged in order. A task with an injected fault always goes to the pool (the hook is in the
+ * worker).
+ */
+export function startingPoolExecutor(workers: number, chunks?: number): Executor {
+  let pool: ReturnType<typeof poolExecutor> | undefined;
+  let closed = false;
+  let dispatched = 0;
+  // The fastest of the chunks run here (the first one also pays for compiling the hot loops).
+  let timedHere = 0;
+  let fastestMs = Infinity;
+  const timed = (ms: number): void => {
+    timedHere++;
+    fastestMs = Math.min(fastestMs, ms);
+  };
+  let inPool = 0;
+  // Chunks run here one after another, each in its own turn of the event loop, so that a
+  // SIGINT or an abort between two of them is seen before the next starts (lanes waiting on
+  // the same turn would otherwise run back to back).
+  let hereTail: Promise<unknown> = Promise.resolve();
+  const worthStarting = (): boolean => chunks === undefined || (timedHere >= 2 && fastestMs * (chunks - dispatched) > POOL_WORTH_MS);
+  return {
+    threads: workers,
+    async run(task, signal) {
+      if (closed) throw new Error('internal: executor used after close');
+      dispatched++;
+      if (pool === undefined && (task.fault !== undefined || worthStarting())) pool = poolExecutor(workers);
+      const ready = pool === undefined ? 0 : pool.readyThreads();
+      if (pool !== undefined && (task.fault !== undefined || inPool < 2 * ready)) {
+        inPool++;
+        try {
+          return await pool.run(task, signal);
+        } finally {
+          inPool--;
+        }
+      }
+      const mine = hereTail.then(() => runHere(task, signal, timed));
+      hereTail = mine.catch(() => undefined);
+      return mine;
+    },
+    async close() {
+      closed = true;
+      await pool?.close();
+    },
+    liveThreads: () => pool?.liveThreads() ?? 0,
+  };
+}
+
+/**
+ * An executor for `workers` (1 = in this thread). `job.chunks`, when given, lets a small job
+ * skip starting the pool (see startingPoolExecutor).
+ */
+export function createExecutor(workers: number, job: { readonly chunks?: number } = {}): Executor {
+  return workers <= 1 ? inThreadExecutor() : startingPoolExecutor(workers, job.chunks);
 }

@@ -32,6 +32,9 @@ const FN = new Float64Array(128);
   }
 }
 const INV_R = 1 / R;
+// The same thresholds as int32 (each is below 2^31), so the fast path's test is two integer
+// comparisons: |hz| < KN[iz] exactly when -k < hz < k (hz = -2^31 fails both ways).
+const KI = Int32Array.from(KN);
 
 /** The right edge r of the base strip: beyond it every deviate comes from {@link normalTail}. */
 export const ZIGGURAT_EDGE = R;
@@ -75,14 +78,54 @@ export function standardNormal(rng: ChunkRng): number {
   return Math.abs(hz) < KN[iz]! ? hz * WN[iz]! : slow(rng, hz);
 }
 
-/** Fills out[start..end) with independent standard-normal deviates. */
+/**
+ * Fills out[start..end) with independent standard-normal deviates: the same numbers as calling
+ * `standardNormal` end - start times. The generator's state is kept in locals (its int32 step
+ * written out) and handed back to `rng` around the rare slow path, which draws from it too.
+ */
 export function fillStandardNormals(rng: ChunkRng, out: Float64Array, start: number, end: number): void {
-  // seedrandom's int32 is the generator's own step function, bound to its state by closure,
-  // so it can be called unbound: one property load per block instead of per draw.
-  const int32 = rng.int32;
+  // `| 0` tells the compiler the words are 32-bit integers (object fields hold them as doubles);
+  // without it the loop's variables stay doubles and the draws are slower than seedrandom's.
+  let x = rng.x | 0;
+  let y = rng.y | 0;
+  let z = rng.z | 0;
+  let w = rng.w | 0;
+  let v = rng.v | 0;
+  let d = rng.d | 0;
   for (let i = start; i < end; i++) {
-    const hz = int32();
+    // xorwow's step, as ChunkRng.int32.
+    const t = x ^ (x >>> 2);
+    x = y;
+    y = z;
+    z = w;
+    w = v;
+    v = v ^ (v << 4) ^ (t ^ (t << 1));
+    d = (d + 362437) | 0;
+    const hz = (d + v) | 0;
     const iz = hz & 127;
-    out[i] = Math.abs(hz) < KN[iz]! ? hz * WN[iz]! : slow(rng, hz);
+    const k = KI[iz]!;
+    if (hz < k && hz > -k) {
+      out[i] = hz * WN[iz]!;
+    } else {
+      rng.x = x;
+      rng.y = y;
+      rng.z = z;
+      rng.w = w;
+      rng.v = v;
+      rng.d = d;
+      out[i] = slow(rng, hz);
+      x = rng.x | 0;
+      y = rng.y | 0;
+      z = rng.z | 0;
+      w = rng.w | 0;
+      v = rng.v | 0;
+      d = rng.d | 0;
+    }
   }
+  rng.x = x;
+  rng.y = y;
+  rng.z = z;
+  rng.w = w;
+  rng.v = v;
+  rng.d = d;
 }

@@ -5,7 +5,8 @@
  */
 import { compileStage, formatQuantity, InputError, type Design, type InversionRegion, type Polarity, type Stage, MISMATCH_PARAMETERS, specLimit, stageDefinition } from '@twinfet/core';
 import { areaSplit, equalScalingFamily, optimalSplitFamily, type AreaSplit } from './areaSplit.js';
-import { normalQuantile, normalUpperTail, sigmaLevel, twoSidedTail } from '../stats/normal.js';
+import { normalQuantile, sigmaLevel } from '../stats/normal.js';
+import { figureLaw } from '../analyses/linearisedLaw.js';
 import { createExecutor, defaultWorkers, type Executor } from '../engine/pool.js';
 import { checkVary, DEFAULT_MIN_DIMENSION_M, pairOf, sizableBlocks, singlePairFamily, splitVary, type SizeVary, type SizingFamily } from './resize.js';
 import { seedText } from '../random/seed.js';
@@ -77,13 +78,16 @@ export interface SizedPoint {
   /** Position along the family (area factor, or total area in m^2 for `both`). */
   readonly scale: number;
   readonly pairs: readonly PairSizing[];
-  /** Linearised offset sigma, volts. */
+  /** Linearised sigma of the figure (offset, lead), volts. */
   readonly sigmaLinearised: number;
-  /** Gate area of the varied devices (both devices of each varied pair), m^2. */
+  /** Gate area of the varied devices (every device of each varied block), m^2. */
   readonly variedArea: number;
   /** Gate area of every device of the stage, m^2. */
   readonly totalGateArea: number;
-  /** Gaussian instance failure 2 Phi(-spec / sigma) at the spec. */
+  /**
+   * Linearised instance failure at the spec: Gaussian, 2 Phi(-spec / sigma) (one-sided
+   * Phi(-spec / sigma)), or the stage's own law (a selector's: Bechhofer's).
+   */
   readonly gaussianFailure: number;
   /** Cox W L of one input device (the capacitance each input sees), F; null without process cox. */
   readonly inputCapacitance: number | null;
@@ -97,7 +101,7 @@ export interface Confirmation {
   readonly seed: string;
   readonly samples: number;
   readonly point: SizedPoint;
-  /** Monte Carlo offset sigma and its chi-square interval, volts (null for importance sampling). */
+  /** Monte Carlo offset sigma and its interval (Bonett 2006, allowing for non-Gaussian offsets), volts (null for importance sampling). */
   readonly sigma: number | null;
   readonly sigmaInterval: readonly [number, number] | null;
   /** Instance failure probability at the spec and its interval. */
@@ -193,14 +197,20 @@ function variedRoles(design: Design, vary: SizeVary): string[] {
   return vary === 'both' ? sizableBlocks(design).map((b) => b.key) : [splitVary(vary).role];
 }
 
-/** The Gaussian failure at `spec` for a figure of linearised `sigma`: two-sided or one-sided. */
+/**
+ * The linearised failure at `spec` for a figure of linearised `sigma`, by the figure's law
+ * (Gaussian two- or one-sided, or the stage's own); the law is written in the scale
+ * sigma / law.sigma.
+ */
 function gaussianFailure(design: Design, spec: number, sigma: number): number {
-  return stageDefinition(design.topology).figure.sided === 'two' ? twoSidedTail(spec / sigma) : normalUpperTail(spec / sigma);
+  const law = figureLaw(compileStage(design));
+  return law.failure((spec * law.sigma) / sigma);
 }
 
-/** The Gaussian sigma whose failure at `spec` is p (the inverse of gaussianFailure). */
+/** The linearised figure sigma whose failure at `spec` is p (the inverse of gaussianFailure). */
 function sigmaForFailure(design: Design, spec: number, p: number): number {
-  return spec / (stageDefinition(design.topology).figure.sided === 'two' ? sigmaLevel(p) : normalQuantile(1 - p));
+  const law = figureLaw(compileStage(design));
+  return (spec * law.sigma) / law.level(p);
 }
 
 /** Geometry, operating point and linearised figures of a design. */
@@ -210,7 +220,8 @@ export function sizedPoint(design: Design, vary: SizeVary, scale: number, spec: 
   const roles = sizableBlocks(design).map((b) => b.key);
   const pairs = roles.map((r) => pairSizing(stage, r));
   const sigma = limiting.sigma;
-  const count = (r: string): number => stage.definition.blocks.find((b) => b.key === r)?.elements.length ?? 2;
+  // Elements per block, counted from the stage's variables (a selector's cells come from `cells`).
+  const count = (r: string): number => new Set(stage.variables.filter((v) => v.role === r).map((v) => v.device)).size;
   const areaOf = (r: string): number => count(r) * (pairs.find((p) => p.role === r)?.gateArea ?? 0);
   return {
     scale,
@@ -306,7 +317,7 @@ function plan(design: Design, o: SizeOptions, spec: number, confidence: number):
       allowed: null,
       method: 'monte-carlo',
       samples: o.samples ?? SIZE_SAMPLES,
-      rule: `upper end of the ${c} chi-square interval of the Monte Carlo sigma <= target`,
+      rule: `upper end of the ${c} Bonett interval of the Monte Carlo sigma <= target`,
     };
   }
   const instances = design.spec.instances;

@@ -20,7 +20,7 @@ export const BISECTION_RELATIVE_WIDTH = 1e-9;
 export interface FamilyPoint {
   readonly t: number;
   readonly design: Design;
-  /** Linearised offset sigma, volts (with conditions: the largest over them). */
+  /** Linearised sigma of the figure, volts (the law's figure sigma: see linearisedLaw.ts; with conditions: the largest over them). */
   readonly sigma: number;
 }
 

@@ -1,15 +1,18 @@
 /**
- * Streaming count, mean, sum of squared deviations (M2), min and max, in a plain object that
- * survives structured cloning (worker messages) and can be merged in any order.
+ * Streaming count, mean, sums of the 2nd, 3rd and 4th powers of the deviations from the mean
+ * (M2, M3, M4), min and max, in a plain object that survives structured cloning (worker
+ * messages) and can be merged in any order.
  * Update: B. P. Welford, "Note on a method for calculating corrected sums of squares and
  * products", Technometrics 4(3):419-420, 1962. Merge: T. F. Chan, G. H. Golub, R. J. LeVeque,
  * "Algorithms for computing the sample variance: analysis and recommendations",
- * American Statistician 37(3):242-247, 1983.
+ * American Statistician 37(3):242-247, 1983. Third and fourth moments, update and merge:
+ * P. Pebay, "Formulas for robust, one-pass parallel computation of covariances and
+ * arbitrary-order statistical moments", Sandia report SAND2008-6212, 2008.
  */
 
 /**
- * Accumulated moments. Empty state: count 0, mean 0, m2 0, min +Infinity, max -Infinity
- * (structured clone keeps the infinities; JSON would turn them into null).
+ * Accumulated moments. Empty state: count 0, mean 0, m2 = m3 = m4 = 0, min +Infinity,
+ * max -Infinity (structured clone keeps the infinities; JSON would turn them into null).
  */
 export interface Moments {
   /** Number of samples. */
@@ -18,6 +21,10 @@ export interface Moments {
   mean: number;
   /** Sum of squared deviations from the mean. */
   m2: number;
+  /** Sum of cubed deviations from the mean. */
+  m3: number;
+  /** Sum of fourth powers of the deviations from the mean. */
+  m4: number;
   /** Smallest sample seen. */
   min: number;
   /** Largest sample seen. */
@@ -26,7 +33,7 @@ export interface Moments {
 
 /** A fresh, empty accumulator. */
 export function emptyMoments(): Moments {
-  return { count: 0, mean: 0, m2: 0, min: Infinity, max: -Infinity };
+  return { count: 0, mean: 0, m2: 0, m3: 0, m4: 0, min: Infinity, max: -Infinity };
 }
 
 function checkSlice(length: number, start: number, end: number, fn: string): void {
@@ -39,7 +46,8 @@ function checkSlice(length: number, start: number, end: number, fn: string): voi
 }
 
 /**
- * Add values[start..end) to `state` in place (Welford's update) and return it.
+ * Add values[start..end) to `state` in place (Welford's update; Pebay 2008 for M3 and M4) and
+ * return it.
  * Callers pass finite values; a NaN or infinity is detected once after the loop and throws,
  * leaving `state` unchanged.
  */
@@ -53,19 +61,27 @@ export function addSamples(
   let count = state.count;
   let mean = state.mean;
   let m2 = state.m2;
+  let m3 = state.m3;
+  let m4 = state.m4;
   let min = state.min;
   let max = state.max;
   for (let i = start; i < end; i++) {
     const x = values[i] as number;
     count++;
     const delta = x - mean;
-    mean += delta / count;
+    const deltaN = delta / count;
+    const deltaN2 = deltaN * deltaN;
+    // term = delta^2 (n - 1) / n, the increase of M2; M4 and M3 use the old M3 and M2.
+    const term = delta * deltaN * (count - 1);
+    m4 += term * deltaN2 * (count * count - 3 * count + 3) + 6 * deltaN2 * m2 - 4 * deltaN * m3;
+    m3 += term * deltaN * (count - 2) - 3 * deltaN * m2;
+    mean += deltaN;
     m2 += delta * (x - mean);
     if (x < min) min = x;
     if (x > max) max = x;
   }
   // A NaN or infinite input poisons mean or m2, so one check here covers every element.
-  if (!Number.isFinite(mean) || !Number.isFinite(m2)) {
+  if (!Number.isFinite(mean) || !Number.isFinite(m2) || !Number.isFinite(m4)) {
     throw new RangeError(
       `addSamples: values[${start}..${end}) contain a NaN or infinite value; ` +
         'the sampler must produce finite numbers',
@@ -74,21 +90,37 @@ export function addSamples(
   state.count = count;
   state.mean = mean;
   state.m2 = m2;
+  state.m3 = m3;
+  state.m4 = m4;
   state.min = min;
   state.max = max;
   return state;
 }
 
-/** Combine two accumulators into a new one (Chan, Golub & LeVeque 1983); inputs untouched. */
+/**
+ * Combine two accumulators into a new one (Chan, Golub & LeVeque 1983 for the mean and M2;
+ * Pebay 2008, eqs. 3.1 for M3 and M4); inputs untouched.
+ */
 export function mergeMoments(a: Moments, b: Moments): Moments {
   if (a.count === 0) return { ...b };
   if (b.count === 0) return { ...a };
-  const count = a.count + b.count;
+  const na = a.count;
+  const nb = b.count;
+  const count = na + nb;
   const delta = b.mean - a.mean;
+  const d2 = delta * delta;
+  const ab = (na * nb) / count;
   return {
     count,
-    mean: a.mean + delta * (b.count / count),
-    m2: a.m2 + b.m2 + delta * delta * ((a.count * b.count) / count),
+    mean: a.mean + delta * (nb / count),
+    m2: a.m2 + b.m2 + d2 * ab,
+    m3: a.m3 + b.m3 + d2 * delta * ab * ((na - nb) / count) + (3 * delta * (na * b.m2 - nb * a.m2)) / count,
+    m4:
+      a.m4 +
+      b.m4 +
+      d2 * d2 * ab * ((na * na - na * nb + nb * nb) / (count * count)) +
+      (6 * d2 * (na * na * b.m2 + nb * nb * a.m2)) / (count * count) +
+      (4 * delta * (na * b.m3 - nb * a.m3)) / count,
     min: Math.min(a.min, b.min),
     max: Math.max(a.max, b.max),
   };
@@ -108,8 +140,19 @@ export function stdDev(state: Moments): number {
 }
 
 /**
- * Add values[start..end) as one block: a two-pass mean and sum of squared deviations over the
- * block, then Chan's merge. Same result as `addSamples` to rounding, but no division per value
+ * Sample kurtosis n M4 / M2^2 (the moment ratio m4 / m2^2 with 1/n moments: 3 for a Gaussian,
+ * 1.8 for a uniform, 9 for a Laplace distribution); the estimate Bonett's sigma interval uses.
+ * Throws for fewer than 2 samples or when every sample is equal (M2 = 0).
+ */
+export function kurtosis(state: Moments): number {
+  if (state.count < 2) throw new RangeError(`kurtosis: need at least 2 samples, got count=${state.count}`);
+  if (!(state.m2 > 0)) throw new RangeError('kurtosis: every sample is equal (M2 = 0), so the kurtosis is not defined');
+  return (state.count * state.m4) / (state.m2 * state.m2);
+}
+
+/**
+ * Add values[start..end) as one block: a two-pass mean and sums of powers of the deviations
+ * over the block, then the merge above. Same result as `addSamples` to rounding, but no division per value
  * and no serial dependence, so the per-sample cost is a few additions. In place; returns state.
  */
 export function addBlock(state: Moments, values: Float64Array, start: number, end: number): Moments {
@@ -126,17 +169,24 @@ export function addBlock(state: Moments, values: Float64Array, start: number, en
   }
   const mean = sum / n;
   let m2 = 0;
+  let m3 = 0;
+  let m4 = 0;
   for (let i = start; i < end; i++) {
     const d = (values[i] as number) - mean;
-    m2 += d * d;
+    const dd = d * d;
+    m2 += dd;
+    m3 += dd * d;
+    m4 += dd * dd;
   }
-  if (!Number.isFinite(mean) || !Number.isFinite(m2)) {
+  if (!Number.isFinite(mean) || !Number.isFinite(m2) || !Number.isFinite(m4)) {
     throw new RangeError(`addBlock: values[${start}..${end}) contain a NaN or infinite value; the sampler must produce finite numbers`);
   }
-  const merged = mergeMoments(state, { count: n, mean, m2, min, max });
+  const merged = mergeMoments(state, { count: n, mean, m2, m3, m4, min, max });
   state.count = merged.count;
   state.mean = merged.mean;
   state.m2 = merged.m2;
+  state.m3 = merged.m3;
+  state.m4 = merged.m4;
   state.min = merged.min;
   state.max = merged.max;
   return state;
