@@ -14,11 +14,11 @@ import { checkPage, extractPage } from './support/reportPage.js';
 
 const out = mkdtempSync(join(tmpdir(), 'twinfet-report-'));
 
-async function pageAndRun(design: string, args: string[], runArgs: string[]) {
+async function pageAndRun(design: string, args: string[], runArgs: string[], sections = 7) {
   const file = join(out, `${design.replace(/\W/g, '-')}.html`);
   const r = await runCli(['report', design, '--out', file, '--workers', '2', ...args], { timeoutMs: 60_000 });
   expect(r.code, r.stderr).toBe(0);
-  expect(r.stdout).toMatch(/^wrote .*: 7 sections, \d+ figures/);
+  expect(r.stdout).toMatch(new RegExp(`^wrote .*: ${sections} sections, \\d+ figures`));
   const run = await runCli(['run', design, '--json', '--workers', '1', ...args, ...runArgs], { timeoutMs: 60_000 });
   expect(run.code, run.stderr).toBe(0);
   return { html: readFileSync(file, 'utf8'), run: JSON.parse(run.stdout) as Record<string, unknown> };
@@ -59,6 +59,34 @@ describe('twinfet report, read as text', () => {
     expect(page.figures.map((f) => f.id)).toContain('fig-split');
     expect(page.text).toMatch(/The split of area between the input pair and the load resistors/);
     expect(page.text).toContain('(I1 R1 \u2212 I2 R2)/R');
+  });
+
+  it('operating conditions: section 8 with the per-condition table, the all-conditions yield and the drift, equal to run --json', async () => {
+    const design = 'examples/comparator-conditions.yaml';
+    const { html, run } = await pageAndRun(design, ['--samples', '20000', '--seed', '3'], [], 8);
+    const page = extractPage(parseHTML(html).document as unknown as Document);
+    // Every tagged number, section 8's included, equals the run's JSON for the same seed (exactly) and is shown to its rounding.
+    checkPage(page, run);
+    expect(page.sections.map((x) => x.id)[7]).toBe('conditions');
+    expect(page.sections[7]!.heading).toBe('8. Operating conditions');
+    expect(page.figures.map((f) => f.id).slice(-2)).toEqual(['fig-conditions', 'fig-drift']);
+    const paths = new Set(page.numbers.map((n) => n.path));
+    const conditions = run['conditions'] as unknown[];
+    expect(conditions).toHaveLength(4);
+    // Each condition's mean, sigma with its interval, and yield with its interval are on the page.
+    for (let i = 0; i < conditions.length; i++) {
+      for (const k of ['offset.mean', 'offset.sigma', 'offset.sigmaInterval.0', 'offset.sigmaInterval.1', 'yield.estimate', 'yield.interval.0', 'yield.interval.1']) expect(paths, `conditions.${i}.${k}`).toContain(`conditions.${i}.${k}`);
+    }
+    // The all-conditions yield and the drift (the run's, in V/K).
+    for (const k of ['yield.evaluated', 'yield.estimate', 'yield.interval.0', 'yield.interval.1', 'drift.mean', 'drift.sigma', 'drift.sigmaInterval.0', 'drift.sigmaInterval.1']) expect(paths, k).toContain(k);
+    expect((run['yield'] as { over: string }).over).toBe('all conditions');
+    expect(page.text).toContain('instance yield, all conditions');
+    expect(page.text).toMatch(/Drift of the offset from cold to hot/);
+    // The drift histogram holds every sample the drift was taken over: the trimmed bins lose none.
+    const json = await runCli(['report', design, '--out', join(out, 'conditions-json.html'), '--workers', '1', '--samples', '20000', '--seed', '3', '--json'], { timeoutMs: 60_000 });
+    expect(json.code, json.stderr).toBe(0);
+    const data = JSON.parse(json.stdout) as { conditions: { drift: { histogram: { counts: number[] } } }; run: { drift: { samples: number } } };
+    expect(data.conditions.drift.histogram.counts.reduce((a, b) => a + b, 0)).toBe(data.run.drift.samples);
   });
 
   it('refuses a missing or wrong --out and too few samples, naming the option', async () => {

@@ -103,8 +103,11 @@ export function parseFigureOption(text: string, option: string, design: Pick<Des
  */
 export function figureJson<T extends { readonly offset: unknown; readonly figure: { readonly name: string } }>(r: T): Record<string, unknown> {
   if (r.figure.name === 'offset') return r;
-  const out: Record<string, unknown> = {};
-  for (const [k, v] of Object.entries(r)) out[k === 'offset' ? r.figure.name : k] = v;
+  const name = r.figure.name;
+  const rename = (o: object): Record<string, unknown> => Object.fromEntries(Object.entries(o).map(([k, v]) => [k === 'offset' ? name : k, v]));
+  const out = rename(r);
+  // Each condition's statistics are named after the figure too.
+  if (Array.isArray(out['conditions'])) out['conditions'] = (out['conditions'] as object[]).map(rename);
   return out;
 }
 

@@ -5,7 +5,7 @@ import { parseHTML } from 'linkedom';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { loadDesign } from '../src/designFile.js';
 import { collectReport } from '../src/report/collect.js';
-import type { ConditionsData, ReportData } from '../src/report/data.js';
+import type { ReportData } from '../src/report/data.js';
 import { CAUTION, renderReport } from '../src/report/page.js';
 
 const demo = fileURLToPath(new URL('../../../examples/comparator-demo.yaml', import.meta.url));
@@ -18,14 +18,12 @@ beforeAll(async () => {
 
 const doc = (html: string) => parseHTML(html).document;
 
-/** Hand-built conditions, shaped as ConditionsData (no stage can make them yet). */
-const conditions: ConditionsData = {
-  rows: [
-    { name: 'cold', settings: [{ field: 'temperature', value: 233.15, unit: 'K' }], samples: 4000, mean: -1e-5, sigma: 3.7e-3, sigmaInterval: [3.62e-3, 3.78e-3], yield: 0.991, yieldInterval: [0.988, 0.9936], chipYield: 0.991 },
-    { name: 'hot', settings: [{ field: 'temperature', value: 398.15, unit: 'K' }, { field: 'tail', value: 12e-6, unit: 'A' }], samples: 4000, mean: 2e-5, sigma: 4.1e-3, sigmaInterval: [4.01e-3, 4.19e-3], yield: 0.985, yieldInterval: [0.981, 0.9885], chipYield: 0.985 },
-  ],
-  drift: { from: 'cold', to: 'hot', samples: 4000, mean: 3e-5, sigma: 0.4e-3, histogram: { lo: -2e-3, binWidth: 0.1e-3, counts: Array.from({ length: 40 }, (_, i) => Math.round(400 * Math.exp(-0.5 * ((i - 19.5) / 4) ** 2))) } },
-};
+const withConditions = fileURLToPath(new URL('../../../examples/comparator-conditions.yaml', import.meta.url));
+let conditioned: ReportData;
+beforeAll(async () => {
+  const design = await loadDesign(withConditions);
+  conditioned = await collectReport(design, { samples: 4000, seed: 'render', workers: 1, confidence: 0.95, chipYield: 0.99, source: withConditions, command: ['twinfet', 'report', withConditions], version: 'test' });
+});
 
 describe('the page renderer', () => {
   it('renders sections 1 to 7 in order, and no conditions section without conditions', () => {
@@ -34,26 +32,34 @@ describe('the page renderer', () => {
     expect(d.querySelector('#conditions')).toBeNull();
   });
 
-  it('renders section 8 from a conditions object: the per-condition table, sigma by condition and the drift histogram', () => {
-    const html = renderReport({ ...data, conditions });
+  it('renders section 8 for a design with conditions: the per-condition table, the all-conditions yield, sigma by condition and the drift histogram', () => {
+    const html = renderReport(conditioned);
     const d = doc(html);
     const s = d.querySelector('section#conditions');
     expect(s).not.toBeNull();
     expect(s!.querySelector('h2')!.textContent).toBe('8. Operating conditions');
-    const rows = [...s!.querySelectorAll('tbody tr')].map((r) => [...r.querySelectorAll('td')].map((c) => c.textContent));
-    expect(rows.map((r) => r[0])).toEqual(['cold', 'hot']);
-    // Kelvin with Celsius beside it; other settings with prefixes (exact text of the formatting).
+    const rows = [...s!.querySelector('table')!.querySelectorAll('tbody tr')].map((r) => [...r.querySelectorAll('td')].map((c) => c.textContent));
+    expect(rows.map((r) => r[0])).toEqual(['cold', 'room', 'hot', 'hot-slow']);
+    // Kelvin with Celsius beside it; other settings with prefixes, a shift in % (exact text of the formatting).
     expect(rows[0]![1]).toBe('temperature 233.15 K (\u221240 \u00b0C)');
-    expect(rows[1]![1]).toBe('temperature 398.15 K (125 \u00b0C), tail 12 \u00b5A');
-    expect(rows[1]![4]).toBe('4.1 mV');
+    expect(rows[3]![1]).toBe('temperature 398.15 K (125 \u00b0C), tail 8 \u00b5A, shift n.kp \u221210 %, shift p.kp \u221210 %');
+    // Row i is the run's condition i: its sigma tagged with the run's path and exact value.
+    const run = conditioned.run;
+    const sigma = s!.querySelector('data[data-path="conditions.3.offset.sigma"]')!;
+    expect(Number(sigma.getAttribute('value'))).toBe(run.conditions![3]!.offset.sigma);
+    // The chip yield of a row is its own instance yield to the power of the instances (64), as computed here.
+    expect(Number(rows[0]![8])).toBeCloseTo(run.conditions![0]!.yield.estimate ** 64, 3);
+    expect(s!.textContent).toContain('instance yield, all conditions');
     for (const id of ['fig-conditions', 'fig-drift']) {
       const fig = s!.querySelector(`figure#${id}`);
       expect(fig!.querySelector('svg')).not.toBeNull();
       expect(fig!.querySelector('figcaption')!.textContent!.length).toBeGreaterThan(40);
     }
-    // The drift's numbers are tagged with their exact values.
-    expect(s!.querySelector('data[data-key="conditions.drift.sigma"]')!.getAttribute('value')).toBe('0.0004');
-    expect(s!.querySelector('figure#fig-drift')!.textContent).toContain('\u0394Vos');
+    // The drift's numbers carry the run's exact values, in V/K.
+    const ds = s!.querySelector('data[data-path="drift.sigma"]')!;
+    expect(Number(ds.getAttribute('value'))).toBe(run.drift!.sigma);
+    expect(ds.getAttribute('data-unit')).toBe('V/K');
+    expect(s!.querySelector('figure#fig-drift')!.textContent).toContain('dVos/dT');
   });
 
   it('is self-contained: no script, a policy that forbids every load, no address outside the page', () => {

@@ -20,8 +20,13 @@ export interface ProcessParams {
   readonly vt0: number;
   /** Slope factor n (>= 1), dimensionless. */
   readonly slope: number;
-  /** Transconductance parameter KP = mu*Cox, A/V^2. */
+  /** Transconductance parameter KP = mu*Cox, A/V^2, at the process temperature (`process.temperature`). */
   readonly kp: number;
+  /**
+   * Mobility temperature exponent m of KP(T) = KP (T / T_process)^m (design-file key
+   * `kp_exponent`; default -1.5 when absent, see KP_EXPONENT_DEFAULT).
+   */
+  readonly kpExponent?: number;
   /** Pelgrom threshold matching coefficient A_VT, V*m (5 mV*um = 5e-9 V*m). */
   readonly avt: number;
   /** Pelgrom current-factor matching coefficient A_beta, m (1 %*um = 0.01 * 1e-6 m = 1e-8 m). */
@@ -44,6 +49,11 @@ export interface ResistorProcess {
 
 /** The process: one entry per MOS polarity used, and resistor matching where a stage has resistors. */
 export interface ProcessSet {
+  /**
+   * The temperature at which `kp` (and `vt0`) are given, kelvin. Absent: the design's own
+   * temperature, so KP is taken as valid there (the law KP(T) then changes nothing).
+   */
+  readonly temperature?: number;
   readonly n?: ProcessParams;
   readonly p?: ProcessParams;
   readonly resistor?: ResistorProcess;
@@ -80,6 +90,33 @@ export interface Spec {
   readonly [limit: string]: number;
 }
 
+/** A global process shift of one polarity at an operating condition. */
+export interface PolarityShift {
+  /** Relative change of the temperature-scaled KP: -0.1 multiplies it by 0.90. */
+  readonly kp?: number;
+  /** Change of |V_T0|, volts (it leaves the offset unchanged in these models). */
+  readonly vt0?: number;
+}
+
+/**
+ * One operating condition: the design at another temperature, bias or process corner. The
+ * mismatch draws of an instance are the same at every condition; absent fields inherit the
+ * design's values.
+ */
+export interface OperatingCondition {
+  /** Unique name (`cold`, `hot-slow`). */
+  readonly name: string;
+  /** Temperature, kelvin. */
+  readonly temperature?: number;
+  /** Global process shifts per polarity. */
+  readonly shift?: { readonly n?: PolarityShift; readonly p?: PolarityShift };
+  /**
+   * The stage's own numeric fields at this condition, by design-file key: top-level fields such
+   * as `tail` (amperes) and, for a block's fields, a mapping such as `sources: { current }`.
+   */
+  readonly [field: string]: unknown;
+}
+
 /** A complete design in SI base units. */
 export interface Design {
   readonly name: string;
@@ -93,6 +130,11 @@ export interface Design {
   /** Process parameters; each polarity used by a device must be present. */
   readonly process: ProcessSet;
   readonly spec: Spec;
+  /**
+   * Operating conditions every instance must pass at, from the same mismatch draws (absent:
+   * the design is analysed at its own temperature and bias only).
+   */
+  readonly conditions?: readonly OperatingCondition[];
   /** Blocks owned by the stage type, by design-file key (see the stage's definition). */
   readonly [block: string]: unknown;
 }

@@ -10,6 +10,20 @@ export type * from './stages/definition.js';
 export { STAGES, TOPOLOGIES, stageDefinition, topologiesWith, lacksText } from './stages/registry.js';
 export { validateDesign, specLimit, designKeys } from './validateDesign.js';
 export * from './compileStage.js';
+export * from './temperatureLaw.js';
+export {
+  conditionDesign,
+  conditionDesigns,
+  conditionFields,
+  conditionKeys,
+  conditionPath,
+  conditionSummary,
+  defaultDriftPair,
+  namedDriftPair,
+  SHIFT_KEYS,
+  type ConditionFields,
+  type DriftPair,
+} from './conditions.js';
 export * from './linearised.js';
 export { MIRROR_TOLERANCE, MIRROR_MAX_ITERATIONS } from './stages/mirror.js';
 export { FOLDED_TOLERANCE, FOLDED_MAX_ITERATIONS } from './stages/folded.js';

@@ -18,6 +18,8 @@ export const DESIGN_LIMITS = {
   ar: [0, 1e-5],
   cells: [2, 4096],
   instances: [1, 1e12],
+  kpExponent: [-5, 5],
+  conditions: [1, 64],
 } as const satisfies Record<string, readonly [number, number]>;
 
 /**

@@ -10,6 +10,8 @@ import { closestWord } from './parse/didYouMean.js';
 import type { BlockDefinition, FieldDefinition, StageDefinition } from './stages/definition.js';
 import { alternatives, STAGES, stageDefinition, topologiesWith } from './stages/registry.js';
 import { fieldPath } from './parse/fieldReader.js';
+import { validateConditions } from './conditions.js';
+import { designAtTemperature } from './temperatureLaw.js';
 
 function shown(value: unknown): string {
   return typeof value === 'string' ? JSON.stringify(value) : String(value);
@@ -76,6 +78,12 @@ function checkProcess(p: ProcessParams, polarity: Polarity): void {
   if (p.cox !== undefined) within(p.cox, `${field}.cox`, 'Cox', DESIGN_LIMITS.cox, 'F/m^2');
   if (p.minW !== undefined) positive(p.minW, `${field}.min_w`, 'smallest drawn width in metres');
   if (p.minL !== undefined) positive(p.minL, `${field}.min_l`, 'smallest drawn length in metres');
+  if (p.kpExponent !== undefined) {
+    const [lo, hi] = DESIGN_LIMITS.kpExponent;
+    if (typeof p.kpExponent !== 'number' || !Number.isFinite(p.kpExponent) || p.kpExponent < lo || p.kpExponent > hi) {
+      throw new InputError(`${field}.kp_exponent`, `expected a mobility temperature exponent from ${lo} to ${hi} such as -1.5, got ${shown(p.kpExponent)}`);
+    }
+  }
 }
 
 
@@ -84,7 +92,7 @@ export const COMMON_DESIGN_KEYS = ['name', 'temperature', 'topology', 'process',
 
 /** Every top-level key a design of this stage type may hold, in the documented order. */
 export function designKeys(def: StageDefinition): string[] {
-  return ['name', 'temperature', 'topology', ...def.fields.map((f) => f.key), ...def.blocks.map((b) => b.key), 'process', 'spec'];
+  return ['name', 'temperature', 'topology', ...def.fields.map((f) => f.key), ...def.blocks.map((b) => b.key), 'process', 'spec', 'conditions'];
 }
 
 /**
@@ -216,6 +224,10 @@ export function validateDesign(design: Design): Design {
     const p = design.process[pol];
     if (p !== undefined) checkProcess(p, pol);
   }
+  if (design.process.temperature !== undefined) {
+    within(design.process.temperature, 'process.temperature', 'temperature', DESIGN_LIMITS.temperature, 'K');
+  }
+  designAtTemperature(design); // KP moved to the design temperature must stay in range
   if (typeof design.spec !== 'object' || design.spec === null) {
     throw new InputError('spec', `missing; give { ${def.figure.example}, instances: 1 }`);
   }
@@ -231,6 +243,7 @@ export function validateDesign(design: Design): Design {
   } else within(limit, `spec.${fig.specKey}`, `${fig.label} limit`, fig.limits, fig.unit);
   if (design.spec.instances !== undefined) wholeNumber(design.spec.instances, 'spec.instances', 'instances per chip', DESIGN_LIMITS.instances);
   def.validate?.(design);
+  validateConditions(design, def, validateDesign);
   return withDefaults(design);
 }
 

@@ -11,6 +11,7 @@ export { clopperPearson, oneSidedUpper } from './stats/clopperPearson.js';
 export { wilson } from './stats/wilson.js';
 export { sigmaIntervalBonett, sigmaIntervalChiSquare } from './stats/sigmaInterval.js';
 export { addSamples, emptyMoments, kurtosis, mergeMoments, stdDev, variance, type Moments } from './stats/moments.js';
+export { addPairs, correlation, emptyCoMoments, mergeCoMoments, type CoMoments } from './stats/comoments.js';
 export { createHistogram, exactQuantile, quantileFromHistogram, type Histogram } from './stats/histogram.js';
 export { selectQuantiles, withoutNaN } from './stats/selectQuantiles.js';
 export {
@@ -62,6 +63,8 @@ export {
   type ReportedDesignPoint,
 } from './analyses/highSigma.js';
 export { sweepDesigns, SWEEP_SAMPLES, type SweepOptions, type SweepPointResult } from './analyses/sweep.js';
+export { linearisedDriftSigma, type ConditionResult, type DriftReport } from './analyses/conditionRun.js';
+export { largestSigma, limitingStage, type LimitingStage } from './analyses/worstCondition.js';
 
 // sizing/
 export { SIZE_VARIATIONS, type SizeVary } from './sizing/resize.js';

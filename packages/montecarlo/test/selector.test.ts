@@ -2,7 +2,7 @@
  * The selector stage through the Monte Carlo, high-sigma and sizing analyses, against
  * Bechhofer's probability of a correct selection (Bechhofer, Ann. Math. Statist. 25(1), 1954).
  */
-import { compileStage, linearisedSigma, specificCurrent, thermalVoltage, type Design } from '@twinfet/core';
+import { compileConditions, compileStage, linearisedSigma, specificCurrent, thermalVoltage, type Design } from '@twinfet/core';
 import { describe, expect, it } from 'vitest';
 import { bruteLead } from '../../core/test/selectorBrute.js';
 import { findDesignPoint } from '../src/analyses/designPoint.js';
@@ -130,6 +130,41 @@ describe('Monte Carlo of the exact model', () => {
     expect(explicit.hits).toBeGreaterThan(500);
     expect(Math.abs(mirrored.sum / explicit.sum - 1)).toBeLessThan(1e-12);
     expect(Math.abs(mirrored.sumSquares / explicit.sumSquares - 1)).toBeLessThan(1e-12);
+  });
+
+  it('with conditions, the mixture of each condition\'s mirror-image mixture estimates the same union failure as the explicit mixture over all their centres (same density; 4 standard errors of the difference)', () => {
+    // Two conditions far enough apart (tail current 0.5x and 2x) that their failure points differ.
+    const cells = 5;
+    const base = selector(cells, 3, 8e-3, { w: 2e-6, l: 2e-6, abeta: 3e-8 });
+    const tail = base['tail'] as number;
+    const d: Design = { ...base, conditions: [{ name: 'low', tail: 0.5 * tail }, { name: 'high', tail: 2 * tail }] };
+    const sets = compileConditions(d).map((c) => findMirroredDesignPoint(c.stage, c.stage.failureComponents(8e-3)[0]!, 2));
+    const centres = sets.flatMap((m) => {
+      const out: number[][] = [];
+      for (let c = 1; c < cells; c++) {
+        const u = new Array<number>(2 * cells);
+        for (let g = 0; g < cells; g++) for (let i = 0; i < 2; i++) u[2 * g + i] = (g === 0 ? m.fixed : g === c ? m.own : m.rest)[i]!;
+        out.push(u);
+      }
+      return out;
+    });
+    expect(Math.abs(sets[0]!.point.distance - sets[1]!.point.distance)).toBeGreaterThan(0.05);
+    const logScale = 0.5 * Math.min(...sets.map((m) => m.point.distance)) ** 2;
+    const task = { kind: 'importance' as const, design: d, seed: 'sets', chunk: 0, count: 20000, spec: 8e-3, logScale, union: true };
+    const explicit = runChunk({ ...task, shifts: centres }) as ImportanceResult;
+    const mixed = runChunk({ ...task, shifts: [], mirroredSets: sets.map((m) => ({ groupSize: 2, groups: cells, fixed: m.fixed, own: m.own, rest: m.rest })) }) as ImportanceResult;
+    const est = (r: ImportanceResult) => {
+      const p = r.sum / r.count;
+      return { p, se: Math.sqrt(Math.max(0, r.sumSquares / r.count - p * p) / r.count) };
+    };
+    const a = est(explicit);
+    const b = est(mixed);
+    expect(mixed.hits).toBeGreaterThan(2000);
+    // Each condition's own failures are gathered too.
+    expect(mixed.byCondition).toHaveLength(2);
+    // Different draws (the set mixture picks a set, then a centre), so the two agree in distribution only.
+    expect(Math.abs(a.p - b.p)).toBeLessThan(4 * Math.hypot(a.se, b.se));
+    expect(b.se / b.p).toBeLessThan(0.05);
   });
 
   it.each([

@@ -1,11 +1,13 @@
-import { compileStage, formatQuantity, stageDefinition, type Design, type Stage } from '@twinfet/core';
-import { linearisedSummary, chipFailure, type LinearisedSummary, type SelectionSummary } from '@twinfet/montecarlo';
+import { compileConditions, compileStage, conditionSummary, defaultDriftPair, formatQuantity, namedDriftPair, stageDefinition, type Design, type Stage } from '@twinfet/core';
+import { linearisedDriftSigma, linearisedEstimate, linearisedSummary, chipFailure, type LinearisedSummary, type SelectionSummary } from '@twinfet/montecarlo';
 import { renderPairs, renderTable } from '../table.js';
 import { designSummary, figureSummary, figureText, headerLine, pct, sci, shareLabel } from '../describe.js';
 import type { Command } from 'commander';
 import { loadDesign } from '../designFile.js';
 import { warnUnitSlips } from '../unitWarnings.js';
 import { assertFinite, printJson, type Io } from '../output.js';
+import { celsius, driftText, fieldCell, fieldColumns, shiftText } from '../conditionsText.js';
+import { parseDrift } from './run.js';
 
 /** The inspect report: operating point and the linearised picture of the stage's figure. */
 export interface InspectReport {
@@ -16,19 +18,57 @@ export interface InspectReport {
   /** Resistor rows, for stages that have resistors. */
   readonly resistors?: NonNullable<Stage['resistors']>;
   readonly analytic: LinearisedSummary;
+  /** With conditions: the linearised sigma and the law's (Gaussian, Bechhofer) yield at each (the design's own values inherited). */
+  readonly conditions?: readonly (Readonly<Record<string, unknown>> & {
+    readonly name: string;
+    readonly temperature: number;
+    readonly linearised: { readonly sigma: number; readonly law: string; readonly yield: number; readonly failure: number };
+  })[];
+  /** With conditions: the linearised sigma of the drift between two of them (null when none is taken). */
+  readonly drift?: null | { readonly from: string; readonly to: string; readonly fromTemperature: number; readonly toTemperature: number; readonly linearisedSigma: number };
   readonly warnings: readonly string[];
 }
 
-/** Builds the inspect report of a design. */
-export function inspectDesign(design: Design): InspectReport {
+/**
+ * Builds the inspect report of a design; `drift` names the two conditions of the drift
+ * (default: the coldest and hottest that differ only in temperature).
+ */
+export function inspectDesign(design: Design, drift?: readonly [string, string]): InspectReport {
   const stage = compileStage(design);
+  const at = compileConditions(design);
+  const pair = drift !== undefined ? namedDriftPair(stage.design, drift, '--drift') : at.length > 0 ? defaultDriftPair(stage.design) : null;
+  const conditions = at.map((c) => {
+    const summary = linearisedSummary(c.stage);
+    const lin = linearisedEstimate(summary);
+    return {
+      ...conditionSummary(stage.design, c.condition),
+      name: c.condition.name,
+      temperature: c.design.temperature,
+      linearised: { sigma: summary.sigma, law: lin.name, yield: 1 - lin.failure, failure: lin.failure },
+    };
+  });
   return {
     design: designSummary(design),
     figure: figureSummary(design),
     operatingPoint: stage.operatingPoint,
     ...(stage.resistors === undefined ? {} : { resistors: stage.resistors }),
     analytic: linearisedSummary(stage),
-    warnings: stage.warnings,
+    ...(at.length === 0
+      ? {}
+      : {
+          conditions,
+          drift:
+            pair === null
+              ? null
+              : {
+                  from: at[pair.from]!.condition.name,
+                  to: at[pair.to]!.condition.name,
+                  fromTemperature: at[pair.from]!.design.temperature,
+                  toTemperature: at[pair.to]!.design.temperature,
+                  linearisedSigma: linearisedDriftSigma(at[pair.from]!.stage, at[pair.to]!.stage),
+                },
+        }),
+    warnings: [...stage.warnings, ...at.flatMap((c) => c.stage.warnings.filter((w) => !stage.warnings.includes(w)).map((w) => `at condition ${c.condition.name}: ${w}`))],
   };
 }
 
@@ -127,6 +167,7 @@ export function renderInspect(r: InspectReport): string {
     '',
     renderBudget(a, r.design),
   ];
+  if (r.conditions !== undefined) parts.push('', renderInspectConditions(r));
   for (const w of r.warnings) parts.push(`warning: ${w}`);
   return parts.join('\n');
 }
@@ -157,6 +198,42 @@ export function yieldFromFailure(failure: number): string {
   return failure < 1e-9 ? `1 - ${failure.toExponential(3)}` : yieldText(1 - failure);
 }
 
+/** The conditions' part of the inspect report: linearised sigma and the law's yield at each, and the linearised drift. */
+export function renderInspectConditions(r: InspectReport): string {
+  const rows = r.conditions ?? [];
+  const fig = stageDefinition(r.design.topology).figure;
+  const format = figureText(fig).format;
+  const cols = fieldColumns(r.design, rows);
+  const hasShift = rows.some((x) => x['shift'] !== undefined);
+  const worst = Math.max(...rows.map((x) => x.linearised.failure));
+  const digits = yieldDigits(1 - worst);
+  // Readable nines down to 1e-9 of failure, as elsewhere; beyond, or where the table's decimals
+  // would round a failure away, `1 - p`.
+  const gaussian = (p: number): string => {
+    if (worst < 1e-9) return yieldFromFailure(p);
+    const text = yieldText(1 - p, digits);
+    return p > 0 && Number(text) === 1 ? `1 - ${p.toExponential(3)}` : text;
+  };
+  const header = ['condition', 'temperature', ...cols.map((x) => x.path), ...(hasShift ? ['shift'] : []), 'linearised sigma', `${rows[0]?.linearised.law ?? 'Gaussian'} yield`];
+  const body = rows.map((x) => [
+    x.name,
+    celsius(x.temperature),
+    ...cols.map((col) => fieldCell(col.f, col.get(x))),
+    ...(hasShift ? [shiftText(x['shift'])] : []),
+    format(x.linearised.sigma),
+    gaussian(x.linearised.failure),
+  ]);
+  const left = new Set([0, ...(hasShift ? [2 + cols.length] : [])]);
+  const d = r.drift;
+  return [
+    `operating conditions (linearised, the same mismatch at each; \`twinfet run\` gives the all-conditions yield)`,
+    renderTable(header, body, header.map((_, i) => (left.has(i) ? 'left' : 'right'))),
+    d === undefined || d === null
+      ? 'drift: none (no two conditions differ only in temperature; choose two with --drift A,B)'
+      : `drift ${d.from} -> ${d.to} (${celsius(d.fromTemperature)} to ${celsius(d.toTemperature)}): linearised sigma ${driftText(fig, d.linearisedSigma)}`,
+  ].join('\n');
+}
+
 /** Registers `twinfet inspect`. */
 export function registerInspect(program: Command, io: Io, setExit: (code: number) => void): void {
   program
@@ -164,10 +241,12 @@ export function registerInspect(program: Command, io: Io, setExit: (code: number
     .description('operating point, linearised offset sigma, variance budget and Gaussian yield of a design')
     .argument('<design>', 'design file (YAML or JSON)')
     .option('--json', 'print one JSON object instead of tables')
-    .action(async (file: string, opts: { json?: boolean }) => {
+    .option('--drift <A,B>', 'the two conditions of the linearised drift, e.g. cold,hot (default: the coldest and hottest that differ only in temperature)')
+    .action(async (file: string, opts: { json?: boolean; drift?: string }) => {
+      const drift = parseDrift(opts.drift);
       const design = await loadDesign(file);
       warnUnitSlips(io, design);
-      const report = inspectDesign(design);
+      const report = inspectDesign(design, drift);
       assertFinite(report);
       if (opts.json === true) printJson(io, report);
       else io.out(renderInspect(report));

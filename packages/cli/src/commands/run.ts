@@ -1,5 +1,5 @@
 import { createWriteStream } from 'node:fs';
-import { compileStage, InputError, MISMATCH_PARAMETERS, stageDefinition, variableDeviation, type Design } from '@twinfet/core';
+import { compileStage, InputError, isInputError, MISMATCH_PARAMETERS, stageDefinition, variableDeviation, type Design } from '@twinfet/core';
 import { linearisedEstimate, responseEnvelope, RUN_LIMITS, simulateWithSamples, type RunOutcome, type RunReport } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
 import { readCommon, readSpec, withCommonOptions, type CommonFlags } from '../commonOptions.js';
@@ -14,6 +14,7 @@ import { textHistogram } from '../textHistogram.js';
 import { renderBudget, selectionPairs, yieldBound, yieldDigits, yieldFromFailure } from './inspect.js';
 import { renderTail } from './tail.js';
 import { writeOutputFile } from '../files.js';
+import { renderRunConditions } from '../conditionsText.js';
 
 interface RunFlags extends CommonFlags {
   samples?: string;
@@ -21,6 +22,17 @@ interface RunFlags extends CommonFlags {
   plot?: string;
   interval?: string;
   method?: string;
+  drift?: string;
+}
+
+/** `--drift A,B`: two condition names (checked against the design by the library). */
+export function parseDrift(text: string | undefined): readonly [string, string] | undefined {
+  if (text === undefined) return undefined;
+  const parts = text.split(',').map((x) => x.trim());
+  if (parts.length !== 2 || parts.some((x) => x === '')) {
+    throw new InputError('--drift', `expected two condition names joined by a comma, such as --drift cold,hot, got "${text}"`);
+  }
+  return [parts[0]!, parts[1]!];
 }
 
 /** Largest run whose every draw may be written to --samples-out. */
@@ -41,7 +53,7 @@ function parseRunFlags(flags: RunFlags) {
   if (flags.plot !== undefined && !flags.plot.toLowerCase().endsWith('.svg')) {
     throw new InputError('--plot', `expected a file name ending in .svg, got "${flags.plot}"`);
   }
-  return { ...common, samples, interval: interval as 'clopper-pearson' | 'wilson', method };
+  return { ...common, samples, interval: interval as 'clopper-pearson' | 'wilson', method, drift: parseDrift(flags.drift) };
 }
 
 /** Writes every sample's figure and physical mismatch draws as CSV. */
@@ -49,7 +61,16 @@ async function writeSamplesCsv(path: string, outcome: RunOutcome): Promise<void>
   const { offsets, draws, dimension, variables } = outcome;
   if (offsets === undefined || draws === undefined) throw new Error('internal: samples were not kept');
   const fig = outcome.figure;
-  const header = ['sample', `${fig.name}_${fig.unit === '' ? 'rel' : fig.unit}`, ...variables.map((v) => `${v.device}_${MISMATCH_PARAMETERS[v.parameter].column}`)];
+  const column = `${fig.name}_${fig.unit === '' ? 'rel' : fig.unit}`;
+  const atConditions = outcome.conditionFigures ?? [];
+  const names = outcome.report.conditions?.map((c) => c.name) ?? [];
+  const header = [
+    'sample',
+    column,
+    ...names.map((n) => `${column}_at_${n}`),
+    ...variables.map((v) => `${v.device}_${MISMATCH_PARAMETERS[v.parameter].column}`),
+  ];
+  const figureCell = (x: number): string => (Number.isNaN(x) ? 'NaN' : x.toPrecision(9));
   const stream = createWriteStream(path);
   const done = new Promise<void>((resolve, reject) => {
     stream.on('error', (e) => reject(new InputError('--samples-out', `cannot write "${path}": ${e.message}`)));
@@ -58,7 +79,7 @@ async function writeSamplesCsv(path: string, outcome: RunOutcome): Promise<void>
   stream.write(`${header.join(',')}\n`);
   let chunk = '';
   for (let i = 0; i < offsets.length; i++) {
-    const row: string[] = [String(i), Number.isNaN(offsets[i]!) ? 'NaN' : offsets[i]!.toPrecision(9)];
+    const row: string[] = [String(i), figureCell(offsets[i]!), ...atConditions.map((a) => figureCell(a[i]!))];
     for (let j = 0; j < dimension; j++) row.push(variableDeviation(variables, draws, i * dimension, j).toPrecision(9));
     chunk += `${row.join(',')}\n`;
     if (chunk.length > 1 << 20) {
@@ -138,6 +159,7 @@ export function renderRun(r: RunReport, design: Design): string {
   const lines = [
     headerLine(design),
     `Monte Carlo on the exact model: ${r.evaluated} samples${r.partial ? ' (PARTIAL: interrupted, finished chunks only)' : ''}, seed ${r.seed}, ${r.workers} worker(s), ${r.seconds.toFixed(2)} s, ${sci(r.samplesPerSecond, 3)} samples/s`,
+    ...(r.conditions === undefined ? [] : [`the ${f.label} statistics, quantiles, histogram and budget below are at the design's own temperature and bias; the ${r.conditions.length} operating conditions follow them`]),
     '',
     renderPairs([
       [`${f.label} mean`, `${mv(r.offset.mean)}   ${c} ${range(r.offset.meanInterval, mv)}`],
@@ -160,7 +182,8 @@ export function renderRun(r: RunReport, design: Design): string {
     '',
     renderBudget(r.analytic, design),
     '',
-    renderPairs([
+    ...(r.conditions === undefined ? [] : [renderRunConditions(r, design, yieldDigits), '']),
+    renderPairs(r.conditions === undefined ? [
       [`spec ${f.magnitude} <=`, mv(r.yield.spec)],
       [
         'failures',
@@ -176,6 +199,15 @@ export function renderRun(r: RunReport, design: Design): string {
             ] as [string, string],
           ]),
       [`chip yield (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, yieldWithInterval(r.chip.estimate, r.chip.interval, c, r.yield.failures, r.evaluated)],
+    ] : [
+      [`spec ${f.magnitude} <=`, mv(r.yield.spec)],
+      [
+        'failures',
+        `${r.yield.failures} of ${r.yield.evaluated ?? r.evaluated} fail at one condition at least${twoSided ? ` (${r.yield.failuresHigh} above +spec somewhere, ${r.yield.failuresLow} below -spec somewhere)` : ''}${r.yield.failures === 0 ? `; failure probability at most ${sci(r.yield.failure.interval[1], 4)} (upper end of the ${c} interval)` : ''}`,
+      ],
+      ['yield, all conditions', `${yieldWithInterval(r.yield.estimate, r.yield.interval, c, r.yield.failures, r.yield.evaluated ?? r.evaluated)} (${r.yield.method}; an instance passes only if it passes at every condition)`],
+      ['worst condition', `${r.yield.worst ?? '-'} (the lowest yield of its own)`],
+      [`chip yield (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, `${yieldWithInterval(r.chip.estimate, r.chip.interval, c, r.yield.failures, r.yield.evaluated ?? r.evaluated)} (from the all-conditions yield)`],
     ]),
   ];
   // The spec and the Bechhofer figures are in the yield lines above; the sigma and the leads are added.
@@ -213,6 +245,7 @@ export function registerRun(program: Command, io: Io, setExit: (code: number) =>
       .option('--spec <V>', "limit overriding the design's spec, e.g. 20mV (an offset) or 1% (a current error)")
       .option('--interval <M>', 'yield interval: clopper-pearson (default) or wilson')
       .option('--method <M>', 'plain (default), or importance to add the high-sigma estimate')
+      .option('--drift <A,B>', 'the two conditions to take the drift of the figure between, e.g. cold,hot (default: the coldest and hottest that differ only in temperature)')
       .option('--samples-out <FILE.csv>', "write each sample's figure and mismatch draws")
       .option('--plot <FILE.svg>', "histogram with the fitted Gaussian and the +-spec lines (a selector: the winner's share against the lead, with its mismatch envelope)"),
   ).action(async (file: string, flags: RunFlags) => {
@@ -233,6 +266,11 @@ export function registerRun(program: Command, io: Io, setExit: (code: number) =>
         ...(o.seed === undefined ? {} : { seed: o.seed }),
         ...(spec === undefined ? {} : { spec }),
         ...(o.method === 'importance' ? { importance: true } : {}),
+        ...(o.drift === undefined ? {} : { drift: o.drift }),
+      }).catch((e: unknown) => {
+        // The library names its own option; on the command line it is --drift.
+        if (isInputError(e) && e.field === 'drift') throw new InputError('--drift', e.message.slice(e.field.length + 2));
+        throw e;
       }),
     );
     if (!('value' in done)) {

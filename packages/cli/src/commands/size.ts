@@ -136,6 +136,12 @@ export function renderSize(r: SizeReport, source: string, design: Design): strin
     ['instance yield', `${c.failure === 0 ? `1 (no failures in ${c.samples} samples)` : bound(1 - c.failure)}   ${figureLaw(compileStage(design)).name} estimate ${yieldText(1 - r.result.gaussianFailure)}`],
     [`chip yield (${r.instances})`, `${bound(c.chipYield)}   ${cl} [${bound(c.chipYieldInterval[0])}, ${bound(c.chipYieldInterval[1])}]`],
     ['target', c.met ? `met: ${r.rule}` : `NOT met (${r.rule})`],
+    ...(c.condition === null
+      ? []
+      : ([[
+          'limited by',
+          `condition ${c.condition} on the exact model (${r.target.kind === 'sigma' ? 'largest sigma' : 'lowest yield'}; the target holds at every one of ${design.conditions?.length ?? 0} conditions); ${r.result.condition ?? '-'} has the largest linearised sigma`,
+        ]] as [string, string][])),
     ['gate area', `varied devices ${um2(r.original.variedArea)} -> ${um2(r.result.variedArea)}; whole stage ${um2(r.original.totalGateArea)} -> ${um2(r.result.totalGateArea)}`],
     [
       'area rule',

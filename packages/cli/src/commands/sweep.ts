@@ -106,6 +106,8 @@ export function renderSweep(r: SweepReport, f: SweepField): string {
   const yieldHead = hasTail ? 'yield (IS)' : 'yield';
   const header = [f.path, 'analytic sigma', 'MC sigma', `${c} interval`, yieldHead, `${c} interval`, chipHead];
   if (hasTail) header.push('IS failure', `${c} interval`, 'sigma level');
+  const withConditions = r.points.some((p) => p.limitingCondition !== null);
+  if (withConditions) header.push('limited by (sigma / yield)');
   if (r.targets.sigma !== null) header.push(`sigma <= ${mv(r.targets.sigma)}`);
   if (r.targets.yield !== null) header.push(`yield >= ${r.targets.yield}`);
   const wholeNumbers = SWEEP_FIELDS.find((x) => x.path === r.field)?.integer === true;
@@ -129,12 +131,14 @@ export function renderSweep(r: SweepReport, f: SweepField): string {
       // A point whose spec lies in the bulk was estimated by plain Monte Carlo (marked MC).
       row.push(`${sci(t.failure, 4)}${t.method === 'monte-carlo' ? ' (MC)' : ''}`, `[${sci(t.interval[0], 3)}, ${sci(t.interval[1], 3)}]`, t.sigmaLevel === null ? 'n/a' : t.sigmaLevel.toFixed(3));
     }
+    if (withConditions) row.push(p.limitingCondition === null ? '-' : `${p.limitingCondition.sigma} / ${p.limitingCondition.yield}`);
     if (p.meetsTarget.sigma !== null) row.push(p.meetsTarget.sigma);
     if (p.meetsTarget.yield !== null) row.push(p.meetsTarget.yield);
     return row;
   });
   const lines = [
     `${r.design.name}  (${r.design.topology} stage) sweeping ${f.path}: ${r.points.length} points${r.log ? ' (log spacing)' : ''}, ${r.samples} Monte Carlo samples per point, seed ${r.seed} at every point`,
+    ...(withConditions ? ['with operating conditions: each sigma is the largest over the conditions and each yield the all-conditions yield (an instance passes only if it passes at every condition)'] : []),
     '',
     renderTable(header, rows, header.map((_, i) => (i === 0 ? 'left' : 'right'))),
   ];
@@ -248,6 +252,10 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
     // A warning that holds at every point (a caution of the model itself) is given once, unprefixed.
     const everywhere = (w: string): boolean => points.length > 1 && points.every((p) => p.warnings.includes(w));
     const warnings = [...new Set(points.flatMap((p) => p.warnings.map((w) => (everywhere(w) ? w : `at ${f.path} = ${shown(f, values[p.index]!)}: ${w}`))))];
+    const ownTemperature = (design.conditions ?? []).filter((c) => c.temperature !== undefined).map((c) => c.name);
+    if (f.path === 'temperature' && ownTemperature.length > 0) {
+      notes.push(`the conditions ${ownTemperature.join(', ')} set their own temperature, which the sweep does not change; the others follow it`);
+    }
     if (points.some((p) => p.monteCarlo.limitedBySamples) && method === 'plain') {
       notes.push('some points saw fewer than 10 failures: their yields are limited by the sample count; add --method importance for high-sigma figures');
     }

@@ -33,13 +33,28 @@ function chipYieldText(chipYield: number, failure: number, instances: number): s
   return failure >= 1 ? '0 (every instance fails)' : `10^${((instances * Math.log1p(-failure)) / Math.LN10).toFixed(0)}`;
 }
 
+/** The design-point table (with a condition column when the failure is over conditions). */
+function pointsTable(rows: string[][], union: boolean): string {
+  const header = [...(union ? ['condition'] : []), 'side', 'distance', 'FORM p', 'found by', 'dominant mismatch'];
+  return renderTable(header, rows, [...(union ? ['left' as const] : []), 'left', 'right', 'right', 'left', 'left']);
+}
+
+/** Each condition's own failure probability from the union estimate's samples. */
+function conditionRows(r: HighSigmaReport): string {
+  const c = `${Math.round(r.confidence * 1000) / 10}%`;
+  const rows = (r.conditions ?? []).map((x) => [x.name, sci(x.failureProbability, 4), `[${sci(x.interval[0], 4)}, ${sci(x.interval[1], 4)}]`, sci(x.form, 4)]);
+  return renderTable(['condition', 'failure', `${c} interval`, 'FORM p'], rows);
+}
+
 /** Text form of a high-sigma estimate of the design's figure (also used inside `run --method importance`). */
 export function renderTail(r: HighSigmaReport, design: Pick<Design, 'topology'>): string {
   const f = figureText(stageDefinition(design.topology).figure);
   const c = `${Math.round(r.confidence * 1000) / 10}%`;
+  const union = r.conditions !== undefined;
   const pts = r.designPoints.map((p) => {
     const top = [...p.coordinates].sort((a, b) => Math.abs(b.u) - Math.abs(a.u)).slice(0, 4);
     return [
+      ...(union ? [p.condition ?? '-'] : []),
       p.side,
       p.distance.toFixed(4),
       sci(p.form, 4),
@@ -56,7 +71,7 @@ export function renderTail(r: HighSigmaReport, design: Pick<Design, 'topology'>)
       ]),
       '',
       'most probable failure points (standard-normal space; the largest coordinates)',
-      renderTable(['side', 'distance', 'FORM p', 'found by', 'dominant mismatch'], pts, ['left', 'right', 'right', 'left', 'left']),
+      pointsTable(pts, union),
     ].join('\n');
   }
   const plain = r.method === 'monte-carlo';
@@ -71,20 +86,27 @@ export function renderTail(r: HighSigmaReport, design: Pick<Design, 'topology'>)
       : [`chip failure (${instances})`, `${sci(r.chip.failure, 4)}   ${c} [${sci(r.chip.interval[0], 4)}, ${sci(r.chip.interval[1], 4)}]`];
   const halfWidth = r.relativeHalfWidth === null ? 'n/a' : `${Number((r.relativeHalfWidth * 100).toPrecision(3))}%`;
   // Mirror-image regions (a selector's competitors) are named as such; a one-sided figure has one side.
+  const somewhere = union ? ' somewhere' : '';
   const regions: [string, string][] =
     r.mirrorRegions !== undefined
-      ? [['failure regions', `${r.mirrorRegions} mirror images of one another (${r.designPoints[0]?.side ?? ''} and the like), one mixture centre each; the first one's point is shown`]]
+      ? [['failure regions', `${r.mirrorRegions} mirror images of one another (${r.designPoints[0]?.side ?? ''} and the like), one mixture centre each; the first one's point is shown${union ? ' for each condition' : ''}`]]
       : f.magnitude === f.symbol
         ? []
-        : [['by side', `+spec ${sci(r.high, 4)}, -spec ${sci(r.low, 4)}`]];
+        : [['by side', `+spec${somewhere} ${sci(r.high, 4)}, -spec${somewhere} ${sci(r.low, 4)}`]];
   return [
     renderPairs([
       ...(plain ? [['method', `plain Monte Carlo with a Clopper-Pearson interval: ${r.methodReason ?? ''}. For the whole distribution use \`twinfet run\``] as [string, string]] : []),
       [`spec ${f.magnitude} <=`, f.format(r.spec)],
       ['failure probability', `${probWithInterval(r.failureProbability, r.interval, c)}${plain ? ' (Clopper-Pearson)' : ''}`],
       ['equivalent sigma level', `${sig(r.sigmaLevel)}   ${c} [${sig(r.sigmaLevelInterval[0])}, ${sig(r.sigmaLevelInterval[1])}] (two-sided)`],
+      ...(union
+        ? ([['over', `all ${r.conditions!.length} conditions: a sample fails when it fails at one condition at least (${plain ? 'the same draws at every condition' : "mixture over every condition's failure points"})`]] as [string, string][])
+        : []),
       ...regions,
-      [r.mirrorRegions === undefined ? 'FORM estimate' : 'FORM estimate (sum over regions)', `${prob(r.form.failureProbability)} (${sig(r.form.sigmaLevel)} sigma)`],
+      [
+        union ? 'FORM estimate (sum over conditions)' : r.mirrorRegions === undefined ? 'FORM estimate' : 'FORM estimate (sum over regions)',
+        `${prob(r.form.failureProbability)} (${union ? "Boole's bound on the union of the linearised regions; " : ''}${sig(r.form.sigmaLevel)} sigma)`,
+      ],
       chip,
       ['samples', `${r.samples} (${r.hits} failing; stop rule ${r.stopRule}; relative half-width ${halfWidth})`],
       ...(plain
@@ -93,8 +115,9 @@ export function renderTail(r: HighSigmaReport, design: Pick<Design, 'topology'>)
       ['time', `${r.seconds.toFixed(3)} s, seed ${r.seed}`],
     ]),
     '',
+    ...(union ? [`each condition on its own (the same ${plain ? '' : 'weighted '}samples)`, conditionRows(r), ''] : []),
     'most probable failure points (standard-normal space; the largest coordinates)',
-    renderTable(['side', 'distance', 'FORM p', 'found by', 'dominant mismatch'], pts, ['left', 'right', 'right', 'left', 'left']),
+    pointsTable(pts, union),
     ...(r.nonConverged > 0 ? [`warning: ${r.nonConverged} sample(s) whose balance solve did not converge were left out`] : []),
   ].join('\n');
 }

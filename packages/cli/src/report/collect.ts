@@ -5,12 +5,12 @@
  */
 import { createHash } from 'node:crypto';
 import { readFile } from 'node:fs/promises';
-import { compileStage, specLimit, type Design } from '@twinfet/core';
-import { createExecutor, estimateHighSigma, simulateWithSamples, type RunReport } from '@twinfet/montecarlo';
+import { compileStage, conditionFields, specLimit, stageDefinition, type Design, type OperatingCondition } from '@twinfet/core';
+import { createExecutor, estimateHighSigma, simulateWithSamples, type Histogram, type RunReport } from '@twinfet/montecarlo';
 import { studyArea } from './analyses/area.js';
 import { distributionOfRun } from './analyses/distribution.js';
 import { studyTransfer } from './analyses/transfer.js';
-import type { ReportData } from './data.js';
+import type { ConditionRow, ConditionsData, ReportData } from './data.js';
 import { reportStageFor } from './stages/registry.js';
 
 /**
@@ -72,6 +72,7 @@ export async function collectReport(design: Design, o: CollectOptions): Promise<
     const distribution = distributionOfRun(run, outcome.offsets);
     const area = await studyArea(design, { spec, chipYield: o.chipYield, seed: o.seed, confidence: o.confidence, executor, ...signal });
     const transfer = def === undefined ? { none: `the report has no transfer-curve definition for the ${stage.topology} stage yet` } : studyTransfer(stage, def.transfer(stage), run.seed);
+    const conditions = conditionsData(stage.design, run, outcome.driftHistogram);
     const bytes = await readFile(o.source);
     return {
       meta: {
@@ -102,8 +103,53 @@ export async function collectReport(design: Design, o: CollectOptions): Promise<
       distribution,
       area,
       transfer,
+      ...(conditions === undefined ? {} : { conditions }),
     };
   } finally {
     await executor.close();
   }
+}
+
+/** What a condition sets, in SI: its temperature, the stage's bias fields it gives, its process shifts. */
+function settingsOf(design: Design, c: OperatingCondition, temperature: number): ConditionRow['settings'] {
+  const f = conditionFields(stageDefinition(design.topology));
+  const out: { field: string; value: number; unit: string }[] = [{ field: 'temperature', value: temperature, unit: 'K' }];
+  for (const x of f.top) if (typeof c[x.key] === 'number') out.push({ field: x.key, value: c[x.key] as number, unit: x.unit });
+  for (const { block, fields } of f.blocks) {
+    const g = c[block.key] as Record<string, unknown> | undefined;
+    for (const x of fields) if (typeof g?.[x.key] === 'number') out.push({ field: `${block.key}.${x.key}`, value: g[x.key] as number, unit: x.unit });
+  }
+  for (const pol of ['n', 'p'] as const) {
+    const s = c.shift?.[pol];
+    if (s?.kp !== undefined) out.push({ field: `shift ${pol}.kp`, value: s.kp, unit: '%' });
+    if (s?.vt0 !== undefined) out.push({ field: `shift ${pol}.vt0`, value: s.vt0, unit: 'V' });
+  }
+  return out;
+}
+
+/** The drift histogram cut to its occupied bins (it spans +-10 linearised drift sigmas). */
+function trimmed(h: Histogram): NonNullable<ConditionsData['drift']>['histogram'] {
+  const counts = Array.from(h.counts);
+  let first = counts.findIndex((x) => x > 0);
+  let last = counts.length - 1 - [...counts].reverse().findIndex((x) => x > 0);
+  if (first < 0) [first, last] = [0, counts.length - 1];
+  const width = (h.hi - h.lo) / counts.length;
+  return { lo: h.lo + first * width, binWidth: width, counts: counts.slice(first, last + 1) };
+}
+
+/** Section 8's data from the run (undefined without conditions). */
+function conditionsData(design: Design, run: RunReport, drift: Histogram | undefined): ConditionsData | undefined {
+  const list = design.conditions;
+  if (run.conditions === undefined || list === undefined) return undefined;
+  const m = design.spec.instances;
+  const chip = (y: number): number => Math.exp(m * Math.log(y));
+  return {
+    rows: run.conditions.map((c, i) => ({
+      name: c.name,
+      settings: settingsOf(design, list[i]!, c.temperature),
+      chipYield: chip(c.yield.estimate),
+      chipYieldInterval: [chip(c.yield.interval[0]), chip(c.yield.interval[1])],
+    })),
+    ...(run.drift === null || run.drift === undefined || drift === undefined ? {} : { drift: { histogram: trimmed(drift) } }),
+  };
 }

@@ -27,12 +27,14 @@ export interface ReportMeta {
 }
 
 /**
- * Results per operating condition (report section 8), for designs that have conditions. The
- * figure is the report's figure (same name and unit); values are SI.
+ * Results per operating condition (report section 8), for designs that have conditions: the
+ * rows of the run's `conditions` (row i is `run.conditions[i]`, so the page tags its numbers with
+ * the run's JSON paths) with what each condition sets, the all-conditions yield (the run's
+ * `yield`) and the drift (the run's `drift`) with its histogram. Values are SI.
  */
 export interface ConditionsData {
   readonly rows: readonly ConditionRow[];
-  /** The drift of the figure between two conditions, per instance; absent with one condition. */
+  /** The drift of the figure between two conditions, per instance; absent when none is taken. */
   readonly drift?: DriftData;
 }
 
@@ -40,26 +42,16 @@ export interface ConditionsData {
 export interface ConditionRow {
   /** The condition's name, e.g. "hot". */
   readonly name: string;
-  /** What the condition sets, e.g. { field: 'temperature', value: 398.15, unit: 'K' }. */
+  /** What the condition sets, e.g. { field: 'temperature', value: 398.15, unit: 'K' }; a shift as { field: 'shift n.kp', value: -0.1, unit: '%' }. */
   readonly settings: readonly { readonly field: string; readonly value: number; readonly unit: string }[];
-  readonly samples: number;
-  readonly mean: number;
-  readonly sigma: number;
-  readonly sigmaInterval: readonly [number, number];
-  /** Instance yield at the spec and its interval. */
-  readonly yield: number;
-  readonly yieldInterval: readonly [number, number];
+  /** Chip yield from this condition's own instance yield and interval, (y)^instances. */
   readonly chipYield: number;
+  readonly chipYieldInterval: readonly [number, number];
 }
 
-/** The per-instance change of the figure from one condition to another (same mismatch draws). */
+/** The per-instance change of the figure from one condition to another (same mismatch draws), per kelvin. */
 export interface DriftData {
-  readonly from: string;
-  readonly to: string;
-  readonly samples: number;
-  readonly mean: number;
-  readonly sigma: number;
-  /** Equal bins from `lo`, `binWidth` wide. */
+  /** Equal bins from `lo`, `binWidth` wide (the run's drift histogram trimmed to its occupied bins), the figure's unit per K. */
   readonly histogram: { readonly lo: number; readonly binWidth: number; readonly counts: readonly number[] };
 }
 

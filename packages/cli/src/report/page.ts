@@ -38,7 +38,7 @@ function summary(d: ReportData): string {
   const items: [string, string][] = [
     [`sigma of the ${d.stage.figure.label}`, `${num(r.offset.sigma, q(r.offset.sigma, u), { path: `${F}.sigma`, unit: u })} <small>(${c} [${num(r.offset.sigmaInterval[0], q(r.offset.sigmaInterval[0], u), { path: `${F}.sigmaInterval.0`, unit: u })}, ${num(r.offset.sigmaInterval[1], q(r.offset.sigmaInterval[1], u), { path: `${F}.sigmaInterval.1`, unit: u })}])</small>`],
     ['spec', `${d.stage.figure.sided === 'two' ? '\u00b1' : '\u2264 '}${num(r.yield.spec, q(r.yield.spec, u), { path: 'yield.spec', unit: u })} <small>(${plain(linearisedEstimate(r.analytic).level, 3)} sigma)</small>`],
-    ['instance yield', `${yv('yield.estimate', r.yield.estimate, r.yield.interval[0])} <small>(Monte Carlo, ${r.yield.failures} failures)</small>`],
+    [r.yield.over === undefined ? 'instance yield' : 'instance yield, all conditions', `${yv('yield.estimate', r.yield.estimate, r.yield.interval[0])} <small>(Monte Carlo, ${r.yield.failures} failures)</small>`],
     [`chip yield (${r.chip.instances})`, yv('chip.estimate', r.chip.estimate, r.chip.interval[0])],
   ];
   if (r.importance !== undefined) items.push(['high-sigma failure', `${num(r.importance.failureProbability, plain(r.importance.failureProbability, 4), { path: 'importance.failureProbability' })} <small>(importance sampling)</small>`]);

@@ -12,6 +12,7 @@ import { parseQuantity, type Dimension } from '../units.js';
 import { designKeys, unknownDesignKey, unknownSpecKey, validateDesign } from '../validateDesign.js';
 import { closestWord } from './didYouMean.js';
 import { asMapping, describeValue, fieldPath, isMapping, own, refuseUnknownKeys, type Mapping } from './fieldReader.js';
+import { readConditions } from './readConditions.js';
 import { parseJsonText, parseYamlText } from './yamlText.js';
 
 /** The text's syntax: YAML (which includes JSON) or strict JSON. */
@@ -28,7 +29,7 @@ export interface ParseOptions {
 const MOS_KEYS = ['polarity', 'w', 'l'] as const;
 const RESISTOR_KEYS = ['w', 'l'] as const;
 const PROCESS_KEYS = ['n', 'p'] as const;
-const PARAM_KEYS = ['vt0', 'slope', 'kp', 'avt', 'abeta', 'rho', 'cox', 'min_w', 'min_l'] as const;
+const PARAM_KEYS = ['vt0', 'slope', 'kp', 'kp_exponent', 'avt', 'abeta', 'rho', 'cox', 'min_w', 'min_l'] as const;
 const POLARITIES: readonly Polarity[] = ['n', 'p'];
 
 /** Example values quoted in "missing" messages, per process parameter. */
@@ -36,6 +37,7 @@ const PARAM_EXAMPLES: Readonly<Record<(typeof PARAM_KEYS)[number], string>> = {
   vt0: 'vt0: 0.45 V',
   slope: 'slope: 1.3',
   kp: 'kp: 300 uA/V^2',
+  kp_exponent: 'kp_exponent: -1.5',
   avt: 'avt: 5 mV*um',
   abeta: 'abeta: 1 %*um',
   rho: 'rho: 0',
@@ -169,10 +171,13 @@ function readParams(raw: unknown, polarity: Polarity, path: string): ProcessPara
   const cox = optional('cox', 'cox');
   const minW = optional('min_w', 'length');
   const minL = optional('min_l', 'length');
+  const expRaw = own(map, 'kp_exponent');
+  const kpExponent = expRaw === undefined ? undefined : parseQuantity(expRaw, 'dimensionless', fieldPath(path, 'kp_exponent'));
   return {
     vt0,
     slope,
     kp,
+    ...(kpExponent === undefined ? {} : { kpExponent }),
     avt,
     abeta,
     rho,
@@ -188,7 +193,9 @@ function readProcess(top: Mapping, def: StageDefinition, polarities: readonly Po
   if (raw === undefined) throw missing('process', `${fix(polarities[0] ?? 'n')} (one entry per polarity used)`);
   const map = asMapping(raw, 'process', '{ n: { vt0: 0.45 V, slope: 1.3, kp: 300 uA/V^2, avt: 5 mV*um, abeta: 1 %*um } }');
   const hasResistors = def.blocks.some((b) => b.kind === 'resistor');
-  refuseUnknownKeys(map, hasResistors ? [...PROCESS_KEYS, 'resistor'] : PROCESS_KEYS, 'process');
+  refuseUnknownKeys(map, hasResistors ? [...PROCESS_KEYS, 'resistor', 'temperature'] : [...PROCESS_KEYS, 'temperature'], 'process');
+  const tRaw = own(map, 'temperature');
+  const temperature = tRaw === undefined ? undefined : parseQuantity(tRaw, 'temperature', 'process.temperature');
   const nRaw = own(map, 'n');
   const pRaw = own(map, 'p');
   const n = nRaw === undefined ? undefined : readParams(nRaw, 'n', 'process.n');
@@ -202,7 +209,12 @@ function readProcess(top: Mapping, def: StageDefinition, polarities: readonly Po
     if (ar === undefined) throw missing('process.resistor.ar', 'the resistor matching coefficient, e.g. ar: 0.5 %*um');
     resistor = { ar: positiveQuantity(ar, 'abeta', 'process.resistor.ar') };
   }
-  return { ...(n === undefined ? {} : { n }), ...(p === undefined ? {} : { p }), ...(resistor === undefined ? {} : { resistor }) };
+  return {
+    ...(temperature === undefined ? {} : { temperature }),
+    ...(n === undefined ? {} : { n }),
+    ...(p === undefined ? {} : { p }),
+    ...(resistor === undefined ? {} : { resistor }),
+  };
 }
 
 function readSpec(top: Mapping, def: StageDefinition): Design['spec'] {
@@ -294,7 +306,18 @@ export function parseDesign(text: string, options: ParseOptions = {}): Design {
   const polarities = def.blocks.flatMap((b) => (b.kind === 'mos' ? [(blocks[b.key] as DeviceGeometry).polarity] : []));
   const process = readProcess(top, def, polarities);
   const spec = readSpec(top, def);
-  const design = { name, temperature, topology: def.topology, ...fields, ...blocks, process, spec } as unknown as Design;
+  const conditionsRaw = own(top, 'conditions');
+  const conditions = conditionsRaw === undefined ? undefined : readConditions(conditionsRaw, def);
+  const design = {
+    name,
+    temperature,
+    topology: def.topology,
+    ...fields,
+    ...blocks,
+    process,
+    spec,
+    ...(conditions === undefined ? {} : { conditions }),
+  } as unknown as Design;
   return deepFreeze(validateDesign(design));
 }
 

@@ -5,7 +5,9 @@
  * definition says which blocks and fields it has.
  */
 import { Document } from 'yaml';
-import type { Design, ProcessParams } from '../design.js';
+import type { Design, OperatingCondition, ProcessParams } from '../design.js';
+import { conditionFields } from '../conditions.js';
+import type { StageDefinition } from '../stages/definition.js';
 import type { Dimension } from '../units.js';
 import { ZERO_CELSIUS_K } from '../thermal.js';
 import { stageDefinition } from '../stages/registry.js';
@@ -73,6 +75,7 @@ function params(p: ProcessParams): Record<string, string | number> {
     vt0: withUnit(p.vt0, 0, 'V'),
     slope: p.slope,
     kp: quantity(p.kp, 'kp'),
+    ...(p.kpExponent === undefined ? {} : { kp_exponent: p.kpExponent }),
     avt: quantity(p.avt, 'avt'),
     abeta: quantity(p.abeta, 'abeta'),
     rho: p.rho ?? 0,
@@ -80,6 +83,39 @@ function params(p: ProcessParams): Record<string, string | number> {
     ...(p.minW === undefined ? {} : { min_w: quantity(p.minW, 'length') }),
     ...(p.minL === undefined ? {} : { min_l: quantity(p.minL, 'length') }),
   };
+}
+
+function condition(def: StageDefinition, c: OperatingCondition): Record<string, unknown> {
+  const f = conditionFields(def);
+  const out: Record<string, unknown> = { name: c.name };
+  if (c.temperature !== undefined) out['temperature'] = withUnit(c.temperature, 0, 'K');
+  for (const x of f.top) {
+    const v = c[x.key];
+    if (typeof v === 'number') out[x.key] = quantity(v, x.dimension);
+  }
+  for (const { block, fields } of f.blocks) {
+    const g = c[block.key] as Record<string, unknown> | undefined;
+    if (g === undefined) continue;
+    const own: Record<string, string | number> = {};
+    for (const x of fields) {
+      const v = g[x.key];
+      if (typeof v === 'number') own[x.key] = quantity(v, x.dimension);
+    }
+    out[block.key] = own;
+  }
+  if (c.shift !== undefined) {
+    const shift: Record<string, Record<string, string>> = {};
+    for (const pol of ['n', 'p'] as const) {
+      const s = c.shift[pol];
+      if (s === undefined) continue;
+      shift[pol] = {
+        ...(s.kp === undefined ? {} : { kp: withUnit(s.kp, -2, '%') }),
+        ...(s.vt0 === undefined ? {} : { vt0: withUnit(s.vt0, -3, 'mV') }),
+      };
+    }
+    out['shift'] = shift;
+  }
+  return out;
 }
 
 /**
@@ -115,11 +151,13 @@ export function writeDesign(design: Design, header: readonly string[] = []): str
     ...fields,
     ...blocks,
     process: {
+      ...(design.process.temperature === undefined ? {} : { temperature: withUnit(design.process.temperature, 0, 'K') }),
       ...(design.process.n === undefined ? {} : { n: params(design.process.n) }),
       ...(design.process.p === undefined ? {} : { p: params(design.process.p) }),
       ...(design.process.resistor === undefined ? {} : { resistor: { ar: quantity(design.process.resistor.ar, 'abeta') } }),
     },
     spec: { [fig.specKey]: limit === undefined ? undefined : fig.unit === '' ? withUnit(limit, -2, '%') : quantity(limit, fig.dimension), instances: design.spec.instances },
+    ...(design.conditions === undefined ? {} : { conditions: design.conditions.map((c) => condition(def, c)) }),
   };
   const doc = new Document(data);
   const celsius = Number((design.temperature - ZERO_CELSIUS_K).toFixed(6));

@@ -3,7 +3,8 @@
  * the offset distribution, where importance sampling about the failure points has nothing to
  * gain (a design point within ~1.5 sigma) and its normal interval degenerates near p = 1.
  * The interval is Clopper-Pearson's. Uses the Monte Carlo streams of `simulate`, so the same
- * seed and sample count see the same failures as `simulate`.
+ * seed and sample count see the same failures as `simulate`. With `union`, a sample fails when
+ * it fails at one of the design's conditions at least (the same draws at each).
  */
 import type { Design } from '@twinfet/core';
 import type { MonteCarloResult, MonteCarloTask } from '../engine/messages.js';
@@ -27,6 +28,8 @@ export interface BulkCounts {
   readonly nonConverged: number;
   readonly interval: readonly [number, number];
   readonly stopRule: 'relative-error' | 'samples' | 'max-samples';
+  /** With `union`: each condition's own failures over its own converged samples. */
+  readonly byCondition?: readonly { readonly failures: number; readonly samples: number }[];
   /** The executor in use at the end (a pool it opened, which the caller closes). */
   readonly executor: Executor;
 }
@@ -46,6 +49,8 @@ export interface BulkOptions {
   readonly workers: number;
   readonly signal: AbortSignal | undefined;
   readonly onProgress: ((done: number, total: number) => void) | undefined;
+  /** Count failures at one of `design.conditions` at least rather than at the design itself. */
+  readonly union?: boolean;
 }
 
 /**
@@ -58,13 +63,30 @@ export async function bulkFailure(design: Design, o: BulkOptions): Promise<BulkC
   let n = 0;
   let high = 0;
   let low = 0;
+  // high + low without conditions; with them an instance may fail high at one and low at another.
+  let failures = 0;
   let nonConverged = 0;
   let chunk = 0;
   let round = 1;
   let stopRule: BulkCounts['stopRule'] = o.samples === undefined ? 'relative-error' : 'samples';
   let interval: [number, number] = [0, 1];
+  const perCondition = o.union === true ? (design.conditions ?? []).map(() => ({ failures: 0, samples: 0 })) : undefined;
   const consume = (r: MonteCarloResult): void => {
+    const at = r.conditions;
+    if (perCondition !== undefined && at !== undefined) {
+      n += at.evaluatedAll;
+      failures += at.failuresAll;
+      high += at.failuresAllHigh;
+      low += at.failuresAllLow;
+      nonConverged += r.count - at.evaluatedAll;
+      at.perCondition.forEach((c, k) => {
+        perCondition[k]!.failures += c.failuresHigh + c.failuresLow;
+        perCondition[k]!.samples += r.count - c.nonConverged;
+      });
+      return;
+    }
     n += r.count - r.nonConverged;
+    failures += r.failuresHigh + r.failuresLow;
     high += r.failuresHigh;
     low += r.failuresLow;
     nonConverged += r.nonConverged;
@@ -94,6 +116,7 @@ export async function bulkFailure(design: Design, o: BulkOptions): Promise<BulkC
         histogram: { lo: -o.spec, hi: o.spec, bins: 1 },
         keepOffsets: false,
         keepDraws: false,
+        ...(perCondition === undefined ? {} : { conditions: { keepFigures: false, drift: null } }),
       });
       planned += count;
     }
@@ -104,11 +127,21 @@ export async function bulkFailure(design: Design, o: BulkOptions): Promise<BulkC
     });
     drawn += planned;
     if (n > 0) {
-      interval = clopperPearson(high + low, n, o.confidence);
-      const p = (high + low) / n;
+      interval = clopperPearson(failures, n, o.confidence);
+      const p = failures / n;
       if (o.samples === undefined && p > 0 && (interval[1] - interval[0]) / 2 <= o.relError * p) break;
     }
     round = Math.min(round * 2, 64);
   }
-  return { samples: n, failures: high + low, failuresHigh: high, failuresLow: low, nonConverged, interval, stopRule, executor };
+  return {
+    samples: n,
+    failures,
+    failuresHigh: high,
+    failuresLow: low,
+    nonConverged,
+    interval,
+    stopRule,
+    executor,
+    ...(perCondition === undefined ? {} : { byCondition: perCondition }),
+  };
 }

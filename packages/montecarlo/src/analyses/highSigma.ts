@@ -1,13 +1,14 @@
-import { compileStage, InputError, specLimit, variableDeviation, type Design, type Stage } from '@twinfet/core';
+import { compileConditions, compileStage, InputError, specLimit, variableDeviation, type Design, type Stage } from '@twinfet/core';
 import { findDesignPoint, type DesignPoint } from './designPoint.js';
 import { findMirroredDesignPoint, type MirroredDesignPoint } from './mirroredDesignPoint.js';
-import type { ImportanceResult, ImportanceTask } from '../engine/messages.js';
+import type { ImportanceResult, ImportanceTask, MirroredCentres } from '../engine/messages.js';
 import { normalQuantile, sigmaLevel, sigmaLevelOfTails } from '../stats/normal.js';
 import { createExecutor, defaultWorkers, inThreadExecutor, type Executor } from '../engine/pool.js';
 import { runChunks, taskList } from '../engine/schedule.js';
 import { seedText } from '../random/seed.js';
 import { chipFailure, chipYieldFromFailure } from '../stats/yield.js';
 import { BULK_DISTANCE, BULK_FAILURE, bulkFailure } from './bulkFailure.js';
+import { clopperPearson } from '../stats/clopperPearson.js';
 
 /** Importance-sampling chunk size: small, so the stop rule can act after a few thousand samples. */
 export const IMPORTANCE_CHUNK = 4096;
@@ -37,6 +38,8 @@ export interface HighSigmaOptions {
 export interface ReportedDesignPoint {
   /** The failure region (`+spec`, `-spec`, or the stage's own label). */
   readonly side: string;
+  /** With conditions: the condition whose failure region this is. */
+  readonly condition?: string;
   readonly distance: number;
   readonly form: number;
   readonly method: DesignPoint['method'];
@@ -111,6 +114,21 @@ export interface HighSigmaReport {
     readonly yield: number;
     readonly yieldInterval: readonly [number, number];
   };
+  /**
+   * With conditions: `all conditions`, and the failure above is P(fails at one condition at
+   * least) from a mixture over every condition's design points; `high`/`low` are then P(beyond
+   * +spec somewhere) and P(beyond -spec somewhere), and the FORM figure is the sum over points.
+   */
+  readonly over?: 'all conditions';
+  /** With conditions: each condition's own failure probability from the same samples. */
+  readonly conditions?: readonly {
+    readonly name: string;
+    readonly failureProbability: number;
+    readonly standardError: number;
+    readonly interval: readonly [number, number];
+    /** Sum of Phi(-distance) over this condition's failure regions. */
+    readonly form: number;
+  }[];
   readonly seconds: number;
 }
 
@@ -119,9 +137,10 @@ function finiteOrNull(x: number): number | null {
   return Number.isFinite(x) ? x : null;
 }
 
-function describePoint(stage: Stage, p: DesignPoint): ReportedDesignPoint {
+function describePoint(stage: Stage, p: DesignPoint, condition?: string): ReportedDesignPoint {
   return {
     side: p.label,
+    ...(condition === undefined ? {} : { condition }),
     distance: p.distance,
     form: p.form,
     method: p.method,
@@ -166,20 +185,39 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
   const relError = options.relError ?? 0.05;
   const seed = seedText(options.seed);
   const z = normalQuantile(1 - (1 - confidence) / 2);
-  const components = stage.failureComponents(spec);
+  // With conditions the failure is the union over them: a mixture over every condition's design
+  // points (for mirror-image regions, the equal mixture of each condition's mirrored mixture).
+  const atConditions = compileConditions(design);
+  const union = atConditions.length > 0;
   const symmetry = stage.failureSymmetry;
-  let mirrored: MirroredDesignPoint | undefined;
-  let points: DesignPoint[];
-  if (symmetry !== undefined) {
-    mirrored = findMirroredDesignPoint(stage, components[0]!, symmetry.groupSize);
-    points = [mirrored.point];
-  } else points = components.map((c) => findDesignPoint(stage, c));
-  const mixture: Pick<ImportanceTask, 'shifts' | 'mirrored'> =
-    mirrored === undefined
-      ? { shifts: points.map((p) => p.u) }
-      : { shifts: [], mirrored: { groupSize: mirrored.groupSize, groups: mirrored.groups, fixed: mirrored.fixed, own: mirrored.own, rest: mirrored.rest } };
-  // Every mirror image has the same distance, so the regions' FORM sum is copies of the first's.
-  const regions = components.length;
+  interface Located {
+    readonly stage: Stage;
+    /** Index of the condition (-1: the design itself). */
+    readonly k: number;
+    readonly regions: number;
+    readonly points: DesignPoint[];
+    readonly mirrored?: MirroredDesignPoint;
+  }
+  const located: Located[] = (union ? atConditions.map((cs, k) => ({ stage: cs.stage, k })) : [{ stage, k: -1 }]).map((at) => {
+    const components = at.stage.failureComponents(spec);
+    if (symmetry === undefined) return { ...at, regions: components.length, points: components.map((c) => findDesignPoint(at.stage, c)) };
+    const mirrored = findMirroredDesignPoint(at.stage, components[0]!, symmetry.groupSize);
+    return { ...at, regions: components.length, points: [mirrored.point], mirrored };
+  });
+  const points: DesignPoint[] = located.flatMap((x) => x.points);
+  const centres = (m: MirroredDesignPoint): MirroredCentres => ({ groupSize: m.groupSize, groups: m.groups, fixed: m.fixed, own: m.own, rest: m.rest });
+  const mirrorSets = located.flatMap((x) => (x.mirrored === undefined ? [] : [centres(x.mirrored)]));
+  const mixture: Pick<ImportanceTask, 'shifts' | 'mirrored' | 'mirroredSets'> =
+    symmetry === undefined ? { shifts: points.map((p) => p.u) } : union ? { shifts: [], mirroredSets: mirrorSets } : { shifts: [], mirrored: mirrorSets[0]! };
+  // Every mirror image has the same distance, so a set's FORM sum is copies of its first point's.
+  const formOf = (x: Located): number => (x.mirrored === undefined ? x.points.reduce((acc, p) => acc + p.form, 0) : x.regions * x.points[0]!.form);
+  const distancesOf = (x: Located): number[] =>
+    x.mirrored === undefined ? x.points.map((p) => p.distance) : new Array<number>(x.regions).fill(x.points[0]!.distance);
+  const regions = located[0]!.regions;
+  const reportedPoints = (): ReportedDesignPoint[] =>
+    located.flatMap((x) => x.points.map((pt) => describePoint(x.stage, pt, x.k < 0 ? undefined : atConditions[x.k]!.condition.name)));
+  const byCondition = atConditions.map(() => 0);
+  const byConditionSquares = atConditions.map(() => 0);
   const fixed = options.samples;
   const maxSamples = fixed ?? options.maxSamples ?? 1e7;
 
@@ -205,6 +243,8 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
     sumLow += r.sumLow;
     hits += r.hits;
     nonConverged += r.nonConverged;
+    r.byCondition?.forEach((x, k) => (byCondition[k]! += x));
+    r.byConditionSquares?.forEach((x, k) => (byConditionSquares[k]! += x));
   };
   // Sums are of w e^{logScale}: with the scale at the nearer design point's b^2/2 the scaled
   // weights near the failure region are of order 1 at any distance (see ImportanceTask).
@@ -216,7 +256,7 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
     const variance = Math.max(0, sumSquares / n - ps * ps);
     return { ps, ses: Math.sqrt(variance / n), variance };
   };
-  const formTails = mirrored === undefined ? points.reduce((acc, p) => acc + p.form, 0) : regions * points[0]!.form;
+  const formTails = located.reduce((acc, x) => acc + formOf(x), 0);
   const nearest = Math.min(...points.map((p) => p.distance));
   const inBulk = nearest < BULK_DISTANCE || formTails > BULK_FAILURE;
   const belowDoubleRange = !inBulk && formTails < 1e-300 && Math.exp(-logScale) === 0;
@@ -235,6 +275,7 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
       workers: wantedWorkers,
       signal: options.signal,
       onProgress: options.onProgress,
+      union,
     });
     executor = b.executor;
     const p = b.failures / b.samples;
@@ -260,9 +301,25 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
       belowDoubleRange: false,
       relativeVariancePerSample: p > 0 ? (1 - p) / p : null,
       equivalentPlainSamples: null,
-      designPoints: points.map((pt) => describePoint(stage, pt)),
-      form: { failureProbability: formTails, sigmaLevel: sigmaLevelOfTails(points.map((pt) => pt.distance)) },
+      designPoints: reportedPoints(),
+      ...(symmetry === undefined ? {} : { mirrorRegions: regions }),
+      form: { failureProbability: formTails, sigmaLevel: sigmaLevelOfTails(located.flatMap(distancesOf)) },
       chip: chipFigures(p, lo, hi, instances),
+      ...(b.byCondition === undefined
+        ? {}
+        : {
+            over: 'all conditions' as const,
+            conditions: b.byCondition.map((c, k) => {
+              const pk = c.samples > 0 ? c.failures / c.samples : 0;
+              return {
+                name: atConditions[k]!.condition.name,
+                failureProbability: pk,
+                standardError: c.samples > 0 ? Math.sqrt((pk * (1 - pk)) / c.samples) : 0,
+                interval: c.samples > 0 ? clopperPearson(c.failures, c.samples, confidence) : ([0, 1] as const),
+                form: formOf(located[k]!),
+              };
+            }),
+          }),
       seconds: (performance.now() - started) / 1000,
     };
   };
@@ -281,7 +338,7 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
       let planned = 0;
       for (let c = 0; c < round && planned < remaining; c++) {
         const count = Math.min(IMPORTANCE_CHUNK, remaining - planned);
-        tasks.push({ kind: 'importance', design, seed, chunk: chunk++, count, spec, ...mixture, logScale });
+        tasks.push({ kind: 'importance', design, seed, chunk: chunk++, count, spec, ...mixture, logScale, ...(union ? { union: true } : {}) });
         planned += count;
       }
       await runChunks(executor, taskList(tasks), consume, {
@@ -315,7 +372,7 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
   const formP = formTails;
   const has = ps > 0;
   const relHalf = has ? (z * ses) / ps : null;
-  const formLevel = sigmaLevelOfTails(mirrored === undefined ? points.map((p) => p.distance) : new Array<number>(regions).fill(points[0]!.distance));
+  const formLevel = sigmaLevelOfTails(located.flatMap(distancesOf));
   return {
     spec,
     method: 'importance-sampling',
@@ -337,11 +394,29 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
     belowDoubleRange,
     relativeVariancePerSample: has ? variance / (ps * ps) : null,
     equivalentPlainSamples: relHalf !== null && relHalf > 0 && p > 0 ? finiteOrNull((z * z * (1 - p)) / p / relHalf / relHalf) : null,
-    designPoints: points.map((pt) => describePoint(stage, pt)),
-    ...(mirrored === undefined ? {} : { mirrorRegions: regions }),
+    designPoints: reportedPoints(),
+    ...(symmetry === undefined ? {} : { mirrorRegions: regions }),
     // From the distances, not from formP: beyond ~38 sigma formP underflows to 0 and its level would be Infinity.
     form: { failureProbability: formP, sigmaLevel: formLevel },
     chip: chipFigures(p, lo, hi, instances),
+    ...(union
+      ? {
+          over: 'all conditions' as const,
+          conditions: atConditions.map((cs, k) => {
+            const pk = n > 0 ? byCondition[k]! / n : 0;
+            const vk = n > 0 ? Math.max(0, byConditionSquares[k]! / n - pk * pk) : 0;
+            const estimate = Math.min(1, pk * unscale);
+            const sek = Math.sqrt(vk / Math.max(1, n)) * unscale;
+            return {
+              name: cs.condition.name,
+              failureProbability: estimate,
+              standardError: sek,
+              interval: [Math.max(0, estimate - z * sek), Math.min(1, estimate + z * sek)] as const,
+              form: formOf(located[k]!),
+            };
+          }),
+        }
+      : {}),
     seconds: (performance.now() - started) / 1000,
   };
 }

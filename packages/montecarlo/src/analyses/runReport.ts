@@ -3,7 +3,7 @@
  * kurtosis and sigma interval (Bonett's, which holds for non-Gaussian figures), exact or histogram quantiles, the yield with its interval, the chip yield,
  * and the linearised picture beside it.
  */
-import type { Stage } from '@twinfet/core';
+import type { ConditionStage, Stage } from '@twinfet/core';
 import { clopperPearson } from '../stats/clopperPearson.js';
 import { binWidth, createHistogram, quantileFromHistogram, type Histogram } from '../stats/histogram.js';
 import { selectQuantiles, withoutNaN } from '../stats/selectQuantiles.js';
@@ -14,6 +14,7 @@ import { wilson } from '../stats/wilson.js';
 import { CHUNK_SIZE } from '../engine/schedule.js';
 import type { HighSigmaReport } from './highSigma.js';
 import type { LinearisedSummary } from './linearisedSummary.js';
+import type { ConditionResult, ConditionsOutcome, DriftReport } from './conditionRun.js';
 import type { ResponseSummary } from './response.js';
 
 /** Quantile levels reported for the signed figure and for its magnitude. */
@@ -85,9 +86,25 @@ export interface RunReport {
     readonly failure: { readonly estimate: number; readonly interval: readonly [number, number] };
     /** Fewer than 10 failures: the estimate is limited by the sample count. */
     readonly limitedBySamples: boolean;
+    /**
+     * With conditions: `all conditions`. The yield is then over the samples evaluated at every
+     * condition (`evaluated`), an instance failing when it fails at one condition at least; the
+     * high and low counts are of instances beyond +spec (or -spec) somewhere, and may overlap.
+     */
+    readonly over?: 'all conditions';
+    readonly evaluated?: number;
+    /** With conditions: the condition with the lowest yield. */
+    readonly worst?: string;
   };
   readonly chip: { readonly instances: number; readonly estimate: number; readonly interval: readonly [number, number] };
   readonly importance?: HighSigmaReport;
+  /**
+   * With conditions: every condition's figures from the same draws. The `offset`, `histogram`
+   * and `analytic` blocks above then describe the design at its own temperature and bias.
+   */
+  readonly conditions?: readonly ConditionResult[];
+  /** With conditions at two temperatures: the per-sample drift (null when none was taken). */
+  readonly drift?: DriftReport | null;
   /** The stage's transfer curve at the spec (a selector's winner's share), nominal and spread. */
   readonly response?: ResponseSummary;
   readonly nonConverged: number;
@@ -125,6 +142,9 @@ export interface RunTally {
   readonly response?: ResponseSummary | undefined;
   /** performance.now() at the start of the run. */
   readonly started: number;
+  /** With conditions: their statistics, and their compiled stages (for their warnings). */
+  readonly atConditions?: ConditionsOutcome;
+  readonly conditionStages?: readonly ConditionStage[];
 }
 
 /** Exact quantiles of the kept figures (of their magnitudes with `absolute`), as a full sort would give them. */
@@ -159,9 +179,12 @@ export function assembleRunReport(stage: Stage, t: RunTally): RunReport {
   const n = moments.count;
   const sigma = Math.sqrt(moments.m2 / (n - 1));
   const z = normalQuantile(1 - (1 - confidence) / 2);
-  const failures = failuresHigh + failuresLow;
-  const failInterval = method === 'wilson' ? wilson(failures, n, confidence) : clopperPearson(failures, n, confidence);
-  const y = 1 - failures / n;
+  const atAll = t.atConditions;
+  // With conditions the yield is the all-conditions yield: an instance passes only if it passes at every one.
+  const failures = atAll === undefined ? failuresHigh + failuresLow : atAll.all.failures;
+  const nYield = atAll === undefined ? n : atAll.all.evaluated;
+  const failInterval = method === 'wilson' ? wilson(failures, nYield, confidence) : clopperPearson(failures, nYield, confidence);
+  const y = 1 - failures / nYield;
   const yLo = 1 - failInterval[1];
   const yHi = 1 - failInterval[0];
   const m = stage.design.spec.instances;
@@ -190,13 +213,19 @@ export function assembleRunReport(stage: Stage, t: RunTally): RunReport {
   const standardErrors = (sigma - analytic.sigma) / se;
   let yieldAgreement: NonNullable<RunReport['analytic']['yieldAgreement']> | undefined;
   if (!('gaussian' in analytic)) {
+    // The law is the design's own: compare it with the design's own yield, not the all-conditions one.
     const p = analytic.yield.estimate;
-    const zy = (y - p) / Math.sqrt((p * (1 - p)) / n);
-    yieldAgreement = { difference: y - p, standardErrors: zy, consistent: Math.abs(zy) <= AGREEMENT_Z };
+    const own = 1 - (failuresHigh + failuresLow) / n;
+    const zy = (own - p) / Math.sqrt((p * (1 - p)) / n);
+    yieldAgreement = { difference: own - p, standardErrors: zy, consistent: Math.abs(zy) <= AGREEMENT_Z };
   }
   const response = t.response;
   const warnings = [...stage.warnings];
   if (nonConverged > 0) warnings.push(`${nonConverged} sample(s) whose balance solve did not converge were left out of every statistic`);
+  for (const c of atAll?.conditions ?? []) {
+    if (c.nonConverged > 0) warnings.push(`at condition ${c.name}: ${c.nonConverged} sample(s) whose balance solve did not converge were left out of its statistics and of the all-conditions yield`);
+  }
+  for (const cs of t.conditionStages ?? []) for (const w of cs.stage.warnings) if (!stage.warnings.includes(w)) warnings.push(`at condition ${cs.condition.name}: ${w}`);
   if (histogram.underflow + histogram.overflow > 0) {
     warnings.push(`${histogram.underflow + histogram.overflow} sample(s) fell outside the histogram range +-${range.toExponential(3)}${fig.unit === "" ? "" : ` ${fig.unit}`} (counted in every other statistic)`);
   }
@@ -242,17 +271,19 @@ export function assembleRunReport(stage: Stage, t: RunTally): RunReport {
     yield: {
       spec,
       failures,
-      failuresHigh,
-      failuresLow,
+      failuresHigh: atAll === undefined ? failuresHigh : atAll.all.failuresHigh,
+      failuresLow: atAll === undefined ? failuresLow : atAll.all.failuresLow,
       estimate: y,
       interval: [yLo, yHi],
       confidence,
       method,
-      failure: { estimate: failures / n, interval: failInterval },
+      failure: { estimate: failures / nYield, interval: failInterval },
       limitedBySamples: failures < FEW_FAILURES,
+      ...(atAll === undefined ? {} : { over: 'all conditions' as const, evaluated: nYield, worst: atAll.all.worst }),
     },
     chip: { instances: m, estimate: chip(y), interval: [chip(yLo), chip(yHi)] },
     ...(importance === undefined ? {} : { importance }),
+    ...(atAll === undefined ? {} : { conditions: atAll.conditions, drift: atAll.drift }),
     ...(response === undefined ? {} : { response }),
     nonConverged,
     seconds,

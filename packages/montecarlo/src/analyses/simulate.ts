@@ -1,6 +1,6 @@
-import { compileStage, InputError, specLimit, type Design, type FigureDefinition, type RandomVariable } from '@twinfet/core';
+import { compileConditions, compileStage, InputError, specLimit, type Design, type FigureDefinition, type RandomVariable } from '@twinfet/core';
 import { linearisedSummary } from './linearisedSummary.js';
-import { createHistogram, mergeHistograms } from '../stats/histogram.js';
+import { createHistogram, mergeHistograms, type Histogram } from '../stats/histogram.js';
 import type { InjectedFault, MonteCarloResult, MonteCarloTask } from '../engine/messages.js';
 import { emptyMoments, mergeMoments, type Moments } from '../stats/moments.js';
 import { createExecutor, defaultWorkers, type Executor } from '../engine/pool.js';
@@ -8,6 +8,7 @@ import { CHUNK_SIZE, chunkCount, chunkLength, runChunks, RunAborted } from '../e
 import { seedText } from '../random/seed.js';
 import { estimateHighSigma, type HighSigmaReport } from './highSigma.js';
 import { assembleRunReport, type IntervalMethod, type RunReport } from './runReport.js';
+import { addConditionChunk, conditionsOutcome, conditionsPlan, driftPairFor, emptyConditionTotals } from './conditionRun.js';
 import { responseAt } from './response.js';
 
 export { QUANTILE_LEVELS, AGREEMENT_Z, FEW_FAILURES, type IntervalMethod, type QuantileValue, type RunReport } from './runReport.js';
@@ -59,6 +60,11 @@ export interface SimulateOptions {
   readonly importance?: boolean | { readonly relError?: number; readonly samples?: number };
   /** Test-only fault injection in one chunk (honoured in workers with TWINFET_TEST_FAULTS=1). */
   readonly fault?: { readonly chunk: number; readonly fault: InjectedFault };
+  /**
+   * The two conditions (names) to take the per-sample drift between (default: the coldest and
+   * the hottest of the conditions that differ only in temperature, or none).
+   */
+  readonly drift?: readonly [string, string];
 }
 
 /** A run's report together with the kept samples. */
@@ -73,6 +79,10 @@ export interface RunOutcome {
   readonly variables: readonly RandomVariable[];
   /** What each sample's figure is (name, unit, sidedness). */
   readonly figure: FigureDefinition;
+  /** With conditions and kept draws: every sample's figure at each condition (NaN where a solve failed). */
+  readonly conditionFigures?: readonly Float64Array[];
+  /** With a drift taken: the histogram of the per-sample drift (the figure's unit per kelvin). */
+  readonly driftHistogram?: Histogram;
 }
 
 function checkOptions(o: SimulateOptions): void {
@@ -92,6 +102,9 @@ function checkOptions(o: SimulateOptions): void {
   }
   if (o.interval !== undefined && o.interval !== 'clopper-pearson' && o.interval !== 'wilson') {
     throw new InputError('interval', `expected "clopper-pearson" or "wilson", got ${JSON.stringify(o.interval)}`);
+  }
+  if (o.drift !== undefined && !(Array.isArray(o.drift) && o.drift.length === 2 && o.drift.every((x) => typeof x === 'string' && x !== ''))) {
+    throw new InputError('drift', `expected the names of two conditions, such as ["cold", "hot"], got ${JSON.stringify(o.drift)}`);
   }
   if (o.keepDraws === true && o.samples !== undefined && o.samples > RUN_LIMITS.keptDraws) {
     throw new InputError('keepDraws', `keeping every draw of ${o.samples} samples needs too much memory; use at most 2e7 samples`);
@@ -127,6 +140,14 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
   const analytic = linearisedSummary(stage, spec);
   const range = Math.max(HISTOGRAM_SIGMAS * analytic.sigma, 1.2 * spec);
   const histogramSpec = { lo: -range, hi: range, bins: HISTOGRAM_BINS };
+  // Operating conditions: every sample also goes through each condition's stage (same draws).
+  const atConditions = compileConditions(design);
+  const pair = atConditions.length > 0 || options.drift !== undefined ? driftPairFor(stage.design, options.drift) : null;
+  if (keepDraws && atConditions.length > 0 && samples * (1 + atConditions.length) > RUN_LIMITS.keptDraws) {
+    throw new InputError('keepDraws', `keeping every figure of ${samples} samples at ${atConditions.length} conditions needs too much memory; use at most ${Math.floor(RUN_LIMITS.keptDraws / (1 + atConditions.length))} samples`);
+  }
+  const plan = atConditions.length === 0 ? undefined : conditionsPlan(atConditions, pair, keepOffsets, keepDraws);
+  const totals = plan === undefined ? undefined : emptyConditionTotals(atConditions.length, plan, samples);
 
   const chunks = chunkCount(samples);
   const tasks = {
@@ -142,6 +163,7 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
       histogram: histogramSpec,
       keepOffsets,
       keepDraws,
+      ...(plan === undefined ? {} : { conditions: plan }),
       ...(options.fault !== undefined && options.fault.chunk === chunk ? { fault: options.fault.fault } : {}),
     }),
   };
@@ -164,6 +186,7 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
     nonConverged += r.nonConverged;
     if (offsets !== undefined && r.offsets !== undefined) offsets.set(r.offsets, r.chunk * CHUNK_SIZE);
     if (draws !== undefined && r.draws !== undefined) draws.set(r.draws, r.chunk * CHUNK_SIZE * stage.dimension);
+    if (totals !== undefined && r.conditions !== undefined) addConditionChunk(totals, r.conditions, r.chunk * CHUNK_SIZE);
     done += r.count;
   };
   let partial = false;
@@ -215,6 +238,12 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
     importance,
     response: partial ? undefined : responseAt(stage, spec, seed),
     started,
+    ...(totals === undefined
+      ? {}
+      : {
+          atConditions: conditionsOutcome(stage.design, atConditions, totals, pair, spec, confidence, method, done),
+          conditionStages: atConditions,
+        }),
   });
   return {
     report,
@@ -223,5 +252,9 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
     dimension: stage.dimension,
     variables: stage.variables,
     figure: stage.definition.figure,
+    ...(totals === undefined || !keepDraws
+      ? {}
+      : { conditionFigures: totals.per.map((p) => (partial ? p.figures!.subarray(0, done) : p.figures!)) }),
+    ...(totals?.drift === undefined ? {} : { driftHistogram: totals.drift.histogram }),
   };
 }

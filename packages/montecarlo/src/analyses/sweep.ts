@@ -4,11 +4,11 @@
  * random numbers) and the differences between them are not masked by sampling noise.
  */
 import { compileStage, InputError, specLimit, type Design } from '@twinfet/core';
-import { linearisedFigureSigma } from './linearisedLaw.js';
 import { createExecutor, defaultWorkers, type Executor } from '../engine/pool.js';
 import { seedText } from '../random/seed.js';
 import { simulate } from './simulate.js';
 import { estimateHighSigma } from './highSigma.js';
+import { largestSigma, limitingStage } from './worstCondition.js';
 import { chipYieldFromFailure } from '../stats/yield.js';
 
 /** Monte Carlo samples per sweep point by default. */
@@ -39,8 +39,14 @@ export interface SweepPointResult {
   /** |Vos| limit and instances per chip used at this point. */
   readonly spec: number;
   readonly instances: number;
-  /** Linearised sigma of the figure, volts. */
+  /** Linearised sigma of the figure, volts (with conditions: the largest over them). */
   readonly analyticSigma: number;
+  /**
+   * With conditions: the condition of largest linearised sigma, of largest Monte Carlo sigma
+   * (whose sigma `monteCarlo` reports), and of lowest yield; the yields are all-conditions
+   * yields. Null without conditions.
+   */
+  readonly limitingCondition: null | { readonly linearised: string; readonly sigma: string; readonly yield: string };
   readonly monteCarlo: {
     readonly samples: number;
     readonly sigma: number;
@@ -120,6 +126,8 @@ export async function sweepDesigns(designs: readonly Design[], options: SweepOpt
     const common = { seed, confidence, executor, spec, ...(options.signal === undefined ? {} : { signal: options.signal }) };
     const r = await simulate(design, { ...common, samples, keepOffsets: false });
     const tail = options.importance === true ? await estimateHighSigma(design, common) : undefined;
+    const lin = limitingStage(stage.design);
+    const big = largestSigma(r);
     const m = stage.design.spec.instances;
     const yieldFigures: SweepPointResult['yield'] =
       tail === undefined || tail.method === 'monte-carlo'
@@ -135,11 +143,12 @@ export async function sweepDesigns(designs: readonly Design[], options: SweepOpt
       index,
       spec,
       instances: stage.design.spec.instances,
-      analyticSigma: linearisedFigureSigma(stage),
+      analyticSigma: lin.sigma,
+      limitingCondition: lin.condition === null ? null : { linearised: lin.condition, sigma: big.condition!, yield: r.yield.worst! },
       monteCarlo: {
-        samples: r.evaluated,
-        sigma: r.offset.sigma,
-        sigmaInterval: r.offset.sigmaInterval,
+        samples: r.yield.evaluated ?? r.evaluated,
+        sigma: big.sigma,
+        sigmaInterval: big.sigmaInterval,
         failures: r.yield.failures,
         yield: r.yield.estimate,
         yieldInterval: r.yield.interval,

@@ -1,9 +1,10 @@
 // The compile entry alone: a worker needs no design-file reader (and so no YAML parser) to start.
-import { compileStage } from '@twinfet/core/compile';
+import { compileConditions, compileStage } from '@twinfet/core/compile';
 import type { Stage } from '@twinfet/core';
-import type { ChunkResult, ImportanceResult, ImportanceTask, MonteCarloResult, MonteCarloTask, ChunkTask } from './messages.js';
+import type { ChunkResult, ImportanceResult, ImportanceTask, MirroredCentres, MonteCarloResult, MonteCarloTask, ChunkTask } from './messages.js';
 import { addToHistogram, createHistogram } from '../stats/histogram.js';
 import { addBlock, emptyMoments } from '../stats/moments.js';
+import { createConditionsAccumulator, unionBlock } from './conditionsKernel.js';
 import { chunkRng } from '../random/stream.js';
 import { fillStandardNormals } from '../random/ziggurat.js';
 
@@ -28,6 +29,20 @@ function stageFor(design: ChunkTask['design']): Stage {
   return stage;
 }
 
+/** The design's stage at each of its conditions, cached per thread like the design's own stage. */
+const conditionSets = new Map<string, readonly Stage[]>();
+
+export function conditionStagesFor(design: ChunkTask['design']): readonly Stage[] {
+  const key = JSON.stringify(design);
+  let set = conditionSets.get(key);
+  if (set === undefined) {
+    set = compileConditions(design).map((c) => c.stage);
+    if (conditionSets.size >= STAGE_CACHE_LIMIT) conditionSets.delete(conditionSets.keys().next().value!);
+    conditionSets.set(key, set);
+  }
+  return set;
+}
+
 /** Runs one chunk of work. Pure: the result depends on the task only. */
 export function runChunk(task: ChunkTask): ChunkResult {
   const stage = stageFor(task.design);
@@ -49,10 +64,14 @@ function monteCarloKernel(stage: Stage, task: MonteCarloTask): MonteCarloResult 
   let failuresHigh = 0;
   let failuresLow = 0;
   let nonConverged = 0;
+  const atConditions =
+    task.conditions === undefined ? undefined : createConditionsAccumulator(conditionStagesFor(task.design), task.conditions, task.count, BLOCK, spec, lowLimit);
   for (let start = 0; start < task.count; start += BLOCK) {
     const n = Math.min(BLOCK, task.count - start);
     const u = draws === undefined ? blockDraws : draws.subarray(start * dim, (start + n) * dim);
     fillStandardNormals(rng, u, 0, n * dim);
+    // The same draws at every condition, before the design's own figures are compacted below.
+    atConditions?.add(u, n, start);
     const bad = stage.figures(u, n, blockOut, 0);
     // Kept offsets hold NaN where a solve failed, so rows stay aligned with the draws.
     if (offsets !== undefined) offsets.set(blockOut.subarray(0, n), start);
@@ -85,6 +104,7 @@ function monteCarloKernel(stage: Stage, task: MonteCarloTask): MonteCarloResult 
     nonConverged,
     ...(offsets === undefined ? {} : { offsets }),
     ...(draws === undefined ? {} : { draws }),
+    ...(atConditions === undefined ? {} : { conditions: atConditions.result() }),
   };
 }
 
@@ -134,7 +154,21 @@ function explicitMixture(shiftList: ImportanceTask['shifts'], dim: number): Prop
  * on group c and `rest` elsewhere, so mu_c . u = fixed . u_0 + rest . T + (own - rest) . u_c with
  * T the sum of groups 1 .. G-1, and every |mu_c| is the same: O(dimension) per sample.
  */
-function mirroredMixture(m: NonNullable<ImportanceTask['mirrored']>, dim: number): Proposal {
+function mirroredMixture(m: MirroredCentres, dim: number): Proposal {
+  const parts = mirroredParts(m, dim);
+  return (rng, u, base) => {
+    parts.shift(rng, u, base);
+    return parts.logWeight(u, base);
+  };
+}
+
+/** A mirrored mixture in two steps: shift a draw to one of its centres; log w of a shifted draw. */
+interface MirroredParts {
+  shift(rng: ReturnType<typeof chunkRng>, u: Float64Array, base: number): void;
+  logWeight(u: Float64Array, base: number): number;
+}
+
+function mirroredParts(m: MirroredCentres, dim: number): MirroredParts {
   const w = m.groupSize;
   const groups = m.groups;
   if (groups * w !== dim) throw new Error(`internal: mirrored mixture of ${groups} groups of ${w} in ${dim} variables`);
@@ -151,49 +185,83 @@ function mirroredMixture(m: NonNullable<ImportanceTask['mirrored']>, dim: number
   const half = 0.5 * norm;
   const logK = Math.log(k);
   const total = new Float64Array(w);
-  return (rng, u, base) => {
-    const c = 1 + Math.min(k - 1, Math.floor(rng.double() * k));
-    for (let i = 0; i < w; i++) u[base + i]! += fixed[i]!;
-    for (let g = 1; g < groups; g++) {
-      const src = g === c ? own : rest;
-      const off = base + g * w;
-      for (let i = 0; i < w; i++) u[off + i]! += src[i]!;
-    }
-    let a = 0;
-    total.fill(0);
-    for (let i = 0; i < w; i++) a += fixed[i]! * u[base + i]!;
-    let best = -Infinity;
-    for (let g = 1; g < groups; g++) {
-      const off = base + g * w;
-      let b = 0;
-      for (let i = 0; i < w; i++) {
-        const x = u[off + i]!;
-        total[i]! += x;
-        b += diff[i]! * x;
+  return {
+    shift(rng, u, base) {
+      const c = 1 + Math.min(k - 1, Math.floor(rng.double() * k));
+      for (let i = 0; i < w; i++) u[base + i]! += fixed[i]!;
+      for (let g = 1; g < groups; g++) {
+        const src = g === c ? own : rest;
+        const off = base + g * w;
+        for (let i = 0; i < w; i++) u[off + i]! += src[i]!;
       }
-      if (b > best) best = b;
+    },
+    logWeight(u, base) {
+      let a = 0;
+      total.fill(0);
+      for (let i = 0; i < w; i++) a += fixed[i]! * u[base + i]!;
+      let best = -Infinity;
+      for (let g = 1; g < groups; g++) {
+        const off = base + g * w;
+        let b = 0;
+        for (let i = 0; i < w; i++) {
+          const x = u[off + i]!;
+          total[i]! += x;
+          b += diff[i]! * x;
+        }
+        if (b > best) best = b;
+      }
+      for (let i = 0; i < w; i++) a += rest[i]! * total[i]!;
+      let acc = 0;
+      for (let g = 1; g < groups; g++) {
+        const off = base + g * w;
+        let b = 0;
+        for (let i = 0; i < w; i++) b += diff[i]! * u[off + i]!;
+        acc += Math.exp(b - best);
+      }
+      return logK - (a - half + best) - Math.log(acc);
+    },
+  };
+}
+
+/**
+ * The equal mixture of S mirrored mixtures (one per operating condition): pick a set, shift to
+ * one of its centres; q / phi = (1/S) sum_s q_s / phi, so log w = log S - logsumexp_s(-log w_s).
+ */
+function mirroredSetsMixture(sets: readonly MirroredCentres[], dim: number): Proposal {
+  const parts = sets.map((m) => mirroredParts(m, dim));
+  const count = parts.length;
+  const logS = Math.log(count);
+  const minus = new Float64Array(count);
+  return (rng, u, base) => {
+    const s = Math.min(count - 1, Math.floor(rng.double() * count));
+    parts[s]!.shift(rng, u, base);
+    let best = -Infinity;
+    for (let t = 0; t < count; t++) {
+      const x = -parts[t]!.logWeight(u, base);
+      minus[t] = x;
+      if (x > best) best = x;
     }
-    for (let i = 0; i < w; i++) a += rest[i]! * total[i]!;
     let acc = 0;
-    for (let g = 1; g < groups; g++) {
-      const off = base + g * w;
-      let b = 0;
-      for (let i = 0; i < w; i++) b += diff[i]! * u[off + i]!;
-      acc += Math.exp(b - best);
-    }
-    return logK - (a - half + best) - Math.log(acc);
+    for (let t = 0; t < count; t++) acc += Math.exp(minus[t]! - best);
+    return logS - best - Math.log(acc);
   };
 }
 
 function importanceKernel(stage: Stage, task: ImportanceTask): ImportanceResult {
   const dim = stage.dimension;
   const rng = chunkRng(task.seed, 'importance', task.chunk);
-  const propose = task.mirrored === undefined ? explicitMixture(task.shifts, dim) : mirroredMixture(task.mirrored, dim);
+  const propose =
+    task.mirroredSets !== undefined
+      ? mirroredSetsMixture(task.mirroredSets, dim)
+      : task.mirrored === undefined
+        ? explicitMixture(task.shifts, dim)
+        : mirroredMixture(task.mirrored, dim);
   const logScale = task.logScale;
   const spec = task.spec;
   const lowLimit = stage.definition.figure.sided === 'two' ? -spec : -Infinity;
   const u = new Float64Array(BLOCK * dim);
   const out = new Float64Array(BLOCK);
+  const union = task.union === true ? conditionStagesFor(task.design) : undefined;
   const logw = new Float64Array(BLOCK);
   let sum = 0;
   let sumSquares = 0;
@@ -201,10 +269,22 @@ function importanceKernel(stage: Stage, task: ImportanceTask): ImportanceResult 
   let sumLow = 0;
   let hits = 0;
   let nonConverged = 0;
+  const byCondition = union === undefined ? undefined : new Array<number>(union.length).fill(0);
+  const byConditionSquares = union === undefined ? undefined : new Array<number>(union.length).fill(0);
   for (let start = 0; start < task.count; start += BLOCK) {
     const n = Math.min(BLOCK, task.count - start);
     fillStandardNormals(rng, u, 0, n * dim);
     for (let i = 0; i < n; i++) logw[i] = propose(rng, u, i * dim);
+    if (union !== undefined) {
+      const r = unionBlock(union, u, n, logw, logScale, spec, lowLimit, byCondition!, byConditionSquares!);
+      sum += r.sum;
+      sumSquares += r.sumSquares;
+      sumHigh += r.sumHigh;
+      sumLow += r.sumLow;
+      hits += r.hits;
+      nonConverged += r.nonConverged;
+      continue;
+    }
     nonConverged += stage.figures(u, n, out, 0);
     for (let i = 0; i < n; i++) {
       const x = out[i]!;
@@ -219,5 +299,16 @@ function importanceKernel(stage: Stage, task: ImportanceTask): ImportanceResult 
       }
     }
   }
-  return { kind: 'importance', chunk: task.chunk, count: task.count, sum, sumSquares, sumHigh, sumLow, hits, nonConverged };
+  return {
+    kind: 'importance',
+    chunk: task.chunk,
+    count: task.count,
+    sum,
+    sumSquares,
+    sumHigh,
+    sumLow,
+    hits,
+    nonConverged,
+    ...(byCondition === undefined || byConditionSquares === undefined ? {} : { byCondition, byConditionSquares }),
+  };
 }

@@ -14,7 +14,16 @@ export default function work(task: ChunkTask): WorkerReply {
   try {
     const result = runChunk(task);
     const buffers: ArrayBuffer[] = [];
-    for (const a of [result.histogram?.counts, result.offsets, result.draws]) {
+    const atConditions = result.kind === 'montecarlo' ? result.conditions : undefined;
+    const arrays = [
+      result.histogram?.counts,
+      result.offsets,
+      result.draws,
+      atConditions?.drift?.histogram.counts,
+      atConditions?.drift?.values,
+      ...(atConditions?.perCondition.map((c) => c.figures) ?? []),
+    ];
+    for (const a of arrays) {
       if (a !== undefined) buffers.push(a.buffer as ArrayBuffer);
     }
     // piscina's Transferable protocol: the buffers listed are moved, the value is what arrives.

@@ -9,7 +9,8 @@
  * total of (sum_k sqrt C_k)^2 / target^2, against (sum_k C_k/a_k0)(sum_k a_k0) / target^2 when all
  * blocks are scaled by one factor. For two blocks: a_in / a_load = sqrt(C_in) / sqrt(C_load).
  */
-import { compileStage, varianceBudget, type Design } from '@twinfet/core';
+import { varianceBudget, type Design } from '@twinfet/core';
+import { limitingStage } from '../analyses/worstCondition.js';
 import { clamp, factorRange, pairOf, sizableBlocks, scaleGeometry, type FactorRange, type SizingFamily } from './resize.js';
 
 /** The variance coefficients of the blocks and the optimum shares of area. */
@@ -27,11 +28,14 @@ export interface AreaSplit {
   readonly inputShare: number;
 }
 
-/** The coefficients C_k of a design with two or more sizable blocks, from its linearised budget. */
+/**
+ * The coefficients C_k of a design with two or more sizable blocks, from its linearised budget
+ * (with conditions: at the condition of largest linearised sigma).
+ */
 export function areaSplit(design: Design): AreaSplit {
   const blocks = sizableBlocks(design).map((b) => b.key);
   const variance = new Map<string, number>(blocks.map((b) => [b, 0]));
-  for (const e of varianceBudget(compileStage(design))) variance.set(e.role, (variance.get(e.role) ?? 0) + e.variance);
+  for (const e of varianceBudget(limitingStage(design).stage)) variance.set(e.role, (variance.get(e.role) ?? 0) + e.variance);
   const coefficients = blocks.map((b) => {
     const g = pairOf(design, b);
     return variance.get(b)! * g.w * g.l;

@@ -6,13 +6,14 @@
 import { compileStage, formatQuantity, InputError, type Design, type InversionRegion, type Polarity, type Stage, MISMATCH_PARAMETERS, specLimit, stageDefinition } from '@twinfet/core';
 import { areaSplit, equalScalingFamily, optimalSplitFamily, type AreaSplit } from './areaSplit.js';
 import { normalQuantile, sigmaLevel } from '../stats/normal.js';
-import { figureLaw, linearisedFigureSigma } from '../analyses/linearisedLaw.js';
+import { figureLaw } from '../analyses/linearisedLaw.js';
 import { createExecutor, defaultWorkers, type Executor } from '../engine/pool.js';
 import { checkVary, DEFAULT_MIN_DIMENSION_M, pairOf, sizableBlocks, singlePairFamily, splitVary, type SizeVary, type SizingFamily } from './resize.js';
 import { seedText } from '../random/seed.js';
 import { simulate } from '../analyses/simulate.js';
 import { limitingTerm, solveLinearised, type LinearisedFloor, type LinearisedSolution } from './sizeLinearised.js';
 import { estimateHighSigma } from '../analyses/highSigma.js';
+import { largestSigma, limitingStage } from '../analyses/worstCondition.js';
 import { allowedFailure, chipYieldFromFailure } from '../stats/yield.js';
 
 /** What the sized design must achieve. */
@@ -90,6 +91,8 @@ export interface SizedPoint {
   readonly gaussianFailure: number;
   /** Cox W L of one input device (the capacitance each input sees), F; null without process cox. */
   readonly inputCapacitance: number | null;
+  /** With conditions: the condition of largest linearised sigma, whose figures these are; else null. */
+  readonly condition: string | null;
 }
 
 /** One confirmation on the exact model. */
@@ -109,6 +112,11 @@ export interface Confirmation {
   readonly chipYieldInterval: readonly [number, number];
   /** Whether the figure meets the target by the stated rule. */
   readonly met: boolean;
+  /**
+   * With conditions: the condition that limits the confirmed figure (largest sigma for a sigma
+   * target, lowest yield or largest failure for a yield target); else null.
+   */
+  readonly condition: string | null;
 }
 
 /** The result of `sizeDesign`. */
@@ -207,10 +215,11 @@ function sigmaForFailure(design: Design, spec: number, p: number): number {
 
 /** Geometry, operating point and linearised figures of a design. */
 export function sizedPoint(design: Design, vary: SizeVary, scale: number, spec: number): SizedPoint {
-  const stage = compileStage(design);
+  const limiting = limitingStage(design);
+  const stage = limiting.stage;
   const roles = sizableBlocks(design).map((b) => b.key);
   const pairs = roles.map((r) => pairSizing(stage, r));
-  const sigma = linearisedFigureSigma(stage);
+  const sigma = limiting.sigma;
   // Elements per block, counted from the stage's variables (a selector's cells come from `cells`).
   const count = (r: string): number => new Set(stage.variables.filter((v) => v.role === r).map((v) => v.device)).size;
   const areaOf = (r: string): number => count(r) * (pairs.find((p) => p.role === r)?.gateArea ?? 0);
@@ -222,6 +231,7 @@ export function sizedPoint(design: Design, vary: SizeVary, scale: number, spec: 
     totalGateArea: roles.reduce((a, r) => a + areaOf(r), 0),
     gaussianFailure: gaussianFailure(design, spec, sigma),
     inputCapacitance: pairs[0]!.gateCapacitance,
+    condition: limiting.condition,
   };
 }
 
@@ -378,6 +388,11 @@ export async function sizeDesign(design: Design, options: SizeOptions): Promise<
   const linearised = { ...sizedPoint(lin.design, vary, lin.t, spec), atMinimum: lin.atMinimum };
   const { confirmations, current } = await confirmAlong(family, lin, { vary, spec, pl, confidence, seed: seedText(options.seed), options });
   const confirmed = confirmations[confirmations.length - 1]!;
+  const conditionCount = design.conditions?.length ?? 0;
+  if (conditionCount > 0) {
+    const what = pl.allowed === null ? 'the largest sigma over the conditions' : 'the all-conditions yield (an instance passes only if it passes at every condition)';
+    notes.push(`sized for ${what} at ${conditionCount} condition${conditionCount === 1 ? '' : 's'}; ${confirmed.condition ?? 'none'} limits it on the exact model, ${linearisedLimit(current.design)} on the linearised one`);
+  }
   if (confirmations.length > 1) {
     notes.push(`the linearised solution was scaled up ${confirmations.length - 1} time(s) until the exact-model figure met the target with its interval`);
   }
@@ -497,6 +512,12 @@ function splitComparison(design: Design, split: AreaSplit, lin: LinearisedSoluti
   };
 }
 
+/** The condition of largest linearised sigma, in words. */
+function linearisedLimit(design: Design): string {
+  const l = limitingStage(design);
+  return `${l.condition ?? 'the design'} (linearised sigma ${figureValue(design, l.sigma)})`;
+}
+
 function describeFigure(c: Confirmation, design: Design): string {
   const v = (x: number): string => figureValue(design, x);
   if (c.sigma !== null && c.sigmaInterval !== null && c.method === 'monte-carlo') {
@@ -529,14 +550,17 @@ async function confirm(
       ...(signal === undefined ? {} : { signal }),
     });
     const fi = r.yield.failure.interval;
-    const met = pl.allowed === null ? r.offset.sigmaInterval[1] <= pl.sigmaTarget : fi[1] <= pl.allowed;
+    // With conditions: the largest per-condition sigma, and the all-conditions failure.
+    const big = largestSigma(r);
+    const met = pl.allowed === null ? big.sigmaInterval[1] <= pl.sigmaTarget : fi[1] <= pl.allowed;
     return {
       method: 'monte-carlo',
       seed,
-      samples: r.evaluated,
+      samples: r.yield.evaluated ?? r.evaluated,
       point,
-      sigma: r.offset.sigma,
-      sigmaInterval: r.offset.sigmaInterval,
+      sigma: big.sigma,
+      sigmaInterval: big.sigmaInterval,
+      condition: pl.allowed === null ? big.condition : (r.yield.worst ?? null),
       failure: r.yield.failure.estimate,
       failureInterval: fi,
       chipYield: chipYieldFromFailure(r.yield.failure.estimate, instances),
@@ -564,6 +588,7 @@ async function confirm(
     chipYield: chipYieldFromFailure(r.failureProbability, instances),
     chipYieldInterval: chip(r.interval),
     met: r.interval[1] <= pl.allowed!,
+    condition: r.conditions === undefined ? null : [...r.conditions].sort((a, b) => b.failureProbability - a.failureProbability)[0]!.name,
   };
 }
 
@@ -593,7 +618,7 @@ function refine(family: SizingFamily, at: LinearisedSolution, c: Confirmation, p
     const t = at.t * 1.005;
     if (t > family.range[1]) return { reached: false, floor: { t: at.t, design: at.design, sigma: at.sigma }, limiting: limitingTerm(at.design), atMaximum: true };
     const design = family.at(t);
-    return { t, design, sigma: linearisedFigureSigma(compileStage(design)), reached: true, atMinimum: false };
+    return { t, design, sigma: limitingStage(design).sigma, reached: true, atMinimum: false };
   }
   return next;
 }

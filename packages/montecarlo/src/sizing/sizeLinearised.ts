@@ -7,8 +7,8 @@
  * bisected over the whole range, because sigma need not fall monotonically: lengthening the input
  * pair at fixed bias raises I_D/gm, and in a mirror stage that raises the load terms.
  */
-import { compileStage, groupedBudget, type Design, type MismatchParameter } from '@twinfet/core';
-import { linearisedFigureSigma } from '../analyses/linearisedLaw.js';
+import { groupedBudget, type Design, type MismatchParameter } from '@twinfet/core';
+import { limitingStage } from '../analyses/worstCondition.js';
 import type { SizingFamily } from './resize.js';
 
 /** Grid points per decade of the scale (the floor is located to about 6% in scale). */
@@ -20,7 +20,7 @@ export const BISECTION_RELATIVE_WIDTH = 1e-9;
 export interface FamilyPoint {
   readonly t: number;
   readonly design: Design;
-  /** Linearised sigma of the figure, volts (the law's figure sigma: see linearisedLaw.ts). */
+  /** Linearised sigma of the figure, volts (the law's figure sigma: see linearisedLaw.ts; with conditions: the largest over them). */
   readonly sigma: number;
 }
 
@@ -49,15 +49,15 @@ export interface LinearisedFloor {
   readonly atMaximum: boolean;
 }
 
-/** Linearised sigma of a family at t, volts. */
+/** Linearised sigma of a family at t, volts (with conditions: at the condition where it is largest). */
 export function familySigma(family: SizingFamily, t: number): FamilyPoint {
   const design = family.at(t);
-  return { t, design, sigma: linearisedFigureSigma(compileStage(design)) };
+  return { t, design, sigma: limitingStage(design).sigma };
 }
 
-/** The term with the largest share of the linearised sigma^2 of a design. */
+/** The term with the largest share of the linearised sigma^2 of a design (at its limiting condition). */
 export function limitingTerm(design: Design): LimitingTerm {
-  const groups = groupedBudget(compileStage(design));
+  const groups = groupedBudget(limitingStage(design).stage);
   let best = groups[0];
   for (const g of groups) if (best === undefined || g.share > best.share) best = g;
   if (best === undefined) throw new Error('internal: empty variance budget');

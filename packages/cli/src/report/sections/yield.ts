@@ -68,15 +68,23 @@ export function yieldSection(d: ReportData): Section {
     description: 'Estimates of the probability that one instance fails the spec, each with its confidence interval, and the failure allowed per instance by the chip-yield target.',
     panels: [{ x: logAxis('failure probability per instance', values, { pad: 0.08, max: 1 }), y: categoryAxis('estimate', rows), layers, height: 34 * rows.length + 30, grid: 'x' }],
   });
-  const mcText = y.failures === 0 ? `no failure in ${r.evaluated} samples (the interval runs from 0, drawn as an arrow)` : `${y.failures} failures in ${r.evaluated} samples`;
+  const mcN = y.evaluated ?? r.evaluated;
+  const mcText = `${y.failures === 0 ? `no failure in ${mcN} samples (the interval runs from 0, drawn as an arrow)` : `${y.failures} failures in ${mcN} samples`}${y.over === undefined ? '' : ' over all the operating conditions (section 8)'}`;
   const reading = `Monte Carlo: ${mcText}${is === undefined ? '' : `; importance sampling ${probabilityText(is.failureProbability)} against FORM ${probabilityText(is.form.failureProbability)}`}; the Gaussian estimate from the linearised sigma is ${probabilityText(g.failure)} (spec at ${plain(g.sigmaLevel, 4)} sigma).`;
 
+  // With conditions the run's yield is over all of them (section 8); the linearised estimate is the design's own.
+  const over = y.over === undefined ? '' : ', all conditions';
   const cells: [string, string][] = [
-    ['failures', `${num(y.failures, String(y.failures), { path: 'yield.failures' })} of ${r.evaluated} (${num(y.failuresHigh, String(y.failuresHigh), { path: 'yield.failuresHigh' })} above, ${num(y.failuresLow, String(y.failuresLow), { path: 'yield.failuresLow' })} below the spec)`],
-    ['instance yield', `${yieldNum('yield.estimate', y.estimate, dInstance)}${y.failures === 0 ? ' (no failures seen)' : ''}   ${c} [${yieldNum('yield.interval.0', y.interval[0], dInstance)}, ${yieldNum('yield.interval.1', y.interval[1], dInstance)}] (${esc(y.method)})`],
+    [
+      `failures${over}`,
+      y.over === undefined
+        ? `${num(y.failures, String(y.failures), { path: 'yield.failures' })} of ${r.evaluated} (${num(y.failuresHigh, String(y.failuresHigh), { path: 'yield.failuresHigh' })} above, ${num(y.failuresLow, String(y.failuresLow), { path: 'yield.failuresLow' })} below the spec)`
+        : `${num(y.failures, String(y.failures), { path: 'yield.failures' })} of ${y.evaluated ?? r.evaluated} fail at one condition at least (${num(y.failuresHigh, String(y.failuresHigh), { path: 'yield.failuresHigh' })} above, ${num(y.failuresLow, String(y.failuresLow), { path: 'yield.failuresLow' })} below the spec somewhere)`,
+    ],
+    [`instance yield${over}`, `${yieldNum('yield.estimate', y.estimate, dInstance)}${y.failures === 0 ? ' (no failures seen)' : ''}   ${c} [${yieldNum('yield.interval.0', y.interval[0], dInstance)}, ${yieldNum('yield.interval.1', y.interval[1], dInstance)}] (${esc(y.method)})`],
     ['failure probability', `${pNum('yield.failure.estimate', y.failure.estimate)}   ${c} [${pNum('yield.failure.interval.0', y.failure.interval[0])}, ${pNum('yield.failure.interval.1', y.failure.interval[1])}]`],
-    ['Gaussian estimate', `${yieldNum('analytic.gaussian.yield', g.yield, yieldDigits(g.yield))} (failure ${pNum('analytic.gaussian.failure', g.failure)}; spec / linearised sigma = ${num(g.sigmaLevel, plain(g.sigmaLevel, 4), { path: 'analytic.gaussian.sigmaLevel' })})`],
-    [`chip yield (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})`, `${yieldNum('chip.estimate', r.chip.estimate, dChip)}   ${c} [${yieldNum('chip.interval.0', r.chip.interval[0], dChip)}, ${yieldNum('chip.interval.1', r.chip.interval[1], dChip)}]; Gaussian ${yieldNum('analytic.gaussian.chipYield', g.chipYield, dChip)}`],
+    [y.over === undefined ? 'Gaussian estimate' : "Gaussian estimate (the design's own temperature and bias)", `${yieldNum('analytic.gaussian.yield', g.yield, yieldDigits(g.yield))} (failure ${pNum('analytic.gaussian.failure', g.failure)}; spec / linearised sigma = ${num(g.sigmaLevel, plain(g.sigmaLevel, 4), { path: 'analytic.gaussian.sigmaLevel' })})`],
+    [`chip yield (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})${over}`, `${yieldNum('chip.estimate', r.chip.estimate, dChip)}   ${c} [${yieldNum('chip.interval.0', r.chip.interval[0], dChip)}, ${yieldNum('chip.interval.1', r.chip.interval[1], dChip)}]; Gaussian ${yieldNum('analytic.gaussian.chipYield', g.chipYield, dChip)}`],
   ];
   if (y.limitedBySamples && is === undefined) cells.push(['note', `only ${y.failures} failure(s) seen: the Monte Carlo yield is limited by the sample count`]);
   let points3 = '';
