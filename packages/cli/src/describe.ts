@@ -134,3 +134,9 @@ export function shareLabel(role: string, parameter: string, def?: StageDefinitio
   const single = def?.blocks.find((b) => b.key === role)?.elements.length === 1;
   return `${role} ${single ? 'device' : 'pair'} ${label}`;
 }
+
+/** How many failures a run saw, in words: "no failures seen", "only 1 failure seen", "only 7 failures seen". */
+export function seenText(failures: number): string {
+  if (failures === 0) return 'no failures seen';
+  return `only ${failures} failure${failures === 1 ? '' : 's'} seen`;
+}

@@ -3,7 +3,7 @@ import { compileStage, InputError, isInputError, MISMATCH_PARAMETERS, stageDefin
 import { linearisedEstimate, responseEnvelope, RUN_LIMITS, simulateWithSamples, type RunOutcome, type RunReport } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
 import { readCommon, readSpec, withCommonOptions, type CommonFlags } from '../commonOptions.js';
-import { figureJson, figureText, headerLine, pct, plotFigure, sci, type FigureText } from '../describe.js';
+import { figureJson, figureText, headerLine, pct, plotFigure, sci, seenText, type FigureText } from '../describe.js';
 import { loadDesign } from '../designFile.js';
 import { warnUnitSlips } from '../unitWarnings.js';
 import { parseCount } from '../options.js';
@@ -226,7 +226,7 @@ export function renderRun(r: RunReport, design: Design): string {
   if (r.yield.limitedBySamples) {
     lines.push(
       '',
-      `note: only ${r.yield.failures} failure(s) seen: the yield estimate is limited by the sample count. For high-sigma yields use \`twinfet tail\` or \`twinfet run --method importance\`.`,
+      `note: ${seenText(r.yield.failures)}: the yield estimate is limited by the sample count. For high-sigma yields use \`twinfet tail\` or \`twinfet run --method importance\`.`,
     );
   }
   if (r.importance !== undefined) lines.push('', 'importance sampling (high-sigma failure probability)', renderTail(r.importance, design));

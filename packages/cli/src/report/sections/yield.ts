@@ -5,6 +5,7 @@ import { categoryAxis, logAxis } from '../../chart/axis.js';
 import { COLOR, DASH, OUTLINE } from '../../chart/style.js';
 import { probabilityText } from '../../plot.js';
 import { yieldDigits, yieldText } from '../../commands/inspect.js';
+import { seenText } from '../../describe.js';
 import type { ReportData } from '../data.js';
 import { esc, figure, num, pairs, table, type Section } from '../html.js';
 import { parameterText } from './budget.js';
@@ -86,7 +87,7 @@ export function yieldSection(d: ReportData): Section {
     [y.over === undefined ? 'Gaussian estimate' : "Gaussian estimate (the design's own temperature and bias)", `${yieldNum('analytic.gaussian.yield', g.yield, yieldDigits(g.yield))} (failure ${pNum('analytic.gaussian.failure', g.failure)}; spec / linearised sigma = ${num(g.sigmaLevel, plain(g.sigmaLevel, 4), { path: 'analytic.gaussian.sigmaLevel' })})`],
     [`chip yield (${r.chip.instances} instance${r.chip.instances === 1 ? '' : 's'})${over}`, `${yieldNum('chip.estimate', r.chip.estimate, dChip)}   ${c} [${yieldNum('chip.interval.0', r.chip.interval[0], dChip)}, ${yieldNum('chip.interval.1', r.chip.interval[1], dChip)}]; Gaussian ${yieldNum('analytic.gaussian.chipYield', g.chipYield, dChip)}`],
   ];
-  if (y.limitedBySamples && is === undefined) cells.push(['note', `only ${y.failures} failure(s) seen: the Monte Carlo yield is limited by the sample count`]);
+  if (y.limitedBySamples && is === undefined) cells.push(['note', `${seenText(y.failures)}: the Monte Carlo yield is limited by the sample count`]);
   let points3 = '';
   if (is !== undefined) {
     cells.push(
