@@ -179,6 +179,133 @@ export function sweepCsv(r: SweepReport): string {
   return `${[header.join(','), ...rows].join('\n')}\n`;
 }
 
+/** A sweep as asked on the command line: options read and checked, the design and the point designs. */
+interface SweepRequest {
+  readonly common: ReturnType<typeof readCommon>;
+  readonly design: Design;
+  readonly f: SweepField;
+  readonly values: number[];
+  readonly designs: Design[];
+  readonly notes: string[];
+  readonly samples: number;
+  readonly method: 'plain' | 'importance';
+  readonly spec: number | undefined;
+  readonly log: boolean;
+  readonly targetSigma: number | null;
+  readonly targetYield: number | null;
+}
+
+/**
+ * Reads and checks the sweep's options and design, and builds the design at every point.
+ * @throws InputError naming the option or design field at fault
+ */
+async function readSweepRequest(file: string, flags: SweepFlags, io: Io): Promise<SweepRequest> {
+  const common = readCommon(flags);
+  if (flags.vary === undefined) throw new InputError('--vary', 'missing; give the field to step, e.g. --vary input.w');
+  const steps = flags.steps === undefined ? 5 : parseCount(flags.steps, '--steps', 2, 200, '5 or 11');
+  const samples = flags.samples === undefined ? SWEEP_SAMPLES : parseCount(flags.samples, '--samples', 100, 1e9);
+  const method = flags.method ?? 'plain';
+  if (method !== 'plain' && method !== 'importance') throw new InputError('--method', `expected plain or importance, got "${method}"`);
+  const targetYield = flags.targetYield === undefined ? null : parseFraction(flags.targetYield, '--target-yield', '0.999');
+  if (flags.plot !== undefined && !flags.plot.toLowerCase().endsWith('.svg')) throw new InputError('--plot', `expected a file name ending in .svg, got "${flags.plot}"`);
+  if (flags.csv !== undefined && !flags.csv.toLowerCase().endsWith('.csv')) throw new InputError('--csv', `expected a file name ending in .csv, got "${flags.csv}"`);
+  const design = await loadDesign(file);
+  const targetSigma = flags.targetSigma === undefined ? null : parseFigureOption(flags.targetSigma, '--target-sigma', design, 'sigma');
+  const spec = readSpec(flags, design);
+  warnUnitSlips(io, design, spec);
+  const f = sweepField(flags.vary, design);
+  const specPath = `spec.${stageDefinition(design.topology).figure.specKey}`;
+  if (f.path === specPath && spec !== undefined) throw new InputError('--spec', `cannot be combined with --vary ${specPath}; drop one`);
+  const from = parseEnd(flags.from, '--from', f);
+  const to = parseEnd(flags.to, '--to', f);
+  const log = flags.log === true;
+  if (log && !(from > 0 && to > 0)) throw new InputError('--log', `needs --from and --to above 0, got ${shown(f, from)} and ${shown(f, to)}`);
+  if (from === to) throw new InputError('--to', `equals --from (${shown(f, from)}); give a different last value`);
+  const notes: string[] = [];
+  let values = sweepValues(from, to, steps, log);
+  if (f.integer) {
+    const rounded = values.map((v) => Math.round(v));
+    if (rounded.some((v, i) => v !== values[i])) notes.push(`${f.path} takes whole numbers: the values were rounded to ${rounded.join(', ')}`);
+    values = rounded;
+  }
+  pointDesign(design, f, values[0]!, '--from');
+  pointDesign(design, f, values[values.length - 1]!, '--to');
+  const designs = values.map((v) => pointDesign(design, f, v, '--vary'));
+  return { common, design, f, values, designs, notes, samples, method, spec, log, targetSigma, targetYield };
+}
+
+/** The sweep's report from its points: warnings given once where they hold everywhere, notes, targets judged per point. */
+function sweepReport(req: SweepRequest, points: SweepPointResult[]): SweepReport {
+  const { common, design, f, values, notes, samples, method, log, targetSigma, targetYield } = req;
+  // A warning that holds at every point (a caution of the model itself) is given once, unprefixed.
+  const everywhere = (w: string): boolean => points.length > 1 && points.every((p) => p.warnings.includes(w));
+  const warnings = [...new Set(points.flatMap((p) => p.warnings.map((w) => (everywhere(w) ? w : `at ${f.path} = ${shown(f, values[p.index]!)}: ${w}`))))];
+  const ownTemperature = (design.conditions ?? []).filter((c) => c.temperature !== undefined).map((c) => c.name);
+  if (f.path === 'temperature' && ownTemperature.length > 0) {
+    notes.push(`the conditions ${ownTemperature.join(', ')} set their own temperature, which the sweep does not change; the others follow it`);
+  }
+  if (points.some((p) => p.monteCarlo.limitedBySamples) && method === 'plain') {
+    notes.push('some points saw fewer than 10 failures: their yields are limited by the sample count; add --method importance for high-sigma figures');
+  }
+  return {
+    design: designSummary(design),
+    figure: figureSummary(design),
+    field: f.path,
+    unit: f.siUnit,
+    log,
+    method,
+    samples,
+    seed: common.seed ?? DEFAULT_SEED,
+    confidence: common.confidence,
+    targets: { sigma: targetSigma, yield: targetYield },
+    points: points.map((p) => ({
+      ...p,
+      value: values[p.index]!,
+      meetsTarget: {
+        sigma: targetSigma === null ? null : verdict(p.monteCarlo.sigmaInterval[0], p.monteCarlo.sigmaInterval[1], targetSigma),
+        yield:
+          targetYield === null
+            ? null
+            : p.importance !== null
+              ? verdict(p.importance.interval[0], p.importance.interval[1], 1 - targetYield)
+              : verdict(1 - p.yield.interval[1], 1 - p.yield.interval[0], 1 - targetYield),
+      },
+    })),
+    notes,
+    warnings,
+  };
+}
+
+/** The sweep's SVG plot: sigma and failure probability against the field, with interval bars. */
+async function sweepPlotSvg(req: SweepRequest, report: SweepReport): Promise<string> {
+  const { design, f, values, log, targetSigma, targetYield } = req;
+  const axis = plotAxis(f, values);
+  const plotPoints: SweepPoint[] = report.points.map((p) => ({
+    x: p.value,
+    analyticSigma: p.analyticSigma,
+    mcSigma: p.monteCarlo.sigma,
+    mcSigmaLo: p.monteCarlo.sigmaInterval[0],
+    mcSigmaHi: p.monteCarlo.sigmaInterval[1],
+    yield: p.monteCarlo.yield,
+    yieldLo: p.monteCarlo.yieldInterval[0],
+    yieldHi: p.monteCarlo.yieldInterval[1],
+    ...(p.importance === null ? {} : { tailFailure: p.importance.failure, tailLo: p.importance.interval[0], tailHi: p.importance.interval[1] }),
+  }));
+  // Loaded on demand, so a sweep without --plot does not load the plotting code.
+  const { sweepSvg } = await import('../plot.js');
+  return sweepSvg({
+    title: `${design.name}: ${report.figure.label} against ${f.path}`,
+    field: f.path,
+    fieldUnit: axis.unit,
+    xScale: axis.scale,
+    log,
+    points: plotPoints,
+    ...(targetSigma === null ? {} : { sigmaTarget: targetSigma }),
+    ...(targetYield === null ? {} : { yieldTarget: targetYield }),
+    figure: plotFigure(report.figure),
+  });
+}
+
 /** Registers `twinfet sweep`. */
 export function registerSweep(program: Command, io: Io, setExit: (code: number) => void): void {
   withCommonOptions(
@@ -199,40 +326,10 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
       .option('--csv <FILE>', 'write one row per point (SI units)')
       .option('--plot <FILE.svg>', 'sigma and failure probability against the field, with interval bars'),
   ).action(async (file: string, flags: SweepFlags) => {
-    const common = readCommon(flags);
-    if (flags.vary === undefined) throw new InputError('--vary', 'missing; give the field to step, e.g. --vary input.w');
-    const steps = flags.steps === undefined ? 5 : parseCount(flags.steps, '--steps', 2, 200, '5 or 11');
-    const samples = flags.samples === undefined ? SWEEP_SAMPLES : parseCount(flags.samples, '--samples', 100, 1e9);
-    const method = flags.method ?? 'plain';
-    if (method !== 'plain' && method !== 'importance') throw new InputError('--method', `expected plain or importance, got "${method}"`);
-    const targetYield = flags.targetYield === undefined ? null : parseFraction(flags.targetYield, '--target-yield', '0.999');
-    if (flags.plot !== undefined && !flags.plot.toLowerCase().endsWith('.svg')) throw new InputError('--plot', `expected a file name ending in .svg, got "${flags.plot}"`);
-    if (flags.csv !== undefined && !flags.csv.toLowerCase().endsWith('.csv')) throw new InputError('--csv', `expected a file name ending in .csv, got "${flags.csv}"`);
-    const design = await loadDesign(file);
-    const targetSigma = flags.targetSigma === undefined ? null : parseFigureOption(flags.targetSigma, '--target-sigma', design, 'sigma');
-    const spec = readSpec(flags, design);
-    warnUnitSlips(io, design, spec);
-    const f = sweepField(flags.vary, design);
-    const specPath = `spec.${stageDefinition(design.topology).figure.specKey}`;
-    if (f.path === specPath && spec !== undefined) throw new InputError('--spec', `cannot be combined with --vary ${specPath}; drop one`);
-    const from = parseEnd(flags.from, '--from', f);
-    const to = parseEnd(flags.to, '--to', f);
-    const log = flags.log === true;
-    if (log && !(from > 0 && to > 0)) throw new InputError('--log', `needs --from and --to above 0, got ${shown(f, from)} and ${shown(f, to)}`);
-    if (from === to) throw new InputError('--to', `equals --from (${shown(f, from)}); give a different last value`);
-    const notes: string[] = [];
-    let values = sweepValues(from, to, steps, log);
-    if (f.integer) {
-      const rounded = values.map((v) => Math.round(v));
-      if (rounded.some((v, i) => v !== values[i])) notes.push(`${f.path} takes whole numbers: the values were rounded to ${rounded.join(', ')}`);
-      values = rounded;
-    }
-    pointDesign(design, f, values[0]!, '--from');
-    pointDesign(design, f, values[values.length - 1]!, '--to');
-    const designs = values.map((v) => pointDesign(design, f, v, '--vary'));
-
+    const req = await readSweepRequest(file, flags, io);
+    const { common, samples, method, spec } = req;
     const done = await withInterrupt(io, 'sweep', (signal, onProgress) =>
-      sweepDesigns(designs, {
+      sweepDesigns(req.designs, {
         samples,
         workers: common.workers,
         confidence: common.confidence,
@@ -249,76 +346,13 @@ export function registerSweep(program: Command, io: Io, setExit: (code: number) 
       return;
     }
     const points: SweepPointResult[] = done.value;
-    // A warning that holds at every point (a caution of the model itself) is given once, unprefixed.
-    const everywhere = (w: string): boolean => points.length > 1 && points.every((p) => p.warnings.includes(w));
-    const warnings = [...new Set(points.flatMap((p) => p.warnings.map((w) => (everywhere(w) ? w : `at ${f.path} = ${shown(f, values[p.index]!)}: ${w}`))))];
-    const ownTemperature = (design.conditions ?? []).filter((c) => c.temperature !== undefined).map((c) => c.name);
-    if (f.path === 'temperature' && ownTemperature.length > 0) {
-      notes.push(`the conditions ${ownTemperature.join(', ')} set their own temperature, which the sweep does not change; the others follow it`);
-    }
-    if (points.some((p) => p.monteCarlo.limitedBySamples) && method === 'plain') {
-      notes.push('some points saw fewer than 10 failures: their yields are limited by the sample count; add --method importance for high-sigma figures');
-    }
-    const report: SweepReport = {
-      design: designSummary(design),
-      figure: figureSummary(design),
-      field: f.path,
-      unit: f.siUnit,
-      log,
-      method,
-      samples,
-      seed: common.seed ?? DEFAULT_SEED,
-      confidence: common.confidence,
-      targets: { sigma: targetSigma, yield: targetYield },
-      points: points.map((p) => ({
-        ...p,
-        value: values[p.index]!,
-        meetsTarget: {
-          sigma: targetSigma === null ? null : verdict(p.monteCarlo.sigmaInterval[0], p.monteCarlo.sigmaInterval[1], targetSigma),
-          yield:
-            targetYield === null
-              ? null
-              : p.importance !== null
-                ? verdict(p.importance.interval[0], p.importance.interval[1], 1 - targetYield)
-                : verdict(1 - p.yield.interval[1], 1 - p.yield.interval[0], 1 - targetYield),
-        },
-      })),
-      notes,
-      warnings,
-    };
+    const report = sweepReport(req, points);
     assertFinite(report);
     if (flags.csv !== undefined) await writeOutputFile(flags.csv, '--csv', sweepCsv(report));
-    if (flags.plot !== undefined) {
-      const axis = plotAxis(f, values);
-      const plotPoints: SweepPoint[] = report.points.map((p) => ({
-        x: p.value,
-        analyticSigma: p.analyticSigma,
-        mcSigma: p.monteCarlo.sigma,
-        mcSigmaLo: p.monteCarlo.sigmaInterval[0],
-        mcSigmaHi: p.monteCarlo.sigmaInterval[1],
-        yield: p.monteCarlo.yield,
-        yieldLo: p.monteCarlo.yieldInterval[0],
-        yieldHi: p.monteCarlo.yieldInterval[1],
-        ...(p.importance === null ? {} : { tailFailure: p.importance.failure, tailLo: p.importance.interval[0], tailHi: p.importance.interval[1] }),
-      }));
-      // Loaded on demand, so a sweep without --plot does not load the plotting code.
-      const { sweepSvg } = await import('../plot.js');
-      const svg = sweepSvg({
-        title: `${design.name}: ${report.figure.label} against ${f.path}`,
-        field: f.path,
-        fieldUnit: axis.unit,
-        xScale: axis.scale,
-        log,
-        points: plotPoints,
-        ...(targetSigma === null ? {} : { sigmaTarget: targetSigma }),
-        ...(targetYield === null ? {} : { yieldTarget: targetYield }),
-        figure: plotFigure(report.figure),
-      });
-      await writeOutputFile(flags.plot, '--plot', svg);
-    }
+    if (flags.plot !== undefined) await writeOutputFile(flags.plot, '--plot', await sweepPlotSvg(req, report));
     if (flags.json === true) printJson(io, report);
     else {
-      io.out(renderSweep(report, f));
+      io.out(renderSweep(report, req.f));
       if (flags.csv !== undefined) io.out(`wrote ${flags.csv}`);
       if (flags.plot !== undefined) io.out(`wrote ${flags.plot}`);
     }

@@ -170,34 +170,41 @@ function check(o: HighSigmaOptions): void {
   }
 }
 
-/**
- * Probability that |Vos| exceeds the spec, by mean-shift importance sampling on the exact model:
- * the design points u*+ and u*- (FORM), then samples from the equal mixture of N(u*+, I) and
- * N(u*-, I), weight phi(u)/q(u). Stops when the interval's relative half-width reaches
- * `relError`, or after `samples`. Deterministic for a seed: rounds are fixed sets of chunks.
- */
-export async function estimateHighSigma(design: Design, options: HighSigmaOptions = {}): Promise<HighSigmaReport> {
-  check(options);
-  const started = performance.now();
-  const stage = compileStage(design);
-  const spec = options.spec ?? specLimit(stage.design);
-  const confidence = options.confidence ?? 0.95;
-  const relError = options.relError ?? 0.05;
-  const seed = seedText(options.seed);
-  const z = normalQuantile(1 - (1 - confidence) / 2);
+/** A failure region's design points at one condition (k = -1: the design itself). */
+interface Located {
+  readonly stage: Stage;
+  /** Index of the condition (-1: the design itself). */
+  readonly k: number;
+  readonly regions: number;
+  readonly points: DesignPoint[];
+  readonly mirrored?: MirroredDesignPoint;
+}
+
+/** The importance-sampling proposal: the design points of every failure region (at every condition) and the mixture over them. */
+interface Proposal {
+  readonly atConditions: ReturnType<typeof compileConditions>;
+  readonly union: boolean;
+  readonly symmetry: Stage['failureSymmetry'];
+  readonly located: Located[];
+  readonly points: DesignPoint[];
+  readonly mixture: Pick<ImportanceTask, 'shifts' | 'mirrored' | 'mirroredSets'>;
+  /** FORM failure probability of one condition's regions. */
+  readonly formOf: (x: Located) => number;
+  /** Distances of one condition's regions (a mirrored set repeats its first point's). */
+  readonly distancesOf: (x: Located) => number[];
+  readonly regions: number;
+  readonly reportedPoints: () => ReportedDesignPoint[];
+  /** FORM failure probability summed over every region and condition. */
+  readonly formTails: number;
+}
+
+/** Finds the design points of the failure at `spec` (over every condition, if the design has them) and builds the mixture proposal. */
+function locateFailures(design: Design, stage: Stage, spec: number): Proposal {
   // With conditions the failure is the union over them: a mixture over every condition's design
   // points (for mirror-image regions, the equal mixture of each condition's mirrored mixture).
   const atConditions = compileConditions(design);
   const union = atConditions.length > 0;
   const symmetry = stage.failureSymmetry;
-  interface Located {
-    readonly stage: Stage;
-    /** Index of the condition (-1: the design itself). */
-    readonly k: number;
-    readonly regions: number;
-    readonly points: DesignPoint[];
-    readonly mirrored?: MirroredDesignPoint;
-  }
   const located: Located[] = (union ? atConditions.map((cs, k) => ({ stage: cs.stage, k })) : [{ stage, k: -1 }]).map((at) => {
     const components = at.stage.failureComponents(spec);
     if (symmetry === undefined) return { ...at, regions: components.length, points: components.map((c) => findDesignPoint(at.stage, c)) };
@@ -216,153 +223,92 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
   const regions = located[0]!.regions;
   const reportedPoints = (): ReportedDesignPoint[] =>
     located.flatMap((x) => x.points.map((pt) => describePoint(x.stage, pt, x.k < 0 ? undefined : atConditions[x.k]!.condition.name)));
-  const byCondition = atConditions.map(() => 0);
-  const byConditionSquares = atConditions.map(() => 0);
-  const fixed = options.samples;
-  const maxSamples = fixed ?? options.maxSamples ?? 1e7;
-
-  // Most high-sigma estimates need only a few thousand samples: start in this thread and open a
-  // worker pool only when the first round shows the job is big (the numbers do not depend on it).
-  const ownExecutor = options.executor === undefined;
-  let executor: Executor = options.executor ?? inThreadExecutor();
-  const wantedWorkers = options.workers ?? defaultWorkers();
-  let n = 0;
-  let sum = 0;
-  let sumSquares = 0;
-  let sumHigh = 0;
-  let sumLow = 0;
-  let hits = 0;
-  let nonConverged = 0;
-  let chunk = 0;
-  let stopRule: HighSigmaReport['stopRule'] = fixed === undefined ? 'relative-error' : 'samples';
-  const consume = (r: ImportanceResult): void => {
-    n += r.count;
-    sum += r.sum;
-    sumSquares += r.sumSquares;
-    sumHigh += r.sumHigh;
-    sumLow += r.sumLow;
-    hits += r.hits;
-    nonConverged += r.nonConverged;
-    r.byCondition?.forEach((x, k) => (byCondition[k]! += x));
-    r.byConditionSquares?.forEach((x, k) => (byConditionSquares[k]! += x));
-  };
-  // Sums are of w e^{logScale}: with the scale at the nearer design point's b^2/2 the scaled
-  // weights near the failure region are of order 1 at any distance (see ImportanceTask).
-  const logScale = 0.5 * Math.min(...points.map((p) => p.distance)) ** 2;
-  const unscale = Math.exp(-logScale);
-  /** Scaled estimate and variance (scale-free ratios are taken from these). */
-  const stats = () => {
-    const ps = sum / n;
-    const variance = Math.max(0, sumSquares / n - ps * ps);
-    return { ps, ses: Math.sqrt(variance / n), variance };
-  };
   const formTails = located.reduce((acc, x) => acc + formOf(x), 0);
-  const nearest = Math.min(...points.map((p) => p.distance));
-  const inBulk = nearest < BULK_DISTANCE || formTails > BULK_FAILURE;
-  const belowDoubleRange = !inBulk && formTails < 1e-300 && Math.exp(-logScale) === 0;
-  if (belowDoubleRange) stopRule = 'below-double-range';
-  const instances = stage.design.spec.instances;
-  const plain = async (reason: string): Promise<HighSigmaReport> => {
-    const b = await bulkFailure(design, {
-      spec,
-      seed,
-      confidence,
-      relError,
-      samples: fixed,
-      maxSamples,
-      executor,
-      mayOpenPool: ownExecutor,
-      workers: wantedWorkers,
-      signal: options.signal,
-      onProgress: options.onProgress,
-      union,
-    });
-    executor = b.executor;
-    const p = b.failures / b.samples;
-    const [lo, hi] = b.interval;
-    return {
-      spec,
-      method: 'monte-carlo',
-      methodReason: reason,
-      failureProbability: p,
-      standardError: Math.sqrt((p * (1 - p)) / b.samples),
-      interval: [lo, hi],
-      confidence,
-      sigmaLevel: p > 0 ? sigmaLevel(p) : null,
-      sigmaLevelInterval: [hi > 0 ? sigmaLevel(hi) : null, lo > 0 ? sigmaLevel(lo) : null],
-      relativeHalfWidth: p > 0 ? (hi - lo) / 2 / p : null,
-      high: b.failuresHigh / b.samples,
-      low: b.failuresLow / b.samples,
-      samples: b.samples,
-      hits: b.failures,
-      nonConverged: b.nonConverged,
-      seed,
-      stopRule: b.stopRule,
-      belowDoubleRange: false,
-      relativeVariancePerSample: p > 0 ? (1 - p) / p : null,
-      equivalentPlainSamples: null,
-      designPoints: reportedPoints(),
-      ...(symmetry === undefined ? {} : { mirrorRegions: regions }),
-      form: { failureProbability: formTails, sigmaLevel: sigmaLevelOfTails(located.flatMap(distancesOf)) },
-      chip: chipFigures(p, lo, hi, instances),
-      ...(b.byCondition === undefined
-        ? {}
-        : {
-            over: 'all conditions' as const,
-            conditions: b.byCondition.map((c, k) => {
-              const pk = c.samples > 0 ? c.failures / c.samples : 0;
-              return {
-                name: atConditions[k]!.condition.name,
-                failureProbability: pk,
-                standardError: c.samples > 0 ? Math.sqrt((pk * (1 - pk)) / c.samples) : 0,
-                interval: c.samples > 0 ? clopperPearson(c.failures, c.samples, confidence) : ([0, 1] as const),
-                form: formOf(located[k]!),
-              };
-            }),
+  return { atConditions, union, symmetry, located, points, mixture, formOf, distancesOf, regions, reportedPoints, formTails };
+}
+
+/** The report of a failure estimated by plain Monte Carlo (the spec lies in the bulk). */
+function plainReport(
+  b: Awaited<ReturnType<typeof bulkFailure>>,
+  c: { readonly spec: number; readonly reason: string; readonly confidence: number; readonly seed: string; readonly instances: number; readonly started: number },
+  proposal: Proposal,
+): HighSigmaReport {
+  const { spec, reason, confidence, seed, instances, started } = c;
+  const { atConditions, symmetry, located, formOf, distancesOf, regions, reportedPoints, formTails } = proposal;
+  const p = b.failures / b.samples;
+  const [lo, hi] = b.interval;
+  return {
+    spec,
+    method: 'monte-carlo',
+    methodReason: reason,
+    failureProbability: p,
+    standardError: Math.sqrt((p * (1 - p)) / b.samples),
+    interval: [lo, hi],
+    confidence,
+    sigmaLevel: p > 0 ? sigmaLevel(p) : null,
+    sigmaLevelInterval: [hi > 0 ? sigmaLevel(hi) : null, lo > 0 ? sigmaLevel(lo) : null],
+    relativeHalfWidth: p > 0 ? (hi - lo) / 2 / p : null,
+    high: b.failuresHigh / b.samples,
+    low: b.failuresLow / b.samples,
+    samples: b.samples,
+    hits: b.failures,
+    nonConverged: b.nonConverged,
+    seed,
+    stopRule: b.stopRule,
+    belowDoubleRange: false,
+    relativeVariancePerSample: p > 0 ? (1 - p) / p : null,
+    equivalentPlainSamples: null,
+    designPoints: reportedPoints(),
+    ...(symmetry === undefined ? {} : { mirrorRegions: regions }),
+    form: { failureProbability: formTails, sigmaLevel: sigmaLevelOfTails(located.flatMap(distancesOf)) },
+    chip: chipFigures(p, lo, hi, instances),
+    ...(b.byCondition === undefined
+      ? {}
+      : {
+          over: 'all conditions' as const,
+          conditions: b.byCondition.map((c, k) => {
+            const pk = c.samples > 0 ? c.failures / c.samples : 0;
+            return {
+              name: atConditions[k]!.condition.name,
+              failureProbability: pk,
+              standardError: c.samples > 0 ? Math.sqrt((pk * (1 - pk)) / c.samples) : 0,
+              interval: c.samples > 0 ? clopperPearson(c.failures, c.samples, confidence) : ([0, 1] as const),
+              form: formOf(located[k]!),
+            };
           }),
-      seconds: (performance.now() - started) / 1000,
-    };
+        }),
+    seconds: (performance.now() - started) / 1000,
   };
-  try {
-    if (inBulk) {
-      const why = nearest < BULK_DISTANCE ? `a failure point is ${nearest.toPrecision(3)} sigma from the origin` : `the FORM failure probability is ${formTails.toPrecision(3)}`;
-      return await plain(`the spec lies inside the bulk of the offset distribution (${why}; below ${BULK_DISTANCE} sigma or above ${BULK_FAILURE} importance sampling gains nothing)`);
-    }
-    let round = 1;
-    while (!belowDoubleRange) {
-      const remaining = maxSamples - n;
-      if (remaining <= 0) break;
-      // Round sizes double (1, 2, 4, ... chunks), capped, so that a run stops near the sample
-      // count it needs; the schedule depends only on the results so far, never on timing.
-      const tasks: ImportanceTask[] = [];
-      let planned = 0;
-      for (let c = 0; c < round && planned < remaining; c++) {
-        const count = Math.min(IMPORTANCE_CHUNK, remaining - planned);
-        tasks.push({ kind: 'importance', design, seed, chunk: chunk++, count, spec, ...mixture, logScale, ...(union ? { union: true } : {}) });
-        planned += count;
-      }
-      await runChunks(executor, taskList(tasks), consume, {
-        signal: options.signal,
-        onProgress: options.onProgress === undefined ? undefined : (d) => options.onProgress!(n + d, maxSamples),
-      });
-      const { ps, ses, variance } = stats();
-      if (fixed === undefined && ps > 0 && hits >= 10 && (z * ses) / ps <= relError) break;
-      if (ownExecutor && executor.threads === 0 && wantedWorkers > 1) {
-        // Samples still needed: fixed count, or (z/E)^2 relVar from the estimate so far.
-        const need = fixed ?? (ps > 0 ? ((z / relError) ** 2 * variance) / (ps * ps) : maxSamples);
-        if (need - n > POOL_THRESHOLD) executor = createExecutor(wantedWorkers);
-      }
-      if (n >= maxSamples && fixed === undefined) stopRule = 'max-samples';
-      round = Math.min(round * 2, 64);
-    }
-    if (n > 0 && (sum / n) * unscale > BULK_FAILURE) {
-      // The failure points looked far enough, but the estimate says the spec is in the bulk.
-      return await plain(`the importance-sampling estimate ${((sum / n) * unscale).toPrecision(3)} is above ${BULK_FAILURE}: the spec lies inside the bulk of the offset distribution`);
-    }
-  } finally {
-    if (ownExecutor) await executor.close();
-  }
-  const { ps, ses, variance } = n > 0 ? stats() : { ps: 0, ses: 0, variance: 0 };
+}
+
+/** What an importance-sampling run accumulated: counts, scaled sums and the scaled estimate. */
+interface ImportanceSums {
+  readonly n: number;
+  readonly sumHigh: number;
+  readonly sumLow: number;
+  readonly hits: number;
+  readonly nonConverged: number;
+  readonly byCondition: readonly number[];
+  readonly byConditionSquares: readonly number[];
+  readonly stopRule: HighSigmaReport['stopRule'];
+  readonly belowDoubleRange: boolean;
+  /** exp(-logScale): turns the scaled sums into probabilities. */
+  readonly unscale: number;
+  /** Scaled estimate, its standard error and variance per sample. */
+  readonly ps: number;
+  readonly ses: number;
+  readonly variance: number;
+}
+
+/** The report of an importance-sampling estimate from its sums. */
+function importanceReport(
+  t: ImportanceSums,
+  c: { readonly spec: number; readonly confidence: number; readonly seed: string; readonly instances: number; readonly started: number; readonly z: number },
+  proposal: Proposal,
+): HighSigmaReport {
+  const { n, sumHigh, sumLow, hits, nonConverged, byCondition, byConditionSquares, stopRule, belowDoubleRange, unscale, ps, ses, variance } = t;
+  const { spec, confidence, seed, instances, started, z } = c;
+  const { atConditions, union, symmetry, located, formOf, distancesOf, regions, reportedPoints, formTails } = proposal;
   // An unbiased estimate may exceed 1 by a hair when nearly every sample fails: clamp, so
   // the sigma level and the chip failure stay defined.
   const p = Math.min(1, ps * unscale);
@@ -419,6 +365,132 @@ export async function estimateHighSigma(design: Design, options: HighSigmaOption
       : {}),
     seconds: (performance.now() - started) / 1000,
   };
+}
+
+/**
+ * Probability that |Vos| exceeds the spec, by mean-shift importance sampling on the exact model:
+ * the design points u*+ and u*- (FORM), then samples from the equal mixture of N(u*+, I) and
+ * N(u*-, I), weight phi(u)/q(u). Stops when the interval's relative half-width reaches
+ * `relError`, or after `samples`. Deterministic for a seed: rounds are fixed sets of chunks.
+ */
+export async function estimateHighSigma(design: Design, options: HighSigmaOptions = {}): Promise<HighSigmaReport> {
+  check(options);
+  const started = performance.now();
+  const stage = compileStage(design);
+  const spec = options.spec ?? specLimit(stage.design);
+  const confidence = options.confidence ?? 0.95;
+  const relError = options.relError ?? 0.05;
+  const seed = seedText(options.seed);
+  const z = normalQuantile(1 - (1 - confidence) / 2);
+  const proposal = locateFailures(design, stage, spec);
+  const { atConditions, union, symmetry, located, points, mixture, formOf, distancesOf, regions, reportedPoints, formTails } = proposal;
+  const byCondition = atConditions.map(() => 0);
+  const byConditionSquares = atConditions.map(() => 0);
+  const fixed = options.samples;
+  const maxSamples = fixed ?? options.maxSamples ?? 1e7;
+
+  // Most high-sigma estimates need only a few thousand samples: start in this thread and open a
+  // worker pool only when the first round shows the job is big (the numbers do not depend on it).
+  const ownExecutor = options.executor === undefined;
+  let executor: Executor = options.executor ?? inThreadExecutor();
+  const wantedWorkers = options.workers ?? defaultWorkers();
+  let n = 0;
+  let sum = 0;
+  let sumSquares = 0;
+  let sumHigh = 0;
+  let sumLow = 0;
+  let hits = 0;
+  let nonConverged = 0;
+  let chunk = 0;
+  let stopRule: HighSigmaReport['stopRule'] = fixed === undefined ? 'relative-error' : 'samples';
+  const consume = (r: ImportanceResult): void => {
+    n += r.count;
+    sum += r.sum;
+    sumSquares += r.sumSquares;
+    sumHigh += r.sumHigh;
+    sumLow += r.sumLow;
+    hits += r.hits;
+    nonConverged += r.nonConverged;
+    r.byCondition?.forEach((x, k) => (byCondition[k]! += x));
+    r.byConditionSquares?.forEach((x, k) => (byConditionSquares[k]! += x));
+  };
+  // Sums are of w e^{logScale}: with the scale at the nearer design point's b^2/2 the scaled
+  // weights near the failure region are of order 1 at any distance (see ImportanceTask).
+  const logScale = 0.5 * Math.min(...points.map((p) => p.distance)) ** 2;
+  const unscale = Math.exp(-logScale);
+  /** Scaled estimate and variance (scale-free ratios are taken from these). */
+  const stats = () => {
+    const ps = sum / n;
+    const variance = Math.max(0, sumSquares / n - ps * ps);
+    return { ps, ses: Math.sqrt(variance / n), variance };
+  };
+  const nearest = Math.min(...points.map((p) => p.distance));
+  const inBulk = nearest < BULK_DISTANCE || formTails > BULK_FAILURE;
+  const belowDoubleRange = !inBulk && formTails < 1e-300 && Math.exp(-logScale) === 0;
+  if (belowDoubleRange) stopRule = 'below-double-range';
+  const instances = stage.design.spec.instances;
+  const plain = async (reason: string): Promise<HighSigmaReport> => {
+    const b = await bulkFailure(design, {
+      spec,
+      seed,
+      confidence,
+      relError,
+      samples: fixed,
+      maxSamples,
+      executor,
+      mayOpenPool: ownExecutor,
+      workers: wantedWorkers,
+      signal: options.signal,
+      onProgress: options.onProgress,
+      union,
+    });
+    executor = b.executor;
+    return plainReport(b, { spec, reason, confidence, seed, instances, started }, proposal);
+  };
+  try {
+    if (inBulk) {
+      const why = nearest < BULK_DISTANCE ? `a failure point is ${nearest.toPrecision(3)} sigma from the origin` : `the FORM failure probability is ${formTails.toPrecision(3)}`;
+      return await plain(`the spec lies inside the bulk of the offset distribution (${why}; below ${BULK_DISTANCE} sigma or above ${BULK_FAILURE} importance sampling gains nothing)`);
+    }
+    let round = 1;
+    while (!belowDoubleRange) {
+      const remaining = maxSamples - n;
+      if (remaining <= 0) break;
+      // Round sizes double (1, 2, 4, ... chunks), capped, so that a run stops near the sample
+      // count it needs; the schedule depends only on the results so far, never on timing.
+      const tasks: ImportanceTask[] = [];
+      let planned = 0;
+      for (let c = 0; c < round && planned < remaining; c++) {
+        const count = Math.min(IMPORTANCE_CHUNK, remaining - planned);
+        tasks.push({ kind: 'importance', design, seed, chunk: chunk++, count, spec, ...mixture, logScale, ...(union ? { union: true } : {}) });
+        planned += count;
+      }
+      await runChunks(executor, taskList(tasks), consume, {
+        signal: options.signal,
+        onProgress: options.onProgress === undefined ? undefined : (d) => options.onProgress!(n + d, maxSamples),
+      });
+      const { ps, ses, variance } = stats();
+      if (fixed === undefined && ps > 0 && hits >= 10 && (z * ses) / ps <= relError) break;
+      if (ownExecutor && executor.threads === 0 && wantedWorkers > 1) {
+        // Samples still needed: fixed count, or (z/E)^2 relVar from the estimate so far.
+        const need = fixed ?? (ps > 0 ? ((z / relError) ** 2 * variance) / (ps * ps) : maxSamples);
+        if (need - n > POOL_THRESHOLD) executor = createExecutor(wantedWorkers);
+      }
+      if (n >= maxSamples && fixed === undefined) stopRule = 'max-samples';
+      round = Math.min(round * 2, 64);
+    }
+    if (n > 0 && (sum / n) * unscale > BULK_FAILURE) {
+      // The failure points looked far enough, but the estimate says the spec is in the bulk.
+      return await plain(`the importance-sampling estimate ${((sum / n) * unscale).toPrecision(3)} is above ${BULK_FAILURE}: the spec lies inside the bulk of the offset distribution`);
+    }
+  } finally {
+    if (ownExecutor) await executor.close();
+  }
+  return importanceReport(
+    { n, sumHigh, sumLow, hits, nonConverged, byCondition, byConditionSquares, stopRule, belowDoubleRange, unscale, ...(n > 0 ? stats() : { ps: 0, ses: 0, variance: 0 }) },
+    { spec, confidence, seed, instances, started, z },
+    proposal,
+  );
 }
 
 function chipFigures(p: number, lo: number, hi: number, instances: number): HighSigmaReport['chip'] {
