@@ -29,6 +29,15 @@ describe('wilson: argument checks', () => {
   });
 });
 
+describe('wilson: all failures', () => {
+  it('x = n gives an upper bound of exactly 1 (n = 999, 1000, 12345)', () => {
+    // At x = n the quadratic (1 - p)^2 = z^2 p (1 - p) / n has the root p = 1 (Wilson 1927);
+    // computed from the passes (0 of n) it is 1 - 0, exactly 1. Direct evaluation of the
+    // upper root from the failures rounds to 1 - 1.1e-16 at n = 999 (checked by hand in node).
+    for (const n of [999, 1000, 12345]) expect(wilson(n, n, 0.95)[1]).toBe(1);
+  });
+});
+
 describe('chi-square and Bonett sigma intervals: edges', () => {
   it('chiSquareQuantile rejects p outside (0, 1) and a dof that is not a positive finite number', () => {
     for (const p of [0, 1, -0.1, Number.NaN]) expect(() => chiSquareQuantile(p, 3)).toThrow(/^chiSquareQuantile: p must/);
