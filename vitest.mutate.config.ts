@@ -27,6 +27,10 @@ const STATS = [
   'packages/montecarlo/test/sigmaInterval.test.ts',
   'packages/montecarlo/test/moments.test.ts',
   'packages/montecarlo/test/reportIntervals.test.ts',
+  'packages/montecarlo/test/binomialEdges.test.ts',
+  'packages/montecarlo/test/statsEdges.test.ts',
+  // assembleRunReport in this thread (reportIntervals runs the chunks on workers, which load dist).
+  'packages/montecarlo/test/runReportAssembly.test.ts',
 ];
 /** Test files per group of mutated sources (see stryker.config.mjs). */
 const MUTATE_TESTS: Record<string, string[]> = {
