@@ -14,7 +14,7 @@ import { fileURLToPath } from 'node:url';
 
 const root = fileURLToPath(new URL('../../../', import.meta.url));
 const bin = join(root, 'packages/cli/bin/twinfet.js');
-const EXAMPLES = ['comparator-demo', 'resistor-pair', 'sense-amp-pmos', 'weak-inversion-wta'];
+const EXAMPLES = ['comparator-demo', 'comparator-conditions', 'resistor-pair', 'sense-amp-pmos', 'weak-inversion-wta'];
 /** GNU time reports a child's CPU time; without it only the wall time is printed. */
 const TIME = '/usr/bin/time';
 
