@@ -86,7 +86,6 @@ function pointDesign(design: Design, f: SweepField, value: number, option: strin
 
 function shown(f: SweepField, v: number): string {
   if (f.tableUnit === '') return String(Number(v.toPrecision(6)));
-  if (f.tableUnit === '%') return `${Number((100 * v).toPrecision(4))} %`;
   // Areas read best in um^2 whatever their size (a prefix does not square cleanly).
   if (f.dimension === 'area') return `${Number((v * 1e12).toPrecision(4))} um^2`;
   return formatQuantity(v, f.tableUnit, 4);
