@@ -75,21 +75,12 @@ function monteCarloKernel(stage: Stage, task: MonteCarloTask): MonteCarloResult 
     const bad = stage.figures(u, n, blockOut, 0);
     // Kept offsets hold NaN where a solve failed, so rows stay aligned with the draws.
     if (offsets !== undefined) offsets.set(blockOut.subarray(0, n), start);
-    let m = n;
-    if (bad > 0) {
-      // Compact the converged values to the front; the NaNs are counted, never averaged.
-      nonConverged += bad;
-      m = 0;
-      for (let i = 0; i < n; i++) {
-        const x = blockOut[i]!;
-        if (x === x) blockOut[m++] = x;
-      }
-    }
-    for (let i = 0; i < m; i++) {
-      const x = blockOut[i]!;
-      if (x > spec) failuresHigh++;
-      else if (x < lowLimit) failuresLow++;
-    }
+    // The converged values compacted to the front; the NaNs are counted, never averaged.
+    nonConverged += bad;
+    const m = bad > 0 ? compactNumbers(blockOut, n) : n;
+    // spec > 0 >= lowLimit: a value is at most one of the two.
+    failuresHigh += countAbove(blockOut, m, spec);
+    failuresLow += countBelow(blockOut, m, lowLimit);
     addBlock(moments, blockOut, 0, m);
     addToHistogram(histogram, blockOut, 0, m);
   }
@@ -106,6 +97,35 @@ function monteCarloKernel(stage: Stage, task: MonteCarloTask): MonteCarloResult 
     ...(draws === undefined ? {} : { draws }),
     ...(atConditions === undefined ? {} : { conditions: atConditions.result() }),
   };
+}
+
+// The per-sample loops of a block are functions of their own, outside the kernel's block loop:
+// each is optimised after a few blocks, whereas a loop inside the kernel, which runs once per
+// chunk, waits for on-stack replacement in every fresh chunk and falls back to the interpreter
+// where the kernel meets code it has not seen yet (its end, at the first chunks).
+
+/** Moves the numbers of values[0..n) to the front, in order, dropping NaNs; returns how many. */
+function compactNumbers(values: Float64Array, n: number): number {
+  let m = 0;
+  for (let i = 0; i < n; i++) {
+    const x = values[i]!;
+    if (x === x) values[m++] = x;
+  }
+  return m;
+}
+
+/** How many of values[0..n) are above `limit`. */
+function countAbove(values: Float64Array, n: number, limit: number): number {
+  let c = 0;
+  for (let i = 0; i < n; i++) if (values[i]! > limit) c++;
+  return c;
+}
+
+/** How many of values[0..n) are below `limit`. */
+function countBelow(values: Float64Array, n: number, limit: number): number {
+  let c = 0;
+  for (let i = 0; i < n; i++) if (values[i]! < limit) c++;
+  return c;
 }
 
 /**

@@ -50,6 +50,17 @@ function abortError(): Error {
   return e;
 }
 
+/** A promise that rejects when `signal` aborts, and a way to stop listening. */
+function abortedBy(signal: AbortSignal): { promise: Promise<never>; dispose: () => void } {
+  let onAbort = (): void => undefined;
+  const promise = new Promise<never>((_, reject) => {
+    onAbort = () => reject(abortError());
+    signal.addEventListener('abort', onAbort, { once: true });
+  });
+  promise.catch(() => undefined); // a run that settles first leaves this one unobserved
+  return { promise, dispose: () => signal.removeEventListener('abort', onAbort) };
+}
+
 /** Runs a chunk in this thread after yielding to the event loop; `timed` gets its compute time, ms. */
 async function runHere(task: ChunkTask, signal: AbortSignal | undefined, timed?: (ms: number) => void): Promise<ChunkResult> {
   if (signal?.aborted) throw abortError();
@@ -102,6 +113,12 @@ export function poolExecutor(workers: number): Executor & { readyThreads(): numb
     minThreads: workers,
     maxThreads: workers,
     idleTimeout: 60_000,
+    // Two chunks posted to each thread at once, so that a thread starts its next chunk the moment
+    // it finishes one. With one, the next is posted only when this thread handles the reply, and
+    // when this thread is itself running a chunk (startingPoolExecutor) that waits up to a whole
+    // chunk: measured, the pool thread then sat idle a third of the time. piscina runs at most
+    // one task with an abort signal per thread, so tasks go without one (see run below).
+    concurrentTasksPerWorker: 2,
     // Built workers need none of the parent's flags (a loader such as tsx would only slow
     // their start); from sources they need tsx to load TypeScript. Every worker loads its
     // module through import(), never require(): piscina tries require() first, and on Node 20
@@ -138,13 +155,20 @@ export function poolExecutor(workers: number): Executor & { readyThreads(): numb
     async run(task, signal) {
       if (closed) throw new Error('internal: executor used after close');
       track();
+      if (signal?.aborted) throw abortError();
+      // The signal is not handed to piscina (which would allow one task per thread and end the
+      // thread of an aborted task): the task rejects here at once, and the chunk left running
+      // finishes in its thread (one chunk's time) unless close() ends the thread first.
+      const abort = signal === undefined ? undefined : abortedBy(signal);
       let reply: WorkerReply;
       try {
-        reply = await pool.run(task, signal === undefined ? {} : { signal });
+        reply = await (abort === undefined ? pool.run(task) : Promise.race([pool.run(task), abort.promise]));
       } catch (e) {
         if (signal?.aborted) throw abortError();
         const err = e instanceof Error ? e : new Error(String(e));
         throw new ChunkError(`a worker thread failed: ${err.message}`, { cause: err });
+      } finally {
+        abort?.dispose();
       }
       return unwrap(reply);
     },
@@ -179,10 +203,14 @@ export function poolExecutor(workers: number): Executor & { readyThreads(): numb
 }
 
 /**
- * One-thread work a job must still have left before a pool is started for it, ms: starting
- * and closing 1-2 threads costs 40-80 ms, which only a longer remainder pays back.
+ * One-thread work a job must still have left before a pool is started for it, ms. A new thread
+ * answers its first chunk about 100 ms after it is started (Node's start of the thread, loading
+ * the worker module) and runs its first chunks several times slower than this thread, whose hot
+ * loops are already compiled; while it does, this thread runs about 5% slower. Measured on a
+ * 2-core machine (`pnpm bench --peer`, 2026-12-02), a job left with about 200 ms of work was
+ * 30-55 ms slower with a second thread than without; one with about 850 ms was 25% faster.
  */
-export const POOL_WORTH_MS = 100;
+export const POOL_WORTH_MS = 300;
 
 /**
  * An executor for `workers` threads that never makes a job wait for them. Chunks run in this
@@ -263,12 +291,20 @@ export function startingPoolExecutor(workers: number, chunks?: number): Executor
             },
           };
           inFlight.push(entry);
-          running.run(task, signal).then(entry.settle, (e: unknown) => {
-            if (entry.settled) return;
-            entry.settled = true;
-            inFlight.splice(inFlight.indexOf(entry), 1);
-            reject(e);
-          }).finally(() => inPool--);
+          // inPool drops before the answer is passed on, so that the lane it wakes sees the room.
+          running.run(task, signal).then(
+            (r) => {
+              inPool--;
+              entry.settle(r);
+            },
+            (e: unknown) => {
+              inPool--;
+              if (entry.settled) return;
+              entry.settled = true;
+              inFlight.splice(inFlight.indexOf(entry), 1);
+              reject(e);
+            },
+          );
           setImmediate(stealIfIdle);
         });
       }
