@@ -28,8 +28,8 @@ export { allowedFailure, chipFailure, chipYield, chipYieldFromFailure } from './
 export { correctSelection, lnWrongSelection, maxOfNormals, selectionSeparation, wrongSelection } from './stats/bechhofer.js';
 
 // engine/: chunks, executors, schedule
-export { CHUNK_SIZE, RunAborted } from './engine/schedule.js';
-export { ChunkError, createExecutor, defaultWorkers, type Executor } from './engine/pool.js';
+export { CHUNK_SIZE, chunkCount, RunAborted } from './engine/schedule.js';
+export { ChunkError, createExecutor, defaultWorkers, EAGER_POOL_SAMPLES, type Executor } from './engine/pool.js';
 
 // analyses/
 export {
@@ -49,6 +49,7 @@ export {
   simulateWithSamples,
   QUANTILE_LEVELS,
   RUN_LIMITS,
+  DEFAULT_SAMPLES,
   KEEP_LIMIT,
   type IntervalMethod,
   type QuantileValue,

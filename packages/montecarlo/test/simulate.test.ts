@@ -84,6 +84,13 @@ describe('determinism across worker counts', () => {
         await executor.close();
       }
     }
+    // A pool started before the first chunk (the run command's long runs), this thread working beside it.
+    const eager = createExecutor(2, { chunks: 5, startNow: true });
+    try {
+      runs.push(statistics(await simulate(bigMirror, { samples, seed: 'det', executor: eager })));
+    } finally {
+      await eager.close();
+    }
     for (const r of runs.slice(1)) expect(r).toBe(runs[0]);
     const other = statistics(await simulate(bigMirror, { samples, seed: 'det2', workers: 2 }));
     expect(other).not.toBe(runs[0]);
@@ -103,6 +110,18 @@ describe('where chunks run (the pool-start policy)', () => {
     expect(results.map((r) => r.count)).toEqual([1000, 1000]);
     expect(executor.liveThreads()).toBe(0);
     await executor.close();
+  });
+
+  it('startNow starts the pool threads at once, before any chunk, and close ends them', async () => {
+    // A job's own executor: the pool has workers - 1 threads, this thread being the other.
+    const executor = createExecutor(3, { chunks: 40, startNow: true });
+    try {
+      expect(executor.liveThreads()).toBe(2);
+      expect((await executor.run(task(3))).count).toBe(1000);
+    } finally {
+      await executor.close();
+    }
+    expect(executor.liveThreads()).toBe(0);
   });
 
   it('a shared executor (no chunk count) starts its pool at its first chunk, and close ends it', async () => {

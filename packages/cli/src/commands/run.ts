@@ -1,6 +1,6 @@
 import { createWriteStream } from 'node:fs';
 import { compileStage, InputError, isInputError, MISMATCH_PARAMETERS, stageDefinition, variableDeviation, type Design } from '@twinfet/core';
-import { linearisedEstimate, responseEnvelope, RUN_LIMITS, simulateWithSamples, type RunOutcome, type RunReport } from '@twinfet/montecarlo';
+import { chunkCount, createExecutor, DEFAULT_SAMPLES, EAGER_POOL_SAMPLES, linearisedEstimate, responseEnvelope, RUN_LIMITS, simulateWithSamples, type RunOutcome, type RunReport } from '@twinfet/montecarlo';
 import type { Command } from 'commander';
 import { readCommon, readSpec, withCommonOptions, type CommonFlags } from '../commonOptions.js';
 import { figureJson, figureText, headerLine, pct, plotFigure, sci, seenText, type FigureText } from '../describe.js';
@@ -250,51 +250,60 @@ export function registerRun(program: Command, io: Io, setExit: (code: number) =>
       .option('--plot <FILE.svg>', "histogram with the fitted Gaussian and the +-spec lines (a selector: the winner's share against the lead, with its mismatch envelope)"),
   ).action(async (file: string, flags: RunFlags) => {
     const o = parseRunFlags(flags);
-    const design = await loadDesign(file);
-    const spec = readSpec(flags, design);
-    warnUnitSlips(io, design, spec);
-    const done = await withInterrupt(io, 'run', (signal, onProgress) =>
-      simulateWithSamples(design, {
-        samples: o.samples,
-        workers: o.workers,
-        confidence: o.confidence,
-        interval: o.interval,
-        signal,
-        partialOnAbort: true,
-        onProgress,
-        keepDraws: flags.samplesOut !== undefined,
-        ...(o.seed === undefined ? {} : { seed: o.seed }),
-        ...(spec === undefined ? {} : { spec }),
-        ...(o.method === 'importance' ? { importance: true } : {}),
-        ...(o.drift === undefined ? {} : { drift: o.drift }),
-      }).catch((e: unknown) => {
-        // The library names its own option; on the command line it is --drift.
-        if (isInputError(e) && e.field === 'drift') throw new InputError('--drift', e.message.slice(e.field.length + 2));
-        throw e;
-      }),
-    );
-    if (!('value' in done)) {
-      // Interrupted before a single chunk finished: there are no statistics to print.
-      io.err('twinfet: run interrupted before any chunk finished; nothing was printed');
-      setExit(130);
-      return;
+    // A long run starts its worker threads now, while the design is read and compiled.
+    const samples = o.samples ?? DEFAULT_SAMPLES;
+    const chunks = chunkCount(samples);
+    const executor = o.workers > 1 && samples >= EAGER_POOL_SAMPLES ? createExecutor(Math.min(o.workers, chunks), { chunks, startNow: true }) : undefined;
+    try {
+      const design = await loadDesign(file);
+      const spec = readSpec(flags, design);
+      warnUnitSlips(io, design, spec);
+      const done = await withInterrupt(io, 'run', (signal, onProgress) =>
+        simulateWithSamples(design, {
+          samples: o.samples,
+          workers: o.workers,
+          confidence: o.confidence,
+          interval: o.interval,
+          signal,
+          partialOnAbort: true,
+          onProgress,
+          ...(executor === undefined ? {} : { executor }),
+          keepDraws: flags.samplesOut !== undefined,
+          ...(o.seed === undefined ? {} : { seed: o.seed }),
+          ...(spec === undefined ? {} : { spec }),
+          ...(o.method === 'importance' ? { importance: true } : {}),
+          ...(o.drift === undefined ? {} : { drift: o.drift }),
+        }).catch((e: unknown) => {
+          // The library names its own option; on the command line it is --drift.
+          if (isInputError(e) && e.field === 'drift') throw new InputError('--drift', e.message.slice(e.field.length + 2));
+          throw e;
+        }),
+      );
+      if (!('value' in done)) {
+        // Interrupted before a single chunk finished: there are no statistics to print.
+        io.err('twinfet: run interrupted before any chunk finished; nothing was printed');
+        setExit(130);
+        return;
+      }
+      const outcome = done.value;
+      const report = outcome.report;
+      assertFinite(report);
+      if (flags.samplesOut !== undefined) await writeSamplesCsv(flags.samplesOut, outcome);
+      if (flags.plot !== undefined) {
+        const svg = compileStage(design).response === undefined
+          ? await runPlot(report, `${design.name}: ${report.figure.label} distribution`)
+          : await responsePlot(design, report, `${design.name}: ${report.response?.label ?? 'response'} against ${report.response?.input ?? 'input'}`);
+        await writeOutputFile(flags.plot, '--plot', svg);
+      }
+      if (flags.json === true) printJson(io, figureJson(report));
+      else {
+        io.out(renderRun(report, design));
+        if (flags.samplesOut !== undefined) io.out(`wrote ${flags.samplesOut}`);
+        if (flags.plot !== undefined) io.out(`wrote ${flags.plot}`);
+      }
+      setExit(report.partial ? 130 : 0);
+    } finally {
+      await executor?.close();
     }
-    const outcome = done.value;
-    const report = outcome.report;
-    assertFinite(report);
-    if (flags.samplesOut !== undefined) await writeSamplesCsv(flags.samplesOut, outcome);
-    if (flags.plot !== undefined) {
-      const svg = compileStage(design).response === undefined
-        ? await runPlot(report, `${design.name}: ${report.figure.label} distribution`)
-        : await responsePlot(design, report, `${design.name}: ${report.response?.label ?? 'response'} against ${report.response?.input ?? 'input'}`);
-      await writeOutputFile(flags.plot, '--plot', svg);
-    }
-    if (flags.json === true) printJson(io, figureJson(report));
-    else {
-      io.out(renderRun(report, design));
-      if (flags.samplesOut !== undefined) io.out(`wrote ${flags.samplesOut}`);
-      if (flags.plot !== undefined) io.out(`wrote ${flags.plot}`);
-    }
-    setExit(report.partial ? 130 : 0);
   });
 }

@@ -12,6 +12,8 @@ import { addConditionChunk, conditionsOutcome, conditionsPlan, driftPairFor, emp
 import { responseAt } from './response.js';
 
 export { QUANTILE_LEVELS, AGREEMENT_Z, FEW_FAILURES, type IntervalMethod, type QuantileValue, type RunReport } from './runReport.js';
+/** Samples of a run when none are asked for. */
+export const DEFAULT_SAMPLES = 100_000;
 /** Offsets are kept (exact quantiles) up to this many samples unless told otherwise. */
 export const KEEP_LIMIT = 2_000_000;
 /** Histogram bins over +-max(10 sigma_lin, 1.2 spec). */
@@ -129,7 +131,7 @@ export async function simulateWithSamples(design: Design, options: SimulateOptio
   checkOptions(options);
   const started = performance.now();
   const stage = compileStage(design);
-  const samples = options.samples ?? 100_000;
+  const samples = options.samples ?? DEFAULT_SAMPLES;
   const seed = seedText(options.seed);
   const confidence = options.confidence ?? 0.95;
   const method = options.interval ?? 'clopper-pearson';
