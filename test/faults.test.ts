@@ -89,8 +89,9 @@ describe('injected worker faults (TWINFET_TEST_FAULTS=1)', () => {
     await withinHangGuard(executor.close(), 60_000, 'closing the pool');
     expect(executor.liveThreads()).toBe(0);
     await allWorkersExited();
-    // Exact: two threads asked for; a crashed one is replaced by piscina, so at least two started.
-    expect(started.length).toBeGreaterThanOrEqual(2);
+    // Two workers are this thread and a pool of one; the pool did start (the fault runs there),
+    // and a thread that exited is replaced by piscina, so at least two started for 'exit'.
+    expect(started.length).toBeGreaterThanOrEqual(fault === 'exit' ? 2 : 1);
     expect(workerResources()).toEqual([]);
   });
 
@@ -135,7 +136,8 @@ describe('cancellation through the API', () => {
     };
   };
   // After the abort at most one more chunk per worker can be reported: a result that had already
-  // arrived when the abort was made; the running chunks are aborted in their threads.
+  // arrived when the abort was made; a chunk still running in a pool thread is answered with
+  // the AbortError at once, and its result, when it comes, is dropped.
   const PER_WORKER = 65_536;
 
   it('an aborted simulate rejects with an AbortError, and its own pool is gone afterwards', async () => {
@@ -152,10 +154,11 @@ describe('cancellation through the API', () => {
     expect(probe.atAbort()).toBeGreaterThanOrEqual(2 * 65_536);
     expect(probe.last() - probe.atAbort()).toBeLessThanOrEqual(2 * PER_WORKER);
     await allWorkersExited();
-    // At most two threads, and piscina replaces each thread whose task was aborted: at most 4
-    // started. None may have started at all: the first chunks run in this thread until the pool's
-    // threads are ready, so a run aborted early can finish before any thread starts.
-    expect(started.length).toBeLessThanOrEqual(4);
+    // Two workers are this thread and at most one pool thread, which an abort does not end (its
+    // chunk is dropped, not killed), so at most one started. None may have started at all: the
+    // first chunks run in this thread until the pool's thread is ready, so a run aborted early
+    // can finish before any thread starts.
+    expect(started.length).toBeLessThanOrEqual(1);
     expect(workerResources()).toEqual([]);
   });
 
@@ -193,8 +196,9 @@ describe('cancellation through the API', () => {
     // The abort was made from inside the sampling, after the first chunk (exact count).
     expect(probe.atAbort()).toBeGreaterThanOrEqual(65_536);
     expect(probe.last() - probe.atAbort()).toBeLessThanOrEqual(2 * PER_WORKER);
-    // It did open a pool (the fixed 1e8 samples are far past the in-thread threshold).
-    expect(started.length).toBeGreaterThanOrEqual(2);
+    // It did open a pool (the fixed 1e8 samples are far past the in-thread threshold): with two
+    // workers, one pool thread beside this one.
+    expect(started.length).toBeGreaterThanOrEqual(1);
     await allWorkersExited();
     expect(workerResources()).toEqual([]);
   });

@@ -125,7 +125,8 @@ describe('where chunks run (the pool-start policy)', () => {
   });
 
   it('a shared executor (no chunk count) starts its pool at its first chunk, and close ends it', async () => {
-    const executor = startingPoolExecutor(2);
+    // Three workers: this thread and a pool of two.
+    const executor = startingPoolExecutor(3);
     try {
       expect((await executor.run(task(5))).count).toBe(1000);
       expect(executor.liveThreads()).toBe(2);
