@@ -29,7 +29,7 @@ export { correctSelection, lnWrongSelection, maxOfNormals, selectionSeparation, 
 
 // engine/: chunks, executors, schedule
 export { CHUNK_SIZE, chunkCount, RunAborted } from './engine/schedule.js';
-export { ChunkError, createExecutor, defaultWorkers, EAGER_POOL_SAMPLES, type Executor } from './engine/pool.js';
+export { ChunkError, createExecutor, defaultWorkers, EAGER_POOL_SAMPLES, POOL_WORTH_MS, type Executor } from './engine/pool.js';
 
 // analyses/
 export {
