@@ -25,6 +25,8 @@ const CORE = [
   'packages/core/test/figureReference.test.ts',
   'packages/core/test/libraryEdge.test.ts',
   'packages/core/test/conditions.test.ts',
+  'packages/core/test/elementGuards.test.ts',
+  'packages/core/test/simpleFarDraws.test.ts',
 ];
 const RANDOM = ['packages/montecarlo/test/ziggurat.test.ts'];
 const STATS = [
