@@ -27,6 +27,8 @@ const CORE = [
   'packages/core/test/conditions.test.ts',
   'packages/core/test/elementGuards.test.ts',
   'packages/core/test/simpleFarDraws.test.ts',
+  'packages/core/test/resistorEdges.test.ts',
+  'packages/core/test/currentMirrorEdges.test.ts',
 ];
 // The deviate-for-deviate reference first: it fails in milliseconds where the statistical
 // tests need millions of draws.
