@@ -31,6 +31,7 @@ const CORE = [
   'packages/core/test/currentMirrorEdges.test.ts',
   'packages/core/test/mirrorRegions.test.ts',
   'packages/core/test/stageDefinitions.test.ts',
+  'packages/core/test/selectorEdges.test.ts',
 ];
 // The deviate-for-deviate reference first: it fails in milliseconds where the statistical
 // tests need millions of draws.
