@@ -12,19 +12,19 @@ import { parseDesign } from '../src/parse/parseDesign.js';
 import type { StageDefinition } from '../src/stages/definition.js';
 import { STAGES } from '../src/stages/registry.js';
 
-type FieldRow = [key: string, what: string, example: string, unit: string, required: boolean];
+type FieldRow = [key: string, what: string, example: string, unit: string, required: boolean, dimension: string, integer: boolean];
 type BlockRow = [key: string, kind: string, elements: string, label: string, polarity: string, exampleForN: string, sizable: boolean, fields: FieldRow[], terms: Record<string, string> | null];
 interface Row {
   topology: string;
   summary: string;
   fields: FieldRow[];
   blocks: BlockRow[];
-  figure: [name: string, specKey: string, label: string, symbol: string, unit: string, sided: string, example: string];
+  figure: [name: string, specKey: string, label: string, symbol: string, unit: string, sided: string, example: string, dimension: string, note: string | null];
 }
 
-const TAIL: FieldRow = ['tail', 'tail current', 'tail: 10 uA', 'A', true];
+const TAIL: FieldRow = ['tail', 'tail current', 'tail: 10 uA', 'A', true, 'current', false];
 const INPUT: BlockRow = ['input', 'mos', 'M1 M2', 'input pair', 'any', '{ polarity: n, w: 2 um, l: 1 um }', true, [], null];
-const OFFSET: Row['figure'] = ['offset', 'offset', 'offset', 'Vos', 'V', 'two', 'offset: 10 mV'];
+const OFFSET: Row['figure'] = ['offset', 'offset', 'offset', 'Vos', 'V', 'two', 'offset: 10 mV', 'voltage', null];
 
 const EXPECTED: Row[] = [
   { topology: 'simple', summary: 'differential pair with ideal equal loads', fields: [TAIL], blocks: [INPUT], figure: OFFSET },
@@ -39,7 +39,7 @@ const EXPECTED: Row[] = [
     topology: 'resistor',
     summary: 'differential pair with resistor loads',
     fields: [TAIL],
-    blocks: [INPUT, ['load', 'resistor', 'R1 R2', 'load resistors', 'any', '{ w: 2 um, l: 10 um, r: 20 kohm }', true, [['r', 'resistance', 'r: 20 kohm', 'ohm', false]], null]],
+    blocks: [INPUT, ['load', 'resistor', 'R1 R2', 'load resistors', 'any', '{ w: 2 um, l: 10 um, r: 20 kohm }', true, [['r', 'resistance', 'r: 20 kohm', 'ohm', false, 'resistance', false]], null]],
     figure: OFFSET,
   },
   {
@@ -50,7 +50,7 @@ const EXPECTED: Row[] = [
       INPUT,
       [
         'sources', 'mos', 'M5 M6', 'folding current sources', 'opposite-to-input', '{ polarity: p, w: 4 um, l: 2 um, current: 20 uA }', true,
-        [['current', 'folding source current', 'current: 20 uA', 'A', true]],
+        [['current', 'folding source current', 'current: 20 uA', 'A', true, 'current', false]],
         { vt: '(gm_sources/gm_in) A_VT/sqrt(WL_sources)', beta: '(I_sources/gm_in) A_beta/sqrt(WL_sources)' },
       ],
       ['load', 'mos', 'M7 M8', 'bottom mirror', 'same-as-input', '{ polarity: n, w: 4 um, l: 2 um }', true, [], { vt: '(gm_load/gm_in) A_VT/sqrt(WL_load)', beta: '(I_load/gm_in) A_beta/sqrt(WL_load)' }],
@@ -64,30 +64,33 @@ const EXPECTED: Row[] = [
     blocks: [
       [
         'input', 'mos', 'M1', 'diode-connected input device', 'any', '{ polarity: n, w: 4 um, l: 4 um, current: 10 uA }', true,
-        [['current', 'reference current', 'current: 10 uA', 'A', true]],
+        [['current', 'reference current', 'current: 10 uA', 'A', true, 'current', false]],
         { vt: '(gm/I_D) A_VT/sqrt(2 WL_input)', beta: 'A_beta/sqrt(2 WL_input)' },
       ],
       ['output', 'mos', 'M2', 'output device', 'same-as-input', '{ polarity: n, w: 8 um, l: 4 um }', true, [], { vt: '(gm/I_D) A_VT/sqrt(2 WL_output)', beta: 'A_beta/sqrt(2 WL_output)' }],
     ],
-    figure: ['currentError', 'error', 'current error', 'e', '', 'two', 'error: 0.5 %'],
+    figure: ['currentError', 'error', 'current error', 'e', '', 'two', 'error: 0.5 %', 'dimensionless', null],
   },
   {
     topology: 'selector',
     summary: 'N-input selector (winner-take-all): cells with joined sources on one tail current',
-    fields: [['cells', 'input cells', 'cells: 16', '', true], TAIL],
+    fields: [['cells', 'input cells', 'cells: 16', '', true, 'dimensionless', true], TAIL],
     blocks: [['input', 'mos', 'M1 M2 ... MN', 'cells', 'any', '{ polarity: n, w: 4 um, l: 4 um }', true, [], null]],
-    figure: ['lead', 'separation', 'required lead', 'L', 'V', 'one', 'separation: 10 mV'],
+    figure: [
+      'lead', 'separation', 'required lead', 'L', 'V', 'one', 'separation: 10 mV', 'voltage',
+      'the required lead is a maximum over the competitors, so its distribution is not symmetric (skewed to large leads): read its quantiles, not mean +- k sigma',
+    ],
   },
 ];
 
 function row(s: StageDefinition): Row {
-  const field = (f: StageDefinition['fields'][number]): FieldRow => [f.key, f.what, f.example, f.unit, f.required];
+  const field = (f: StageDefinition['fields'][number]): FieldRow => [f.key, f.what, f.example, f.unit, f.required, f.dimension, f.integer === true];
   return {
     topology: s.topology,
     summary: s.summary,
     fields: s.fields.map(field),
     blocks: s.blocks.map((b) => [b.key, b.kind, b.elements.join(' '), b.label, b.polarity, b.example('n'), b.sizable, b.fields.map(field), b.terms === undefined ? null : { ...b.terms }]),
-    figure: [s.figure.name, s.figure.specKey, s.figure.label, s.figure.symbol, s.figure.unit, s.figure.sided, s.figure.example],
+    figure: [s.figure.name, s.figure.specKey, s.figure.label, s.figure.symbol, s.figure.unit, s.figure.sided, s.figure.example, s.figure.dimension, s.figure.note ?? null],
   };
 }
 
