@@ -126,6 +126,21 @@ describe('edges of the EKV helpers', () => {
   });
 });
 
+describe('v(s1^2) - v(s2^2) deep in weak inversion, close sides: the series form keeps the digits', () => {
+  it('s2 = 2^-17, s1 = s2 (1 + 2^-20), both exact doubles: 1e-13 relative', () => {
+    // ln(expm1(s)/s) = s/2 + s^2/24 - s^4/2880 + ... (Bernoulli series), so
+    // v1 - v2 = 2 ln(s1/s2) + (s1 - s2) + (s1^2 - s2^2)/12 + O(s^3 (s1 - s2)) (the rest < 1e-30 here).
+    // ln(s1/s2) = log1p(2^-20) exactly to one ulp; s1 - s2 is exact (Sterbenz). 1e-13 allows a few
+    // hundred ulp of rounding in the series form. Written as 2 ln(expm1(s1)) - 2 ln(expm1(s2)),
+    // the two logs of about -23 (ulp 3.6e-15) lose digits against a difference of 1.9e-6: 5e-12 off.
+    const s2 = 2 ** -17;
+    const s1 = s2 * (1 + 2 ** -20);
+    const lnRatio = Math.log1p(2 ** -20);
+    const want = 2 * lnRatio + (s1 - s2) + (s1 * s1 - s2 * s2) / 12;
+    expect(rel(ekvInverseDifference(s1, s2, lnRatio), want)).toBeLessThan(1e-13);
+  });
+});
+
 describe('simple stage: a current factor beyond the range of doubles gives NaN, never +-Infinity', () => {
   it('a draw that underflows I_S of one device is not evaluated (NaN) and counted by offsets()', () => {
     // sigma(dbeta/beta) = 30%: u_beta = 5000 gives I_S1 = I_S e^{1500}: beyond doubles, and

@@ -14,6 +14,7 @@ import { linearisedSigma } from '../src/linearised.js';
 import { parseDesign } from '../src/parse/parseDesign.js';
 import { writeDesign } from '../src/parse/writeDesign.js';
 import { pairSigma } from '../src/pelgrom.js';
+import { FOLDED_STAGE } from '../src/stages/folded.js';
 import { thermalVoltage } from '../src/thermal.js';
 import { demoProcess, simpleDesign } from './designs.js';
 
@@ -250,5 +251,40 @@ describe('folded stage: design file', () => {
 
   it('the library refuses what the reader refuses: a design object whose branch current is not positive', () => {
     expect(() => compileStage({ ...folded, sources: { polarity: 'p', w: 4e-6, l: 2e-6, current: 8e-6 } })).toThrow(/^sources\.current: must exceed half the tail current/);
+  });
+});
+
+describe('folded stage: edges', () => {
+  // The strong design with a long narrow load (1/4 um): I_S7 = 2 n KP (W/L) U_T^2 = 0.13 uA, so
+  // the branch's 0.5 mA puts M7 at IC ~ 3800, sqrt(IC7) ~ 62: the balance in the log domain.
+  const strongLoad: Design = { ...strong, load: { polarity: 'n', w: 1e-6, l: 4e-6 } };
+  it.each<[string, number[]]>([
+    ['small draws', [0.5, -0.3, 0.2, 0.1, -1, 0.4, 0.3, -0.2, 1.5, -0.7, -0.8, 0.6]],
+    ['M8 V_T 3000 sigma high: M8 off, I7 carries the whole folded current', [0.5, -0.3, 0.2, 0.1, -1, 0.4, 0.3, -0.2, 0, 0, 3000, 0]],
+  ])('load deep in strong inversion (sqrt(IC7) > 30), %s: agrees with bisection (1e-8 relative)', (_n, u) => {
+    const st = compileStage(strongLoad);
+    expect(Math.sqrt(st.operatingPoint[4]!.ic)).toBeGreaterThan(30);
+    const ref = bisectionOffset(strongLoad, u);
+    expect(Number.isFinite(ref)).toBe(true);
+    expect(Math.abs(st.figure(Float64Array.from(u), 0) - ref)).toBeLessThan(1e-8 * Math.abs(ref));
+  });
+  it('an input current factor so far out that sqrt(IC1) underflows: no finite offset, NaN', () => {
+    const st = compileStage(folded);
+    const u = new Float64Array(12);
+    u[1] = 1600 / st.operatingPoint[0]!.sigmaBeta; // z1 = 1600: e^{-z1} underflows
+    expect(st.figure(u, 0)).toBeNaN();
+  });
+  it('warnings name the block of each device near the process minimum: input, then sources, then load', () => {
+    const d: Design = { ...folded, process: { n: { ...demoProcess.n, minW: 3e-6, minL: 0.6e-6 }, p: { ...demoProcess.p, minW: 3e-6 } } };
+    expect(compileStage(d).warnings.map((w) => w.split(' ')[0])).toEqual(['input.l', 'sources.w', 'load.w']);
+  });
+  it('the branch-current message states half the tail and the value given, in amperes', () => {
+    expect(() => compileStage({ ...folded, sources: { polarity: 'p', w: 4e-6, l: 2e-6, current: 8e-6 } })).toThrow(
+      'sources.current: must exceed half the tail current (10 uA): each folded branch carries sources.current - tail/2 at balance, got 8 uA; raise sources.current or lower tail',
+    );
+  });
+  it('a design that skipped validation without sources.current is an internal error, named', () => {
+    const d = { ...folded, sources: { polarity: 'p', w: 4e-6, l: 2e-6 } } as Design;
+    expect(() => FOLDED_STAGE.compile(d)).toThrow(/^internal: sources\.current missing after validation$/);
   });
 });

@@ -1,0 +1,113 @@
+/**
+ * The selector (winner-take-all) stage at the edges its lead tests do not reach: names and roles,
+ * the first-order coefficients with correlated draws, the symmetry and law it declares, the
+ * response it offers, figure() at an offset into the draws, the NaN of an underflowed cell,
+ * cellCurrents' argument check, and the cell currents themselves in strong inversion against the
+ * EKV law. References, by hand: at the common source every cell sees the same V_S, so with no
+ * mismatch v_j - v_k = (V_Gj - V_Gk)/(n U_T) for the EKV inverse v = 2 ln(e^{sqrt IC} - 1)
+ * (Enz, Krummenacher & Vittoz, AICSP 8, 1995), and the currents sum to I_B; the first-order
+ * coefficient of cell 1 is dV_T1 - (I_D/gm) dbeta_1/beta_1 at I_B/N per cell, with
+ * z = rho u_vt + sqrt(1 - rho^2) u_beta and per-device sigmas A / sqrt(2 W L) (Pelgrom 1989).
+ * Designs are invented.
+ */
+import { describe, expect, it } from 'vitest';
+import { compileStage } from '../src/compileStage.js';
+import type { Design } from '../src/design.js';
+import { ekvInverse } from '../src/ekv.js';
+import { cellCurrents, SELECTOR_STAGE } from '../src/stages/selector.js';
+import { demoProcess } from './designs.js';
+
+const rel = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
+const thermal = (t: number): number => (1.380649e-23 * t) / 1.602176634e-19;
+
+function selector(cells: number, tail: number, rho = 0): Design {
+  return {
+    name: 'test selector (invented)',
+    temperature: 300,
+    topology: 'selector',
+    cells,
+    tail,
+    input: { polarity: 'n', w: 4e-6, l: 4e-6 },
+    process: { n: { ...demoProcess.n, rho } },
+    spec: { separation: 10e-3, instances: 1 },
+  };
+}
+
+describe('selector: what it reports', () => {
+  it('two cells: M1 and M2; sixteen: M1 and M2..M16, all of role input', () => {
+    const two = compileStage(selector(2, 10e-6));
+    const many = compileStage(selector(16, 10e-6));
+    expect(two.operatingPoint.map((o) => `${o.device}/${o.role}`)).toEqual(['M1/input', 'M2/input']);
+    expect(many.operatingPoint.map((o) => `${o.device}/${o.role}`)).toEqual(['M1/input', 'M2..M16/input']);
+    expect(many.variables.map((v) => v.device)).toEqual(Array.from({ length: 16 }, (_, j) => [`M${j + 1}`, `M${j + 1}`]).flat());
+    expect(new Set(many.variables.map((v) => v.role))).toEqual(new Set(['input']));
+    // Each cell carries I_B / N at the tie.
+    expect(rel(many.operatingPoint[0]!.current, 10e-6 / 16)).toBeLessThan(1e-15);
+  });
+  it('rho = 0.6: d(lead)/du_vt1 = sigma_VT - (I_D/gm) 0.6 sigma_beta, d/du_beta1 = -(I_D/gm) 0.8 sigma_beta (1e-12: rounding)', () => {
+    const st = compileStage(selector(8, 8e-6, 0.6));
+    const area = 16e-12;
+    const sVt = 5e-9 / Math.sqrt(2 * area);
+    const sBeta = 1e-8 / Math.sqrt(2 * area);
+    const idOverGm = 1 / st.operatingPoint[0]!.gmOverId;
+    expect(rel(st.sensitivities[0]!, sVt - idOverGm * 0.6 * sBeta)).toBeLessThan(1e-12);
+    expect(rel(st.sensitivities[1]!, -idOverGm * 0.8 * sBeta)).toBeLessThan(1e-12);
+    expect(Array.from(st.sensitivities.subarray(2))).toEqual(new Array(14).fill(0));
+  });
+  it('declares the selection law over its cells, failure symmetry in groups of two draws, and the winner\'s share against the lead', () => {
+    const st = compileStage(selector(8, 8e-6));
+    expect(st.linearisedLaw).toEqual({ kind: 'selection', populations: 8 });
+    expect(st.failureSymmetry).toEqual({ groupSize: 2 });
+    expect([st.response!.label, st.response!.input]).toEqual(["winner's share of the tail", 'lead']);
+    // No mismatch, no lead: every cell carries I_B / 8.
+    expect(rel(st.response!.evaluate(new Float64Array(16), 0, 0), 1 / 8)).toBeLessThan(1e-11);
+  });
+});
+
+describe('selector: evaluation edges', () => {
+  const st = compileStage(selector(4, 4e-6));
+  it('figure(u, base) reads the sample at base, as figures() does', () => {
+    const a = Float64Array.of(1, 0, 0, 0, 0, 0, 0, 0);
+    const b = Float64Array.of(0, 0, 2, 0, 0, 0, 0, 0);
+    const both = new Float64Array(16);
+    both.set(a, 0);
+    both.set(b, 8);
+    expect(st.figure(both, 8)).toBe(st.figure(b, 0));
+    expect(st.figure(both, 0)).toBe(st.figure(a, 0));
+    expect(st.figure(both, 8)).not.toBe(st.figure(both, 0));
+  });
+  it('cell 1 with a current factor so small that its sqrt(IC) underflows has no finite lead: NaN', () => {
+    const u = new Float64Array(8);
+    u[1] = 1600 / st.operatingPoint[0]!.sigmaBeta;
+    expect(st.figure(u, 0)).toBeNaN();
+  });
+  it('cellCurrents refuses a wrong number of gates or draws, naming both counts', () => {
+    const d = selector(4, 4e-6);
+    expect(() => cellCurrents(d, [0, 0, 0])).toThrow(/^cellCurrents: need 4 gate voltages and 8 draws$/);
+    expect(() => cellCurrents(d, [0, 0, 0, 0], new Float64Array(7))).toThrow(/^cellCurrents: need 4 gate voltages and 8 draws$/);
+    expect(() => cellCurrents(d, [0, 0, 0, 0], new Float64Array(8))).not.toThrow();
+  });
+  it('a design that skipped validation without cells is an internal error, named', () => {
+    const d = { ...selector(4, 4e-6), cells: undefined } as unknown as Design;
+    expect(() => SELECTOR_STAGE.compile(d)).toThrow(/^internal: cells missing after validation$/);
+  });
+});
+
+describe('selector: cell currents against the EKV law (no mismatch)', () => {
+  // 2 mA over three 4/4 um cells: the leading cells in strong inversion (IC in the thousands),
+  // the last 5 V below the first, deep in weak inversion (v about 150 lower).
+  const d = selector(3, 2e-3);
+  const gates = [0.2, 0, -5];
+  const i = cellCurrents(d, gates);
+  const p = demoProcess.n;
+  const ut = thermal(300);
+  const is = 2 * p.slope * p.kp * 1 * ut * ut;
+  it('they sum to the tail (1e-11: the solve stops at a relative residual of 1e-12)', () => {
+    expect(rel(i[0]! + i[1]! + i[2]!, 2e-3)).toBeLessThan(1e-11);
+    expect(i[0]! / is).toBeGreaterThan(100);
+    expect(i[2]! / is).toBeLessThan(1e-3);
+  });
+  it.each([1, 2])('v_1 - v_%i = (V_G1 - V_Gj)/(n U_T) (1e-9 absolute in v: the 1e-12 residual and the logs of small IC)', (j) => {
+    expect(Math.abs(ekvInverse(i[0]! / is) - ekvInverse(i[j]! / is) - (gates[0]! - gates[j]!) / (p.slope * ut))).toBeLessThan(1e-9);
+  });
+});
