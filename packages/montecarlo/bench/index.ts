@@ -15,7 +15,7 @@ import { fileURLToPath } from 'node:url';
 import { compileStage, linearisedSigma, specLimit, type Design } from '@twinfet/core';
 import { createExecutor, defaultWorkers, estimateHighSigma, selectionSeparation, simulate } from '@twinfet/montecarlo';
 import { runChunk } from '../src/engine/chunk.js';
-import { poolExecutor } from '../src/engine/pool.js';
+import { poolExecutor } from '../dist/engine/pool.js';
 import { loadDesign } from '../../cli/dist/designFile.js';
 import { peerComparison } from './peer.js';
 import { startupFigures } from './startup.js';
@@ -67,7 +67,7 @@ async function runNs(design: Design, workers: number, samples: number): Promise<
   }
 }
 
-/** From creating a pool to its first chunk's result (a job waits for none of it: see startingPoolExecutor). */
+/** From creating a pool to its first chunk's result (a job waits for none of it: see startingPoolExecutor). The built pool (dist), whose threads load worker.js; the source one would load worker.ts through tsx, several times slower. */
 async function poolStartMs(design: Design): Promise<number> {
   const t = performance.now();
   const pool = poolExecutor(defaultWorkers());
