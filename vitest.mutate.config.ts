@@ -29,6 +29,7 @@ const CORE = [
   'packages/core/test/simpleFarDraws.test.ts',
   'packages/core/test/resistorEdges.test.ts',
   'packages/core/test/currentMirrorEdges.test.ts',
+  'packages/core/test/stageWarnings.test.ts',
   'packages/core/test/mirrorRegions.test.ts',
   'packages/core/test/stageDefinitions.test.ts',
   'packages/core/test/selectorEdges.test.ts',
