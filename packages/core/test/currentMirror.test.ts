@@ -14,19 +14,10 @@ import { parseDesign } from '../src/parse/parseDesign.js';
 import { writeDesign } from '../src/parse/writeDesign.js';
 import { CURRENT_MIRROR_CAUTION } from '../src/stages/currentMirror.js';
 import { thermalVoltage } from '../src/thermal.js';
-import { demoProcess } from './designs.js';
+import { currentMirrorDesign as mirror, demoProcess } from './designs.js';
 
 const rel = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
 
-const mirror: Design = {
-  name: 'test current mirror (invented)',
-  temperature: 300,
-  topology: 'current-mirror',
-  input: { polarity: 'n', w: 4e-6, l: 4e-6, current: 10e-6 },
-  output: { polarity: 'n', w: 8e-6, l: 4e-6 },
-  process: { n: demoProcess.n },
-  spec: { error: 5e-3, instances: 64 },
-};
 const pMirror: Design = { ...mirror, input: { polarity: 'p', w: 10e-6, l: 2e-6, current: 5e-6 }, output: { polarity: 'p', w: 10e-6, l: 2e-6 }, process: { p: demoProcess.p } };
 const strong: Design = { ...mirror, input: { polarity: 'n', w: 2e-6, l: 20e-6, current: 50e-6 }, output: { polarity: 'n', w: 6e-6, l: 20e-6 } };
 const weak: Design = { ...mirror, input: { polarity: 'n', w: 40e-6, l: 1e-6, current: 1e-9 } };

@@ -11,20 +11,11 @@ import { describe, expect, it } from 'vitest';
 import { compileStage } from '../src/compileStage.js';
 import type { Design } from '../src/design.js';
 import { CURRENT_MIRROR_CAUTION, CURRENT_MIRROR_STAGE } from '../src/stages/currentMirror.js';
-import { demoProcess } from './designs.js';
+import { currentMirrorDesign as mirror, demoProcess } from './designs.js';
 
 const rel = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
 const thermal = (t: number): number => (1.380649e-23 * t) / 1.602176634e-19;
 
-const mirror: Design = {
-  name: 'test current mirror (invented)',
-  temperature: 300,
-  topology: 'current-mirror',
-  input: { polarity: 'n', w: 4e-6, l: 4e-6, current: 10e-6 },
-  output: { polarity: 'n', w: 8e-6, l: 4e-6 },
-  process: { n: demoProcess.n },
-  spec: { error: 5e-3, instances: 64 },
-};
 const p = demoProcess.n;
 const ut = thermal(300);
 const nut = p.slope * ut;

@@ -27,6 +27,29 @@ export const mirrorDesign: Design = {
   spec: { offset: 10e-3, instances: 1 },
 };
 
+/** A resistor-loaded pair (the resistor stage's tests). */
+export const resistorDesign: Design = {
+  name: 'test resistor pair (invented)',
+  temperature: 300,
+  topology: 'resistor',
+  tail: 40e-6,
+  input: { polarity: 'n', w: 8e-6, l: 1e-6 },
+  load: { w: 1e-6, l: 5e-6, r: 20e3 },
+  process: { n: demoProcess.n, resistor: { ar: 1e-8 } },
+  spec: { offset: 5e-3, instances: 1 },
+};
+
+/** A two-device current mirror (the current-mirror stage's tests). */
+export const currentMirrorDesign: Design = {
+  name: 'test current mirror (invented)',
+  temperature: 300,
+  topology: 'current-mirror',
+  input: { polarity: 'n', w: 4e-6, l: 4e-6, current: 10e-6 },
+  output: { polarity: 'n', w: 8e-6, l: 4e-6 },
+  process: { n: demoProcess.n },
+  spec: { error: 5e-3, instances: 64 },
+};
+
 /** A copy with a few fields replaced (shallow per section). */
 export function withChanges(d: Design, changes: Partial<Design>): Design {
   return { ...d, ...changes };

@@ -10,20 +10,10 @@ import { describe, expect, it } from 'vitest';
 import { compileStage } from '../src/compileStage.js';
 import type { Design } from '../src/design.js';
 import { deviceBlock, resistorBlock, resistorConstants, tailCurrent } from '../src/elements.js';
-import { demoProcess, mirrorDesign, simpleDesign } from './designs.js';
+import { demoProcess, mirrorDesign, resistorDesign, simpleDesign } from './designs.js';
 
 const rel = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
 
-const resistorDesign: Design = {
-  name: 'test resistor pair (invented)',
-  temperature: 300,
-  topology: 'resistor',
-  tail: 40e-6,
-  input: { polarity: 'n', w: 8e-6, l: 1e-6 },
-  load: { w: 1e-6, l: 5e-6, r: 20e3 },
-  process: { n: demoProcess.n, resistor: { ar: 1e-8 } },
-  spec: { offset: 5e-3, instances: 1 },
-};
 
 describe('resistor operating point (each load resistor carries I_B/2 at balance)', () => {
   it('R1 and R2: names, role, body, area W L, current, sigma(dR/R) = A_R / sqrt(2 W L), resistance (1e-12: rounding)', () => {

@@ -12,20 +12,10 @@ import { linearisedSigma } from '../src/linearised.js';
 import { pairSigma } from '../src/pelgrom.js';
 import { parseDesign } from '../src/parse/parseDesign.js';
 import { thermalVoltage } from '../src/thermal.js';
-import { demoProcess, simpleDesign } from './designs.js';
+import { demoProcess, resistorDesign, simpleDesign } from './designs.js';
 
 const rel = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
 
-const resistorDesign: Design = {
-  name: 'test resistor pair (invented)',
-  temperature: 300,
-  topology: 'resistor',
-  tail: 40e-6,
-  input: { polarity: 'n', w: 8e-6, l: 1e-6 },
-  load: { w: 1e-6, l: 5e-6, r: 20e3 },
-  process: { n: demoProcess.n, resistor: { ar: 1e-8 } },
-  spec: { offset: 5e-3, instances: 1 },
-};
 const pInput: Design = { ...resistorDesign, input: { polarity: 'p', w: 8e-6, l: 1e-6 }, process: { p: demoProcess.p, resistor: { ar: 1e-8 } } };
 const weak: Design = { ...resistorDesign, tail: 20e-9, input: { polarity: 'n', w: 20e-6, l: 2e-6 } };
 

@@ -11,21 +11,11 @@
 import { describe, expect, it } from 'vitest';
 import { compileStage } from '../src/compileStage.js';
 import type { Design } from '../src/design.js';
-import { demoProcess } from './designs.js';
+import { demoProcess, resistorDesign } from './designs.js';
 
 const rel = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
 const thermal = (t: number): number => (1.380649e-23 * t) / 1.602176634e-19;
 
-const resistorDesign: Design = {
-  name: 'test resistor pair (invented)',
-  temperature: 300,
-  topology: 'resistor',
-  tail: 40e-6,
-  input: { polarity: 'n', w: 8e-6, l: 1e-6 },
-  load: { w: 1e-6, l: 5e-6, r: 20e3 },
-  process: { n: demoProcess.n, resistor: { ar: 1e-8 } },
-  spec: { offset: 5e-3, instances: 1 },
-};
 const sigmaR = 1e-8 / Math.sqrt(2 * 1e-6 * 5e-6);
 
 /** Vos for a resistor split d = ln(R1/R2) alone (no device mismatch), by the formulas above. */

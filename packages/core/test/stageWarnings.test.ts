@@ -7,37 +7,20 @@
 import { describe, expect, it } from 'vitest';
 import { compileStage } from '../src/compileStage.js';
 import type { Design } from '../src/design.js';
-import { demoProcess } from './designs.js';
+import { currentMirrorDesign, demoProcess, resistorDesign } from './designs.js';
 
 /** The demo process with drawn minima of 1 um, so that a 1.5 um device is within 2x of them. */
 const process1um = { ...demoProcess.n, minW: 1e-6, minL: 1e-6 };
 
 describe('geometry warnings name the stage field of the device', () => {
   it('resistor pair: a short input pair is named input.l', () => {
-    const d: Design = {
-      name: 'test resistor pair (invented)',
-      temperature: 300,
-      topology: 'resistor',
-      tail: 40e-6,
-      input: { polarity: 'n', w: 8e-6, l: 1.5e-6 },
-      load: { w: 1e-6, l: 5e-6, r: 20e3 },
-      process: { n: process1um, resistor: { ar: 1e-8 } },
-      spec: { offset: 5e-3, instances: 1 },
-    };
+    const d: Design = { ...resistorDesign, input: { polarity: 'n', w: 8e-6, l: 1.5e-6 }, process: { ...resistorDesign.process, n: process1um } };
     const w = compileStage(d).warnings.filter((x) => x.includes('within 2x'));
     expect(w).toEqual(['input.l is within 2x of the process minimum length: the area law may underestimate mismatch of short devices']);
   });
 
   it('current mirror: a narrow output device is named output.w, a narrow input device input.w', () => {
-    const base: Design = {
-      name: 'test current mirror (invented)',
-      temperature: 300,
-      topology: 'current-mirror',
-      input: { polarity: 'n', w: 4e-6, l: 4e-6, current: 10e-6 },
-      output: { polarity: 'n', w: 1.5e-6, l: 4e-6 },
-      process: { n: process1um },
-      spec: { error: 5e-3, instances: 64 },
-    };
+    const base: Design = { ...currentMirrorDesign, output: { polarity: 'n', w: 1.5e-6, l: 4e-6 }, process: { n: process1um } };
     const out = compileStage(base).warnings.filter((x) => x.includes('within 2x'));
     expect(out).toEqual(['output.w is within 2x of the process minimum width: the area law may underestimate mismatch of narrow devices']);
     const inp = compileStage({ ...base, input: { polarity: 'n', w: 1.5e-6, l: 4e-6, current: 10e-6 }, output: { polarity: 'n', w: 8e-6, l: 4e-6 } } as Design)
