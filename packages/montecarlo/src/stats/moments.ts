@@ -98,32 +98,49 @@ export function addSamples(
 }
 
 /**
- * Combine two accumulators into a new one (Chan, Golub & LeVeque 1983 for the mean and M2;
- * Pebay 2008, eqs. 3.1 for M3 and M4); inputs untouched.
+ * Merges the non-empty accumulator `b` into `a` in place (Chan, Golub & LeVeque 1983 for the
+ * mean and M2; Pebay 2008, eqs. 3.1 for M3 and M4). The one place of the merge formulas:
+ * `mergeMoments` merges into a copy, `addBlock` into its state. (`b` is an object rather than
+ * seven numbers: a call the compiler does not inline boxes each number it passes.)
  */
-export function mergeMoments(a: Moments, b: Moments): Moments {
-  if (a.count === 0) return { ...b };
-  if (b.count === 0) return { ...a };
+function mergeInto(a: Moments, b: Moments): void {
   const na = a.count;
   const nb = b.count;
+  if (na === 0) {
+    a.count = nb;
+    a.mean = b.mean;
+    a.m2 = b.m2;
+    a.m3 = b.m3;
+    a.m4 = b.m4;
+    a.min = b.min;
+    a.max = b.max;
+    return;
+  }
   const count = na + nb;
   const delta = b.mean - a.mean;
   const d2 = delta * delta;
   const ab = (na * nb) / count;
-  return {
-    count,
-    mean: a.mean + delta * (nb / count),
-    m2: a.m2 + b.m2 + d2 * ab,
-    m3: a.m3 + b.m3 + d2 * delta * ab * ((na - nb) / count) + (3 * delta * (na * b.m2 - nb * a.m2)) / count,
-    m4:
-      a.m4 +
-      b.m4 +
-      d2 * d2 * ab * ((na * na - na * nb + nb * nb) / (count * count)) +
-      (6 * d2 * (na * na * b.m2 + nb * nb * a.m2)) / (count * count) +
-      (4 * delta * (na * b.m3 - nb * a.m3)) / count,
-    min: Math.min(a.min, b.min),
-    max: Math.max(a.max, b.max),
-  };
+  const m2a = a.m2;
+  const m3a = a.m3;
+  a.m4 =
+    a.m4 +
+    b.m4 +
+    d2 * d2 * ab * ((na * na - na * nb + nb * nb) / (count * count)) +
+    (6 * d2 * (na * na * b.m2 + nb * nb * m2a)) / (count * count) +
+    (4 * delta * (na * b.m3 - nb * m3a)) / count;
+  a.m3 = m3a + b.m3 + d2 * delta * ab * ((na - nb) / count) + (3 * delta * (na * b.m2 - nb * m2a)) / count;
+  a.m2 = m2a + b.m2 + d2 * ab;
+  a.mean = a.mean + delta * (nb / count);
+  a.count = count;
+  a.min = Math.min(a.min, b.min);
+  a.max = Math.max(a.max, b.max);
+}
+
+/** Combine two accumulators into a new one (see mergeInto); inputs untouched. */
+export function mergeMoments(a: Moments, b: Moments): Moments {
+  const out = { ...a };
+  if (b.count > 0) mergeInto(out, b);
+  return out;
 }
 
 /** Sample variance m2 / (count - 1); throws for fewer than 2 samples. */
@@ -149,6 +166,12 @@ export function kurtosis(state: Moments): number {
   if (!(state.m2 > 0)) throw new RangeError('kurtosis: every sample is equal (M2 = 0), so the kurtosis is not defined');
   return (state.count * state.m4) / (state.m2 * state.m2);
 }
+
+/**
+ * addBlock's block summary, reused: its fields are written before every merge. (Created with
+ * fractional values so that they are held as doubles from the start.)
+ */
+const BLOCK: Moments = { count: 0, mean: 0.5, m2: 0.5, m3: 0.5, m4: 0.5, min: 0.5, max: 0.5 };
 
 /**
  * Add values[start..end) as one block: a two-pass mean and sums of powers of the deviations
@@ -181,34 +204,15 @@ export function addBlock(state: Moments, values: Float64Array, start: number, en
   if (!Number.isFinite(mean) || !Number.isFinite(m2) || !Number.isFinite(m4)) {
     throw new RangeError(`addBlock: values[${start}..${end}) contain a NaN or infinite value; the sampler must produce finite numbers`);
   }
-  // mergeMoments(state, block) term for term, written into `state` (no objects made: this runs
-  // once per 1024-sample block, and the two objects of a merge were most of a chunk's garbage).
-  const na = state.count;
-  if (na === 0) {
-    state.count = n;
-    state.mean = mean;
-    state.m2 = m2;
-    state.m3 = m3;
-    state.m4 = m4;
-  } else {
-    const count = na + n;
-    const delta = mean - state.mean;
-    const d2 = delta * delta;
-    const ab = (na * n) / count;
-    const a2 = state.m2;
-    const a3 = state.m3;
-    state.m4 =
-      state.m4 +
-      m4 +
-      d2 * d2 * ab * ((na * na - na * n + n * n) / (count * count)) +
-      (6 * d2 * (na * na * m2 + n * n * a2)) / (count * count) +
-      (4 * delta * (na * m3 - n * a3)) / count;
-    state.m3 = a3 + m3 + d2 * delta * ab * ((na - n) / count) + (3 * delta * (na * m2 - n * a2)) / count;
-    state.m2 = a2 + m2 + d2 * ab;
-    state.mean = state.mean + delta * (n / count);
-    state.count = count;
-  }
-  state.min = Math.min(state.min, min);
-  state.max = Math.max(state.max, max);
+  // Into `state` itself through a reused block summary: no objects made (this runs once per
+  // 1024-sample block).
+  BLOCK.count = n;
+  BLOCK.mean = mean;
+  BLOCK.m2 = m2;
+  BLOCK.m3 = m3;
+  BLOCK.m4 = m4;
+  BLOCK.min = min;
+  BLOCK.max = max;
+  mergeInto(state, BLOCK);
   return state;
 }
