@@ -1,10 +1,10 @@
 import fc from 'fast-check';
 import { describe, expect, it } from 'vitest';
-import { EXP_SMALL_LIMIT, EXPM1_SMALL_LIMIT, expm1Small, expSmall } from '../src/expSmall.js';
+import { EXP_SMALL_LIMIT, EXPM1_LARGE_MAX, EXPM1_LARGE_MIN, EXPM1_SMALL_LIMIT, expm1Large, expm1Small, expSmall } from '../src/expSmall.js';
 
 // The bound the sampling loops rely on: expSmall is within 2 ulp of Node's Math.exp over its
-// whole polynomial range |x| <= 1/32, expm1Small of Math.expm1 over |x| <= 1/4 (and each is the
-// Math function itself outside). Points: a dense grid,
+// whole polynomial range |x| <= 1/32, expm1Small of Math.expm1 over |x| <= 1/4, expm1Large of
+// Math.expm1 over 1 <= x <= 700 (and each is the Math function, or expm1Small, outside). Points: a dense grid,
 // the range's ends and their neighbouring doubles, tiny and subnormal arguments, and a
 // fast-check property with a fixed seed.
 
@@ -94,5 +94,52 @@ describe('expm1Small within 2 ulp of Math.expm1', () => {
     }
     expect(Object.is(expm1Small(-0), -0)).toBe(true);
     expect(Number.isNaN(expm1Small(Number.NaN))).toBe(true);
+  });
+});
+
+describe('expm1Large within 2 ulp of Math.expm1', () => {
+  it('over the whole reduced range 1 <= x <= 700 (grids, the ends, the points where k changes)', () => {
+    const xs: number[] = [];
+    const grid = 1_000_000;
+    for (let i = 0; i <= grid; i++) xs.push(EXPM1_LARGE_MIN + ((EXPM1_LARGE_MAX - EXPM1_LARGE_MIN) * i) / grid);
+    // The region the mirror stage uses most (s = sqrt(IC) of 1 to 30), more densely.
+    for (let i = 0; i <= grid; i++) xs.push(1 + (29 * i) / grid);
+    for (let k = 0; k < 50; k++) xs.push(step(EXPM1_LARGE_MIN, k), step(EXPM1_LARGE_MAX, -k));
+    // Either side of each (k + 1/2) ln 2, where the rounding of x / ln 2 switches k.
+    for (let k = 1; k <= 1010; k++) {
+      const x = (k + 0.5) * Math.LN2;
+      if (x > EXPM1_LARGE_MAX) break;
+      for (let j = -3; j <= 3; j++) xs.push(step(x, j));
+    }
+    let worst = 0;
+    let at = 0;
+    for (const x of xs) {
+      const d = ulps(expm1Large(x), Math.expm1(x));
+      if (d > worst) [worst, at] = [d, x];
+    }
+    if (worst > 2) throw new Error(`${worst} ulp at x = ${at}`);
+    expect(worst).toBeLessThanOrEqual(2);
+  });
+
+  it('property: random arguments in the range (fast-check, fixed seed)', () => {
+    fc.assert(
+      fc.property(fc.double({ min: EXPM1_LARGE_MIN, max: EXPM1_LARGE_MAX, noNaN: true }), (x) => ulps(expm1Large(x), Math.expm1(x)) <= 2),
+      { seed: 1434, numRuns: 50_000 },
+    );
+  });
+
+  it('e^2 - 1 is the double nearest 6.38905609893065022... (test/fixtures/exp-small-reference.py)', () => {
+    // Python's decimal module at 40 digits: e^2 - 1 = 6.389056098930650227230427460575..., its
+    // nearest double 6.38905609893065 is 0.20 ulp above it. expm1Large rounds twice (e^r - 1, then
+    // 7 + 8 (e^r - 1) with 2^k = 8), each within half an ulp of its result, so it lands within
+    // 1 ulp of that double.
+    expect(ulps(expm1Large(2), 6.38905609893065)).toBeLessThanOrEqual(1);
+  });
+
+  it('outside the range it is expm1Small (its polynomial to |x| = 1/4, else Math.expm1)', () => {
+    for (const x of [step(EXPM1_LARGE_MIN, -1), 0.5, 0.1, -0.2, -3, step(EXPM1_LARGE_MAX, 1), 709, Infinity, -Infinity]) {
+      expect(Object.is(expm1Large(x), expm1Small(x))).toBe(true);
+    }
+    expect(Number.isNaN(expm1Large(Number.NaN))).toBe(true);
   });
 });
