@@ -1,7 +1,7 @@
 import type { Design } from '../design.js';
 import { ekvInverseOfRoot, lnExpm1OverS, normalisedGmOverId } from '../ekv.js';
 import { deviceBlock, deviceConstants, deviceOperatingPoint, deviceVariables, geometryWarnings, tailCurrent } from '../elements.js';
-import { EXPM1_SMALL_LIMIT, expm1Small, expSmall } from '../expSmall.js';
+import { EXPM1_SMALL_LIMIT, expm1Large, expm1Small, expSmall } from '../expSmall.js';
 import { thermalVoltage } from '../thermal.js';
 import { INPUT_PAIR, OFFSET_FIGURE, otherPolarity, TAIL_FIELD } from './common.js';
 import type { BlockDefinition, StageDefinition, StageModel } from './definition.js';
@@ -42,9 +42,10 @@ interface MirrorConstants {
 /**
  * Scratch arrays of a batch, one entry per sample. They only grow; they never carry results
  * from one call to the next. Between the passes they hold, in turn: the load's current factors
- * a3, a4 then the pair's roots s1, s2 (A3, A4); d/2 then the exponent q1 (HD); e^{-d/2} then q2
- * (DX); the unknown s and its bracket (S, LO, HI); L4 and expm1(s) (L4, EM); the region of the
- * final formula and its operands (KIND, X1, X2); the samples still iterating (ACTIVE).
+ * a3, a4 then the pair's roots s1, s2 (A3, A4); d/2 then the exponent q1 (HD); e^{d/2} - 1 then
+ * q2 (DX); the unknown s and its bracket (S, LO, HI); L4 (L4); expm1(s), then
+ * w = (e^{d/2} - 1) e^{-s} (EM); the region of the final formula and its operands (KIND, X1,
+ * X2); the samples still iterating (ACTIVE).
  */
 class MirrorScratch {
   cap = 0;
@@ -91,8 +92,8 @@ class MirrorScratch {
 
 /**
  * Pass 1: the load's current factors a3, a4 (their exponents are a few percent: expSmall's
- * polynomial), d/2 = (V_T4 - V_T3)/(2 n_p U_T) and e^{-d/2} (an exp call; d/2 is often beyond
- * expSmall's range).
+ * polynomial), d/2 = (V_T4 - V_T3)/(2 n_p U_T) and e^{d/2} - 1 (expm1Small's polynomial up to
+ * |d/2| = 1/4, beyond expSmall's range of 1/32 that d/2 often leaves).
  */
 function loadFactors(k: MirrorConstants, t: MirrorScratch, u: Float64Array, count: number): void {
   const { a0, bRL, bSL, dScale } = k;
@@ -102,7 +103,7 @@ function loadFactors(k: MirrorConstants, t: MirrorScratch, u: Float64Array, coun
     A4[i] = a0 * expSmall(bRL * u[b + 6]! + bSL * u[b + 7]!);
     const hd = 0.5 * dScale * (u[b + 6]! - u[b + 4]!);
     HD[i] = hd;
-    DX[i] = Math.exp(-hd);
+    DX[i] = expm1Small(hd);
   }
 }
 
@@ -129,17 +130,32 @@ function firstGuess(k: MirrorConstants, t: MirrorScratch, count: number): void {
   }
 }
 
-/** Passes 3 and 4 of a Newton round: expm1(s), then L4 = log1p(expm1(s) e^{-d/2}) (s > 30: newtonStep). */
+/**
+ * Passes 3 and 4 of a Newton round (s <= 30; beyond, newtonStep): expm1(s), then, with
+ * E = e^{d/2} - 1 and w = E e^{-s} = E / (expm1(s) + 1), L4 = ln(1 + expm1(s) / (1 + E)) as
+ *   L4 = s - d/2 + log1p(w)            for s >= 1 and w <= 1/2 (since 1 + (e^s - 1) e^{-d/2} =
+ *                                       e^{s - d/2} (1 + w); log1p of a small argument),
+ *   L4 = log1p(expm1(s) / (1 + E))     otherwise.
+ * Where the first form is used, L4 >= ln(1 + (e - 1) / (1 + e/2)) = 0.55 and |log1p(w)| <= 0.41,
+ * so its two terms do not cancel. EM keeps w for the Newton step (dL4/ds = 1 / (1 + w)).
+ */
 function loadRoots(t: MirrorScratch, active: number): void {
-  const { ACTIVE, S, EM, L4, DX } = t;
+  const { ACTIVE, S, EM, L4, DX, HD } = t;
   for (let j = 0; j < active; j++) {
     const i = ACTIVE[j]!;
     const s = S[i]!;
-    if (s <= 30) EM[i] = Math.expm1(s);
+    if (s <= 30) EM[i] = expm1Large(s);
   }
   for (let j = 0; j < active; j++) {
     const i = ACTIVE[j]!;
-    if (S[i]! <= 30) L4[i] = Math.log1p(EM[i]! * DX[i]!);
+    const s = S[i]!;
+    if (s <= 30) {
+      const em = EM[i]!;
+      const e = DX[i]!;
+      const w = e / (em + 1);
+      L4[i] = s >= 1 && w <= 0.5 ? s - HD[i]! + Math.log1p(w) : Math.log1p(em / (1 + e));
+      EM[i] = w;
+    }
   }
 }
 
@@ -148,22 +164,19 @@ function loadRoots(t: MirrorScratch, active: number): void {
  * stay listed at the front of ACTIVE; returns how many remain.
  */
 function newtonStep(t: MirrorScratch, active: number, tol: number): number {
-  const { ACTIVE, S, DX, EM, L4, HD, A3, A4, LO, HI } = t;
+  const { ACTIVE, S, EM, L4, HD, A3, A4, LO, HI } = t;
   let still = 0;
   for (let j = 0; j < active; j++) {
     const i = ACTIVE[j]!;
     const s = S[i]!;
-    const dexp = DX[i]!;
     let l4: number;
     let dl4: number;
     let d2l4 = Number.NaN; // second derivative, where it is cheap (below)
     if (s <= 30) {
-      const em = EM[i]!;
-      const ey = em * dexp;
       l4 = L4[i]!;
-      const q = 1 / (1 + ey);
-      dl4 = dexp * (em + 1) * q;
-      d2l4 = dl4 * (1 - dl4); // = e^s D (1 - D) / (1 + (e^s - 1) D)^2
+      // dL4/ds = e^s / (e^{d/2} + e^s - 1) = 1 / (1 + w), w = (e^{d/2} - 1) e^{-s} (loadRoots).
+      dl4 = 1 / (1 + EM[i]!);
+      d2l4 = dl4 * (1 - dl4);
     } else {
       // Log domain where expm1(s) would overflow: v4/2 = ln(expm1 s) - d/2.
       const y = s + Math.log1p(-Math.exp(-s)) - HD[i]!;
@@ -264,7 +277,7 @@ function offsetRegions(t: MirrorScratch, count: number): void {
       const split = s1 - s2;
       if (split >= -EXPM1_SMALL_LIMIT && split <= EXPM1_SMALL_LIMIT) {
         KIND[i] = 1;
-        X1[i] = Math.expm1(s2);
+        X1[i] = expm1Large(s2);
       } else {
         KIND[i] = 3;
         X1[i] = Math.expm1(-s1);
