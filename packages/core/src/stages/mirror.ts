@@ -131,6 +131,15 @@ function firstGuess(k: MirrorConstants, t: MirrorScratch, count: number): void {
 }
 
 /**
+ * M4's root L4 = ln(1 + (e^s - 1) e^{-d/2}) from s, hd = d/2, e = e^{d/2} - 1 and em = e^s - 1,
+ * in the form loadRoots describes (exported for its test against the library-function form).
+ */
+export function mirrorLoadRoot(s: number, hd: number, e: number, em: number): number {
+  const w = e / (em + 1);
+  return s >= 1 && w <= 0.5 ? s - hd + Math.log1p(w) : Math.log1p(em / (1 + e));
+}
+
+/**
  * Passes 3 and 4 of a Newton round (s <= 30; beyond, newtonStep): expm1(s), then, with
  * E = e^{d/2} - 1 and w = E e^{-s} = E / (expm1(s) + 1), L4 = ln(1 + expm1(s) / (1 + E)) as
  *   L4 = s - d/2 + log1p(w)            for s >= 1 and w <= 1/2 (since 1 + (e^s - 1) e^{-d/2} =
@@ -152,9 +161,8 @@ function loadRoots(t: MirrorScratch, active: number): void {
     if (s <= 30) {
       const em = EM[i]!;
       const e = DX[i]!;
-      const w = e / (em + 1);
-      L4[i] = s >= 1 && w <= 0.5 ? s - HD[i]! + Math.log1p(w) : Math.log1p(em / (1 + e));
-      EM[i] = w;
+      L4[i] = mirrorLoadRoot(s, HD[i]!, e, em);
+      EM[i] = e / (em + 1);
     }
   }
 }
