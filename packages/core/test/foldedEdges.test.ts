@@ -128,6 +128,27 @@ describe('folded stage: M8 at the knee of F, v8 = 0 at balance (reference: bisec
   });
 });
 
+describe('folded stage: M8 far stronger than M7 (reference: bisection)', () => {
+  // M8's V_T 42 to 400 sigma (50 to 500 mV) below M7's: M8 copies many times M7's current, so
+  // I7 and sqrt(IC7) are small at balance and h(q) = a7 q^2 + a8 L8(q)^2 - T is steep there: a
+  // Newton step from the start overshoots below q = 0, where h has a second, spurious root
+  // (a7 q^2 is even) or no real value. The stage's bisection guard keeps q in its bracket.
+  it.each<[string, number, number[]]>([
+    ['sources 0.2 uA above tail/2', 10.2e-6, [-42, -200, -300]],
+    ['the check design', 20e-6, [-400]],
+  ])('%s: agrees with bisection to 1e-8 of sigma', (_n, current, u10s) => {
+    const d: Design = { ...base, sources: { polarity: 'p', w: 4e-6, l: 2e-6, current } };
+    const st = compileStage(d);
+    const scale = linearisedSigma(st);
+    for (const u10 of u10s) {
+      const u = Float64Array.of(0.5, 0, 0, -0.7, 0, 0, 0, 0, 0, 0, u10, 0);
+      // As in folded.test.ts: the stage's residual of 1e-12 of T and the two routes' roundings
+      // are far below 1e-8 sigma.
+      expect(Math.abs(st.figure(u, 0) - bisectionOffset(d, Array.from(u)))).toBeLessThan(1e-8 * scale);
+    }
+  });
+});
+
 describe('folded stage: folding sources so weak that the folded current is below half its nominal (reference: bisection)', () => {
   // Both sources' V_T 60 sigma high (-25% current each): T = I5 + I6 - I_B falls below half its
   // nominal, so sqrt(T / a7) < sqrt(IC7 nominal) and the solve starts from the bracket's middle.
