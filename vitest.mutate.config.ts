@@ -18,10 +18,12 @@ const CORE = [
   'packages/core/test/resistor.test.ts',
   'packages/core/test/currentMirror.test.ts',
   'packages/core/test/folded.test.ts',
+  'packages/core/test/foldedEdges.test.ts',
   'packages/core/test/selector.test.ts',
   // The near-balance EKV difference, the stage figures against the committed fixture, the
   // library edges and the operating conditions also check ekv.ts and the stage modules.
   'packages/core/test/ekvNear.test.ts',
+  'packages/core/test/ekvStrongDifference.test.ts',
   'packages/core/test/figureReference.test.ts',
   'packages/core/test/libraryEdge.test.ts',
   'packages/core/test/conditions.test.ts',
