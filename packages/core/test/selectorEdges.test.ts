@@ -62,6 +62,12 @@ describe('selector: what it reports', () => {
     // No mismatch, no lead: every cell carries I_B / 8.
     expect(rel(st.response!.evaluate(new Float64Array(16), 0, 0), 1 / 8)).toBeLessThan(1e-11);
   });
+  it('a geometry warning names the cells by their field, input (the rule: within 2x of the drawn minimum, common practice, no source)', () => {
+    const d: Design = { ...selector(4, 4e-6), input: { polarity: 'n', w: 1.5e-6, l: 4e-6 }, process: { n: { ...demoProcess.n, minW: 1e-6, minL: 1e-6 } } };
+    expect(compileStage(d).warnings.filter((x) => x.includes('within 2x'))).toEqual([
+      'input.w is within 2x of the process minimum width: the area law may underestimate mismatch of narrow devices',
+    ]);
+  });
 });
 
 describe('selector: evaluation edges', () => {
