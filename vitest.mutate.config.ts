@@ -36,6 +36,7 @@ const CORE = [
   'packages/core/test/stageDefinitions.test.ts',
   'packages/core/test/selectorEdges.test.ts',
   'packages/core/test/mirrorLoadForms.test.ts',
+  'packages/core/test/selectorReference.test.ts',
 ];
 // The deviate-for-deviate reference first: it fails in milliseconds where the statistical
 // tests need millions of draws.

@@ -13,8 +13,9 @@
 import { describe, expect, it } from 'vitest';
 import { compileStage } from '../src/compileStage.js';
 import type { Design } from '../src/design.js';
-import { ekvInverse } from '../src/ekv.js';
+import { ekvInverse, specificCurrent } from '../src/ekv.js';
 import { cellCurrents, SELECTOR_STAGE } from '../src/stages/selector.js';
+import { bruteLead } from './selectorBrute.js';
 import { demoProcess } from './designs.js';
 
 const rel = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
@@ -61,6 +62,12 @@ describe('selector: what it reports', () => {
     expect([st.response!.label, st.response!.input]).toEqual(["winner's share of the tail", 'lead']);
     // No mismatch, no lead: every cell carries I_B / 8.
     expect(rel(st.response!.evaluate(new Float64Array(16), 0, 0), 1 / 8)).toBeLessThan(1e-11);
+  });
+  it('a geometry warning names the cells by their field, input (the rule: within 2x of the drawn minimum, common practice, no source)', () => {
+    const d: Design = { ...selector(4, 4e-6), input: { polarity: 'n', w: 1.5e-6, l: 4e-6 }, process: { n: { ...demoProcess.n, minW: 1e-6, minL: 1e-6 } } };
+    expect(compileStage(d).warnings.filter((x) => x.includes('within 2x'))).toEqual([
+      'input.w is within 2x of the process minimum width: the area law may underestimate mismatch of narrow devices',
+    ]);
   });
 });
 
@@ -109,5 +116,43 @@ describe('selector: cell currents against the EKV law (no mismatch)', () => {
   });
   it.each([1, 2])('v_1 - v_%i = (V_G1 - V_Gj)/(n U_T) (1e-9 absolute in v: the 1e-12 residual and the logs of small IC)', (j) => {
     expect(Math.abs(ekvInverse(i[0]! / is) - ekvInverse(i[j]! / is) - (gates[0]! - gates[j]!) / (p.slope * ut))).toBeLessThan(1e-9);
+  });
+});
+
+describe('selector: bias points at the edges of the node solve', () => {
+  const ut = thermal(300);
+  const p = demoProcess.n;
+  const is = specificCurrent(p.slope, p.kp, 4e-6, 4e-6, ut);
+
+  it('every cell at the pinch-off point V_P = V_S (IC = ln^2 2 per cell, v = 0: F(0) = ln^2 2, Enz et al. 1995): I_B/N each, lead 0, and the brute-force lead with mismatch', () => {
+    const cells = 4;
+    const d = selector(cells, cells * is * Math.LN2 * Math.LN2);
+    const st = compileStage(d);
+    // No mismatch: each cell at I_B/N by symmetry; 1e-15 is a few roundings of the sum.
+    for (const c of cellCurrents(d, [0, 0, 0, 0])) expect(rel(c, d.tail! / cells)).toBeLessThan(1e-15);
+    expect(st.figure(new Float64Array(2 * cells), 0)).toBe(0);
+    // With mismatch: the brute force of selectorBrute.ts bisects V_S and the lead to ~1e-14 V;
+    // 1e-10 V as in selector.test.ts.
+    const u = Float64Array.of(0.7, -1.2, -0.4, 0.3, 1.5, -0.8, -1.1, 2.0);
+    expect(Math.abs(st.figure(u, 0) - bruteLead(d, u))).toBeLessThan(1e-10);
+  });
+
+  it('a cell with a current factor near the largest double (e^682.7, so 2 a_j overflows) but its gate 60 V below the rest carries nothing: the others share the tail as the three cells alone', () => {
+    // Its current is at most I_S e^{682.7} F(-1800) = I_S e^{682.7 - 1800}, about e^{-1130} A:
+    // nothing. The tail of 1e-18 A (the smallest accepted) puts a_j = I_Sj / I_B at 1.6e308
+    // (the overflow of 2 a_j makes the solve's slope NaN, so the solve bisects alone), and
+    // the three live gates 20 mV above the reference put the node below the solve's start (the
+    // balance of four cells at 0 V), so the bracket search first steps down.
+    const tail = 1e-18;
+    const sB = 1e-8 / Math.sqrt(2 * 16e-12);
+    const far = 682.7 / sB;
+    const u4 = Float64Array.of(0.3, 0.5, -0.6, -0.2, 1.1, 0.4, 0, far);
+    const four = cellCurrents(selector(4, tail), [0.02, 0.021, 0.019, -60], u4);
+    const three = cellCurrents(selector(3, tail), [0.02, 0.021, 0.019], u4.subarray(0, 6));
+    expect(four[3]).toBe(0);
+    // Each solve stops within a relative residual of 1e-12, the bisection without the final
+    // Newton refinement (its slope is NaN): in weak inversion a current moves as the residual,
+    // so 1e-12 each; 2e-12 for the two solves.
+    for (let j = 0; j < 3; j++) expect(rel(four[j]!, three[j]!)).toBeLessThan(2e-12);
   });
 });
