@@ -33,6 +33,7 @@ const CORE = [
   'packages/core/test/mirrorRegions.test.ts',
   'packages/core/test/stageDefinitions.test.ts',
   'packages/core/test/selectorEdges.test.ts',
+  'packages/core/test/mirrorSolve.test.ts',
 ];
 // The deviate-for-deviate reference first: it fails in milliseconds where the statistical
 // tests need millions of draws.
