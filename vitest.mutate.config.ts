@@ -37,6 +37,7 @@ const CORE = [
   'packages/core/test/selectorEdges.test.ts',
   'packages/core/test/mirrorLoadForms.test.ts',
   'packages/core/test/selectorReference.test.ts',
+  'packages/core/test/mirrorSolve.test.ts',
 ];
 // The deviate-for-deviate reference first: it fails in milliseconds where the statistical
 // tests need millions of draws.
