@@ -58,20 +58,23 @@ describe('the mirror load root, each of its forms, against a 50-digit evaluation
 });
 
 describe('mirrorLoadRoot against the form with the library functions', () => {
-  it('within 1e-14 relative of log1p(expm1(s) e^{-d/2}) by Math.log1p, Math.expm1, Math.exp (s 0.01-30, d/2 -3 to 3)', () => {
-    // Both forms are the same function of (s, d/2); each of the three library calls and the
+  it('within 1e-14 relative of log1p(expm1(s) e^{-d/2}) by Math.log1p, Math.expm1, Math.exp (s 1e-60 to 30, d/2 -40 to 5)', () => {
+    // Both forms are the same function of (s, d/2); each of the library calls and the
     // polynomials is within 2 ulp (expSmall.test.ts), so the two differ by rounding only: a few
     // ulp, 1e-15 relative at most. 1e-14 leaves room; a wrong form (a sign, a missing term)
-    // differs by far more (d/2 itself is at least 1e-3 on this grid's nonzero points). Carried to
-    // Vos through s2 dv/ds2 <= 5 and n U_T < 0.05 V, 1e-14 of L4 is below 3e-15 V, far under
-    // the 1e-12 relative the sampling promises. Seen: 1.0e-15.
+    // differs by far more. (How the stage gets e^{d/2} itself, 1 + (e^{d/2} - 1) only from
+    // d/2 >= -1/4 on, where that cannot cancel, is checked through the figure: mirrorSolve.test.ts
+    // at d/2 near -100.) Carried to Vos through s2 dv/ds2 <= 5 and n U_T < 0.05 V, 1e-14 of L4 is below
+    // 3e-15 V, far under the 1e-12 relative the sampling promises. Seen: 1.0e-15.
     let worst = 0;
-    for (let i = 1; i <= 600; i++) {
-      const s = 0.01 * 3000 ** (i / 600); // 0.01 to 30, evenly in log s
-      for (let j = -60; j <= 60; j++) {
-        const hd = j / 20;
+    for (let i = 0; i <= 600; i++) {
+      const s = i === 0 ? 1e-60 : 1e-3 * 30000 ** (i / 600); // 1e-60, then 1e-3 to 30 evenly in log s
+      for (let j = -400; j <= 50; j++) {
+        const hd = j / 10;
+        const e = expm1Small(hd);
+        const g = Math.exp(hd);
         const reference = Math.log1p(Math.expm1(s) * Math.exp(-hd));
-        const mine = mirrorLoadRoot(s, hd, expm1Small(hd), expm1Large(s));
+        const mine = mirrorLoadRoot(s, hd, e, expm1Large(s), g);
         worst = Math.max(worst, Math.abs(mine - reference) / reference);
       }
     }

@@ -131,12 +131,21 @@ function firstGuess(k: MirrorConstants, t: MirrorScratch, count: number): void {
 }
 
 /**
- * M4's root L4 = ln(1 + (e^s - 1) e^{-d/2}) from s, hd = d/2, e = e^{d/2} - 1 and em = e^s - 1,
- * in the form loadRoots describes (exported for its test against the library-function form).
+ * M4's root L4 = ln(1 + (e^s - 1) e^{-d/2}) from s, hd = d/2, e = e^{d/2} - 1, em = e^s - 1 and
+ * g = e^{d/2}, in the form loadRoots describes (exported for its test against the
+ * library-function form).
  */
-export function mirrorLoadRoot(s: number, hd: number, e: number, em: number): number {
+export function mirrorLoadRoot(s: number, hd: number, e: number, em: number, g: number): number {
   const w = e / (em + 1);
-  return s >= 1 && w <= 0.5 ? s - hd + Math.log1p(w) : Math.log1p(em / (1 + e));
+  return s >= 1 && w <= 0.5 ? s - hd + Math.log1p(w) : Math.log1p(em / g);
+}
+
+/**
+ * e^{d/2} from hd = d/2 and e = e^{d/2} - 1: 1 + e where that keeps its digits (d/2 >= -1/4,
+ * within 0.8 ulp), an exp call below, where 1 + e would cancel (it is 0 from d/2 < -37 on).
+ */
+function loadExp(hd: number, e: number): number {
+  return hd >= -EXPM1_SMALL_LIMIT ? 1 + e : Math.exp(hd);
 }
 
 /**
@@ -144,9 +153,11 @@ export function mirrorLoadRoot(s: number, hd: number, e: number, em: number): nu
  * E = e^{d/2} - 1 and w = E e^{-s} = E / (expm1(s) + 1), L4 = ln(1 + expm1(s) / (1 + E)) as
  *   L4 = s - d/2 + log1p(w)            for s >= 1 and w <= 1/2 (since 1 + (e^s - 1) e^{-d/2} =
  *                                       e^{s - d/2} (1 + w); log1p of a small argument),
- *   L4 = log1p(expm1(s) / (1 + E))     otherwise.
+ *   L4 = log1p(expm1(s) / e^{d/2})     otherwise (e^{d/2} by loadExp).
  * Where the first form is used, L4 >= ln(1 + (e - 1) / (1 + e/2)) = 0.55 and |log1p(w)| <= 0.41,
- * so its two terms do not cancel. EM keeps w for the Newton step (dL4/ds = 1 / (1 + w)).
+ * so its two terms do not cancel. EM then keeps dL4/ds = e^s / (e^s - 1 + e^{d/2}) for the
+ * Newton step, written (expm1(s) + 1) / (expm1(s) + e^{d/2}): a sum of two positive terms, which
+ * keeps its digits where 1 / (1 + w) would not (w -> -1 when e^{d/2} and s are both tiny).
  */
 function loadRoots(t: MirrorScratch, active: number): void {
   const { ACTIVE, S, EM, L4, DX, HD } = t;
@@ -161,8 +172,10 @@ function loadRoots(t: MirrorScratch, active: number): void {
     if (s <= 30) {
       const em = EM[i]!;
       const e = DX[i]!;
-      L4[i] = mirrorLoadRoot(s, HD[i]!, e, em);
-      EM[i] = e / (em + 1);
+      const hd = HD[i]!;
+      const g = loadExp(hd, e);
+      L4[i] = mirrorLoadRoot(s, hd, e, em, g);
+      EM[i] = (em + 1) / (em + g);
     }
   }
 }
@@ -182,8 +195,7 @@ function newtonStep(t: MirrorScratch, active: number, tol: number): number {
     let d2l4 = Number.NaN; // second derivative, where it is cheap (below)
     if (s <= 30) {
       l4 = L4[i]!;
-      // dL4/ds = e^s / (e^{d/2} + e^s - 1) = 1 / (1 + w), w = (e^{d/2} - 1) e^{-s} (loadRoots).
-      dl4 = 1 / (1 + EM[i]!);
+      dl4 = EM[i]!; // dL4/ds = e^s / (e^s - 1 + e^{d/2}) (loadRoots)
       d2l4 = dl4 * (1 - dl4);
     } else {
       // Log domain where expm1(s) would overflow: v4/2 = ln(expm1 s) - d/2.
