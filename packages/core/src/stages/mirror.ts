@@ -8,7 +8,7 @@ import type { BlockDefinition, StageDefinition, StageModel } from './definition.
 
 /** Relative residual of I1 + I4 = I_B at which the balance solve stops. */
 export const MIRROR_TOLERANCE = 1e-12;
-/** Iteration cap of the guarded Newton solve (bisection alone needs ~60 on any bracket). */
+/** Round cap of the guarded Newton solve (bisection alone needs log2(bracket / s) + ~40 halvings: sqrt(IC3) below ~1e-60, at draws of hundreds of sigma, can reach it: reported as not converged). */
 export const MIRROR_MAX_ITERATIONS = 200;
 
 /**
