@@ -50,6 +50,19 @@ export const currentMirrorDesign: Design = {
   spec: { error: 5e-3, instances: 64 },
 };
 
+/** The folded-cascode check design: n pair 8/1 um, p sources 4/2 um at 20 uA, n load 4/2 um, 20 uA tail, 300 K. */
+export const foldedDesign: Design = {
+  name: 'test folded stage (invented)',
+  temperature: 300,
+  topology: 'folded',
+  tail: 20e-6,
+  input: { polarity: 'n', w: 8e-6, l: 1e-6 },
+  sources: { polarity: 'p', w: 4e-6, l: 2e-6, current: 20e-6 },
+  load: { polarity: 'n', w: 4e-6, l: 2e-6 },
+  process: demoProcess,
+  spec: { offset: 8e-3, instances: 1 },
+};
+
 /** A copy with a few fields replaced (shallow per section). */
 export function withChanges(d: Design, changes: Partial<Design>): Design {
   return { ...d, ...changes };

@@ -14,23 +14,13 @@ import { parseDesign } from '../src/parse/parseDesign.js';
 import { writeDesign } from '../src/parse/writeDesign.js';
 import { pairSigma } from '../src/pelgrom.js';
 import { FOLDED_STAGE } from '../src/stages/folded.js';
-import { demoProcess, simpleDesign } from './designs.js';
+import { demoProcess, foldedDesign, simpleDesign } from './designs.js';
 import { bisectionOffset, block } from './foldedBisection.js';
 
 const rel = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
 
-/** The check design: n pair 8/1 um, p sources 4/2 um at 20 uA, n load 4/2 um, 20 uA tail, 300 K. */
-const folded: Design = {
-  name: 'test folded stage (invented)',
-  temperature: 300,
-  topology: 'folded',
-  tail: 20e-6,
-  input: { polarity: 'n', w: 8e-6, l: 1e-6 },
-  sources: { polarity: 'p', w: 4e-6, l: 2e-6, current: 20e-6 },
-  load: { polarity: 'n', w: 4e-6, l: 2e-6 },
-  process: demoProcess,
-  spec: { offset: 8e-3, instances: 1 },
-};
+/** The check design (test/designs.ts): n pair 8/1 um, p sources 4/2 um at 20 uA, n load 4/2 um, 20 uA tail, 300 K. */
+const folded: Design = foldedDesign;
 const pInput: Design = {
   ...folded,
   input: { polarity: 'p', w: 16e-6, l: 1e-6 },

@@ -12,21 +12,11 @@ import type { Design } from '../src/design.js';
 import { ekvForward, ekvInverse, specificCurrent } from '../src/ekv.js';
 import { linearisedSigma } from '../src/linearised.js';
 import { thermalVoltage } from '../src/thermal.js';
-import { demoProcess } from './designs.js';
+import { foldedDesign } from './designs.js';
 import { bisectionOffset } from './foldedBisection.js';
 
 /** n pair 8/1 um, p sources 4/2 um, n load 4/2 um, 300 K (the check design of folded.test.ts). */
-const base: Design = {
-  name: 'folded edge check (invented)',
-  temperature: 300,
-  topology: 'folded',
-  tail: 20e-6,
-  input: { polarity: 'n', w: 8e-6, l: 1e-6 },
-  sources: { polarity: 'p', w: 4e-6, l: 2e-6, current: 20e-6 },
-  load: { polarity: 'n', w: 4e-6, l: 2e-6 },
-  process: demoProcess,
-  spec: { offset: 8e-3, instances: 1 },
-};
+const base: Design = foldedDesign;
 /** 2 mA tail, sources at 1.5 mA: each folded branch carries 0.5 mA. */
 const strong: Design = { ...base, tail: 2e-3, sources: { polarity: 'p', w: 40e-6, l: 2e-6, current: 1.5e-3 } };
 
