@@ -12,7 +12,7 @@ import { kpAtTemperature, KP_EXPONENT_DEFAULT } from '../src/temperatureLaw.js';
 import { BOLTZMANN, ELEMENTARY_CHARGE, thermalVoltage } from '../src/thermal.js';
 import { validateDesign } from '../src/validateDesign.js';
 import type { Stage } from '../src/stages/definition.js';
-import { demoProcess, mirrorDesign, simpleDesign, withChanges } from './designs.js';
+import { demoProcess, foldedDesign, mirrorDesign, simpleDesign, withChanges } from './designs.js';
 
 const rel = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
 
@@ -120,17 +120,7 @@ describe('conditions: designs of the same stage type', () => {
 });
 
 describe("conditions on the other stage types (the stage's own fields, read from its definition)", () => {
-  const folded: Design = {
-    name: 'folded (invented)',
-    temperature: 300,
-    topology: 'folded',
-    tail: 20e-6,
-    input: { polarity: 'n', w: 8e-6, l: 1e-6 },
-    sources: { polarity: 'p', w: 4e-6, l: 2e-6, current: 20e-6 },
-    load: { polarity: 'n', w: 4e-6, l: 2e-6 },
-    process: demoProcess,
-    spec: { offset: 8e-3, instances: 1 },
-  };
+  const folded: Design = foldedDesign;
   const currentMirror: Design = {
     name: 'current mirror (invented)',
     temperature: 300,

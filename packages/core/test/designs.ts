@@ -63,6 +63,20 @@ export const foldedDesign: Design = {
   spec: { offset: 8e-3, instances: 1 },
 };
 
+/** A selector of `cells` cells of w x l at the tail current, separation spec 10 mV (the selector tests). */
+export function selectorDesign(cells: number, tail: number, w = 4e-6, l = 4e-6, polarity: 'n' | 'p' = 'n'): Design {
+  return {
+    name: 'test selector (invented)',
+    temperature: 300,
+    topology: 'selector',
+    cells,
+    tail,
+    input: { polarity, w, l },
+    process: demoProcess,
+    spec: { separation: 10e-3, instances: 1 },
+  };
+}
+
 /** A copy with a few fields replaced (shallow per section). */
 export function withChanges(d: Design, changes: Partial<Design>): Design {
   return { ...d, ...changes };

@@ -8,21 +8,10 @@ import { deviceSigmaBeta, deviceSigmaVt } from '../src/pelgrom.js';
 import { cellCurrents } from '../src/stages/selector.js';
 import { thermalVoltage } from '../src/thermal.js';
 import { bruteLead } from './selectorBrute.js';
-import { demoProcess, simpleDesign } from './designs.js';
+import { demoProcess, selectorDesign, simpleDesign } from './designs.js';
 
 /** A selector of `cells` cells (invented demo process, not foundry data). */
-function selector(cells: number, tail: number, w = 4e-6, l = 4e-6, polarity: 'n' | 'p' = 'n'): Design {
-  return {
-    name: 'test selector (invented)',
-    temperature: 300,
-    topology: 'selector',
-    cells,
-    tail,
-    input: { polarity, w, l },
-    process: demoProcess,
-    spec: { separation: 10e-3, instances: 1 },
-  };
-}
+const selector = selectorDesign;
 
 const ut = thermalVoltage(300);
 const n = demoProcess.n;

@@ -16,22 +16,14 @@ import type { Design } from '../src/design.js';
 import { ekvInverse, specificCurrent } from '../src/ekv.js';
 import { cellCurrents, SELECTOR_STAGE } from '../src/stages/selector.js';
 import { bruteLead } from './selectorBrute.js';
-import { demoProcess } from './designs.js';
+import { demoProcess, selectorDesign } from './designs.js';
 
 const rel = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
 const thermal = (t: number): number => (1.380649e-23 * t) / 1.602176634e-19;
 
+/** The selector tests' design (test/designs.ts), with the n devices' V_T-current-factor correlation rho. */
 function selector(cells: number, tail: number, rho = 0): Design {
-  return {
-    name: 'test selector (invented)',
-    temperature: 300,
-    topology: 'selector',
-    cells,
-    tail,
-    input: { polarity: 'n', w: 4e-6, l: 4e-6 },
-    process: { n: { ...demoProcess.n, rho } },
-    spec: { separation: 10e-3, instances: 1 },
-  };
+  return { ...selectorDesign(cells, tail), process: { n: { ...demoProcess.n, rho } } };
 }
 
 describe('selector: what it reports', () => {

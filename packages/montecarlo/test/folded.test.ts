@@ -11,20 +11,10 @@ import { areaSplit } from '../src/sizing/areaSplit.js';
 import { SIZE_VARIATIONS, sizeVariations } from '../src/sizing/resize.js';
 import { sizeDesign } from '../src/sizing/size.js';
 import { twoSidedTail } from '../src/stats/normal.js';
-import { testProcess } from './designs.js';
+import { foldedDesign } from '../../core/test/designs.js';
 
 /** The folded stage of the check value (2.434 mV linearised). */
-const folded: Design = {
-  name: 'test folded stage (invented)',
-  temperature: 300,
-  topology: 'folded',
-  tail: 20e-6,
-  input: { polarity: 'n', w: 8e-6, l: 1e-6 },
-  sources: { polarity: 'p', w: 4e-6, l: 2e-6, current: 20e-6 },
-  load: { polarity: 'n', w: 4e-6, l: 2e-6 },
-  process: testProcess,
-  spec: { offset: 5e-3, instances: 1 },
-};
+const folded: Design = { ...foldedDesign, spec: { offset: 5e-3, instances: 1 } };
 
 /** Rounding W and L each up to 4 significant digits moves an area by at most (1 + 1e-3)^2. */
 const ROUNDING = (1 + 1e-3) ** 2;
