@@ -43,9 +43,9 @@ interface MirrorConstants {
  * Scratch arrays of a batch, one entry per sample. They only grow; they never carry results
  * from one call to the next. Between the passes they hold, in turn: the load's current factors
  * a3, a4 then the pair's roots s1, s2 (A3, A4); d/2 then the exponent q1 (HD); e^{d/2} - 1 then
- * q2 (DX); the unknown s and its bracket (S, LO, HI); L4 (L4); expm1(s), then
- * w = (e^{d/2} - 1) e^{-s} (EM); the region of the final formula and its operands (KIND, X1,
- * X2); the samples still iterating (ACTIVE).
+ * q2 (DX); the unknown s and its bracket (S, LO, HI); L4 (L4); expm1(s), then dL4/ds (EM);
+ * the region of the final formula and its operands (KIND, X1, X2); the samples still iterating
+ * (ACTIVE).
  */
 class MirrorScratch {
   cap = 0;
