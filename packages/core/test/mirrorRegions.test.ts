@@ -10,40 +10,13 @@
  */
 import { describe, expect, it } from 'vitest';
 import { compileStage } from '../src/compileStage.js';
-import type { Design, DeviceGeometry } from '../src/design.js';
-import { ekvForward, ekvInverse } from '../src/ekv.js';
+import type { Design } from '../src/design.js';
 import { EXPM1_SMALL_LIMIT } from '../src/expSmall.js';
+import { mirrorBisection } from './mirrorBisection.js';
 import { mirrorDesign } from './designs.js';
 
-type Stage = ReturnType<typeof compileStage>;
-
-/** Vos by bisection, and the pair's sqrt(IC1), sqrt(IC2) at the balance. */
-function reference(st: Stage, u: Float64Array): { vos: number; s1: number; s2: number } {
-  const d = st.design;
-  const [m1, , m3] = st.operatingPoint;
-  const ut = st.thermalVoltage;
-  const pl = d.process[(d['load'] as DeviceGeometry).polarity]!;
-  const pi = d.process[d.input.polarity]!;
-  const vt3 = m3!.sigmaVt * u[4]!;
-  const vt4 = m3!.sigmaVt * u[6]!;
-  const is3 = m3!.specificCurrent * Math.exp(m3!.sigmaBeta * u[5]!);
-  const is4 = m3!.specificCurrent * Math.exp(m3!.sigmaBeta * u[7]!);
-  const i4 = (i1: number): number => is4 * ekvForward(ekvInverse(i1 / is3) - (vt4 - vt3) / (pl.slope * ut));
-  let lo = 0;
-  let hi = d.tail!;
-  for (let k = 0; k < 300; k++) {
-    const mid = 0.5 * (lo + hi);
-    if (mid === lo || mid === hi) break;
-    if (mid + i4(mid) < d.tail!) lo = mid;
-    else hi = mid;
-  }
-  const i1 = 0.5 * (lo + hi);
-  const is1 = m1!.specificCurrent * Math.exp(m1!.sigmaBeta * u[1]!);
-  const is2 = m1!.specificCurrent * Math.exp(m1!.sigmaBeta * u[3]!);
-  const sign = d.input.polarity === 'n' ? 1 : -1;
-  const vos = sign * (m1!.sigmaVt * (u[0]! - u[2]!) + pi.slope * ut * (ekvInverse(i1 / is1) - ekvInverse((d.tail! - i1) / is2)));
-  return { vos, s1: Math.sqrt(i1 / is1), s2: Math.sqrt((d.tail! - i1) / is2) };
-}
+/** Vos by bisection, and the pair's sqrt(IC1), sqrt(IC2) at the balance (mirrorBisection.ts). */
+const reference = mirrorBisection;
 
 // sigma(dbeta/beta) of the input pair: 1 %um / sqrt(2 * 2 um^2) = 0.5 % per unit draw.
 const draw = (uBeta1: number, uBeta2: number, uVt1 = 0.5): Float64Array => Float64Array.of(uVt1, uBeta1, 0, uBeta2, 0.3, 0.2, -0.4, 0.1);

@@ -8,6 +8,7 @@ import { groupedBudget, linearisedSigma, mirrorStageSigma, simpleStageSigma, var
 import { pairSigma } from '../src/pelgrom.js';
 import type { DeviceGeometry, Stage } from '../src/index.js';
 import { demoProcess, mirrorDesign, simpleDesign, withChanges } from './designs.js';
+import { mirrorBisection } from './mirrorBisection.js';
 
 const rel = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
 
@@ -159,36 +160,8 @@ describe('offset properties (fast-check)', () => {
   });
 });
 
-/**
- * An independent solve of the mirror balance from its definition: M3 (diode) carries I1, M4 at
- * the same V_GS carries I4 = I_S4 F(v(I1/I_S3) - (V_T4 - V_T3)/(n U_T)) (EKV 1995), and
- * I1 + I4 = I_B; bisection on I1.
- */
-function mirrorReference(st: Stage, u: Float64Array): number {
-  const d = st.design;
-  const [m1, , m3] = st.operatingPoint;
-  const ut = st.thermalVoltage;
-  const pl = d.process[(d.load as DeviceGeometry).polarity]!;
-  const pi = d.process[d.input.polarity]!;
-  const vt3 = m3!.sigmaVt * u[4]!;
-  const vt4 = m3!.sigmaVt * u[6]!;
-  const is3 = m3!.specificCurrent * Math.exp(m3!.sigmaBeta * u[5]!);
-  const is4 = m3!.specificCurrent * Math.exp(m3!.sigmaBeta * u[7]!);
-  const i4 = (i1: number): number => is4 * ekvForward(ekvInverse(i1 / is3) - (vt4 - vt3) / (pl.slope * ut));
-  let lo = 0;
-  let hi = d.tail!;
-  for (let k = 0; k < 300 && hi - lo > 0; k++) {
-    const mid = 0.5 * (lo + hi);
-    if (mid + i4(mid) < d.tail!) lo = mid;
-    else hi = mid;
-    if (mid === lo && mid === hi) break;
-  }
-  const i1 = 0.5 * (lo + hi);
-  const is1 = m1!.specificCurrent * Math.exp(m1!.sigmaBeta * u[1]!);
-  const is2 = m1!.specificCurrent * Math.exp(m1!.sigmaBeta * u[3]!);
-  const sign = d.input.polarity === 'n' ? 1 : -1;
-  return sign * (m1!.sigmaVt * (u[0]! - u[2]!) + pi.slope * ut * (ekvInverse(i1 / is1) - ekvInverse((d.tail! - i1) / is2)));
-}
+/** An independent solve of the mirror balance from its definition (mirrorBisection.ts): Vos. */
+const mirrorReference = (st: Stage, u: Float64Array): number => mirrorBisection(st, u).vos;
 
 describe('mirror balance solve', () => {
   it('agrees with an independent bisection on I1 + I4(I1) = I_B (the balance definition above)', () => {
