@@ -2,7 +2,7 @@ import { spawnSync } from 'node:child_process';
 import { mkdtempSync, readFileSync, statSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
-import { fileURLToPath } from 'node:url';
+import { fileURLToPath, pathToFileURL } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import { compileStage, linearisedSigma } from '@twinfet/core';
 import { twoSidedTail } from '@twinfet/montecarlo';
@@ -36,10 +36,25 @@ describe('twinfet (end to end, the built CLI)', () => {
     // global set-up has just made it), so every end-to-end test here exercises the bundle.
     const stamp = statSync(join(root, 'packages/cli/bundle/built')).mtimeMs;
     for (const p of ['cli', 'core', 'montecarlo']) expect(statSync(join(root, `packages/${p}/dist/tsconfig.tsbuildinfo`)).mtimeMs).toBeLessThanOrEqual(stamp);
-    const bundled = readFileSync(join(root, 'packages/cli/bundle/twinfet.js'), 'utf8');
+    const bundled = readFileSync(join(root, 'packages/cli/bundle/twinfet.cjs'), 'utf8');
     expect(bundled).not.toContain('TWINFET_BUNDLED_VERSION');
     const pkg = JSON.parse(readFileSync(join(root, 'packages/cli/package.json'), 'utf8')) as { version: string };
     expect(twinfet('--version').stdout.trim()).toBe(pkg.version);
+  });
+
+  it('loads both bundle files with the code cache the bundler wrote (V8 accepts it: same Node, same source)', async () => {
+    // bin/loadBundle.js hands V8 <file>.cache; V8 sets cachedDataRejected when the cache does not
+    // match the source or this V8, and then compiles from source (correct but slow). The bundler
+    // ran in this Node a moment ago (global set-up), so a rejection here means it saved the cache
+    // of another file or a stale build.
+    const { loadBundle } = (await import(pathToFileURL(join(root, 'packages/cli/bin/loadBundle.js')).href)) as {
+      loadBundle(url: URL): { exports: Record<string, unknown>; script: { cachedDataRejected?: boolean } };
+    };
+    for (const f of ['twinfet', 'worker']) {
+      const { exports, script } = loadBundle(pathToFileURL(join(root, `packages/cli/bundle/${f}.cjs`)));
+      expect(script.cachedDataRejected, f).toBe(false);
+      expect(typeof exports[f === 'twinfet' ? 'main' : 'default'], f).toBe('function');
+    }
   });
 
   it('inspect --json gives analytic.sigma equal to the library value and a budget summing to 1', async () => {
