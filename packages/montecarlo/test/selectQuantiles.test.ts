@@ -1,7 +1,7 @@
 import { describe, it, expect } from 'vitest';
 import fc from 'fast-check';
 import { exactQuantile } from '../src/stats/histogram.js';
-import { selectQuantiles, withoutNaN } from '../src/stats/selectQuantiles.js';
+import { selectQuantiles, selectSignedAndAbsolute, withoutNaN } from '../src/stats/selectQuantiles.js';
 import { mulberry32 } from './testRandom.js';
 
 // Reference for every check: a full ascending sort followed by the type-7 interpolation
@@ -14,13 +14,32 @@ function bySort(values: Float64Array, levels: readonly number[], absolute = fals
   return levels.map((p) => exactQuantile(sorted, p));
 }
 
+function same(got: readonly number[], want: readonly number[], levels: readonly number[], what: string): void {
+  got.forEach((g, i) => {
+    if (!Object.is(g, want[i])) throw new Error(`${what} p=${levels[i]}: got ${g}, full sort gives ${want[i]}`);
+  });
+}
+
+/**
+ * Both functions against the full sort; the combined one with no bounds, with the data's own
+ * minimum and maximum (as a run passes them), and with bounds that hold only part of the data
+ * or far more than it (the clamped bins must still give the same bits, only more slowly).
+ */
 function expectSame(values: Float64Array, levels: readonly number[] = LEVELS): void {
-  for (const absolute of [false, true]) {
-    const got = selectQuantiles(values, levels, { absolute });
-    const want = bySort(values, levels, absolute);
-    got.forEach((g, i) => {
-      if (!Object.is(g, want[i])) throw new Error(`absolute=${absolute} p=${levels[i]}: got ${g}, full sort gives ${want[i]}`);
-    });
+  const want = { signed: bySort(values, levels, false), absolute: bySort(values, levels, true) };
+  for (const absolute of [false, true]) same(selectQuantiles(values, levels, { absolute }), absolute ? want.absolute : want.signed, levels, `absolute=${absolute}`);
+  let min = Infinity;
+  let max = -Infinity;
+  for (const x of values) {
+    min = Math.min(min, x);
+    max = Math.max(max, x);
+  }
+  const mid = 0.5 * (min + max);
+  const tries = { none: undefined, own: { min, max }, inner: { min: mid - 0.1 * (max - mid), max: mid + 0.05 * (max - mid) }, wide: { min: 10 * min - 1, max: 1e3 * max + 1 } };
+  for (const [name, bounds] of Object.entries(tries)) {
+    const got = selectSignedAndAbsolute(values, levels, bounds);
+    same(got.signed, want.signed, levels, `combined (${name} bounds), signed`);
+    same(got.absolute, want.absolute, levels, `combined (${name} bounds), absolute`);
   }
 }
 
@@ -90,6 +109,10 @@ describe('selectQuantiles equals a full sort', () => {
     expect(() => selectQuantiles(x, [0.5])).toThrow(/NaN/);
     expect(() => selectQuantiles(new Float64Array(0), [0.5])).toThrow(/empty/);
     expect(() => selectQuantiles(Float64Array.of(1, 2), [1.5])).toThrow(/p must/);
+    expect(() => selectSignedAndAbsolute(x, [0.5])).toThrow(/selectSignedAndAbsolute: the values contain NaN/);
+    expect(() => selectSignedAndAbsolute(x, [0.5], { min: -5, max: 5 })).toThrow(/NaN/);
+    expect(() => selectSignedAndAbsolute(new Float64Array(0), [0.5])).toThrow(/selectSignedAndAbsolute: the data are empty/);
+    expect(() => selectSignedAndAbsolute(Float64Array.of(1, 2), [-0.1])).toThrow(/selectSignedAndAbsolute: p must be in \[0, 1\], got -0.1/);
   });
 });
 

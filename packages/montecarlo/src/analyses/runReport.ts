@@ -6,7 +6,7 @@
 import type { ConditionStage, Stage } from '@twinfet/core';
 import { clopperPearson } from '../stats/clopperPearson.js';
 import { binWidth, createHistogram, quantileFromHistogram, type Histogram } from '../stats/histogram.js';
-import { selectQuantiles, withoutNaN } from '../stats/selectQuantiles.js';
+import { selectSignedAndAbsolute, withoutNaN } from '../stats/selectQuantiles.js';
 import { kurtosis, type Moments } from '../stats/moments.js';
 import { normalQuantile } from '../stats/normal.js';
 import { sigmaIntervalBonett, sigmaIntervalChiSquare } from '../stats/sigmaInterval.js';
@@ -147,9 +147,8 @@ export interface RunTally {
   readonly conditionStages?: readonly ConditionStage[];
 }
 
-/** Exact quantiles of the kept figures (of their magnitudes with `absolute`), as a full sort would give them. */
-function quantiles(kept: Float64Array, absolute: boolean): QuantileValue[] {
-  const values = selectQuantiles(kept, QUANTILE_LEVELS, { absolute });
+/** The quantile levels paired with their values. */
+function atLevels(values: readonly number[]): QuantileValue[] {
   return QUANTILE_LEVELS.map((p, i) => ({ p, value: values[i]! }));
 }
 
@@ -196,9 +195,12 @@ export function assembleRunReport(stage: Stage, t: RunTally): RunReport {
   if (offsets !== undefined) {
     quantileMethod = 'exact';
     // The non-converged samples (NaN, already counted) are left out of the quantiles.
+    // Exact quantiles of the figures and of their magnitudes, as a full sort would give them;
+    // the run's own minimum and maximum lay out the selection's bins.
     const kept = withoutNaN(offsets.subarray(0, done));
-    signed = quantiles(kept, false);
-    absolute = quantiles(kept, true);
+    const exact = selectSignedAndAbsolute(kept, QUANTILE_LEVELS, moments);
+    signed = atLevels(exact.signed);
+    absolute = atLevels(exact.absolute);
   } else {
     signed = histogramQuantiles(histogram);
     absolute = histogramQuantiles(folded(histogram));
