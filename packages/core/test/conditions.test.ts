@@ -13,6 +13,7 @@ import { BOLTZMANN, ELEMENTARY_CHARGE, thermalVoltage } from '../src/thermal.js'
 import { validateDesign } from '../src/validateDesign.js';
 import type { Stage } from '../src/stages/definition.js';
 import { demoProcess, foldedDesign, mirrorDesign, simpleDesign, withChanges } from './designs.js';
+import { draws } from './testDraws.js';
 
 const rel = (a: number, b: number): number => Math.abs(a - b) / Math.abs(b);
 
@@ -23,24 +24,6 @@ const resistorDesign: Design = {
   load: { w: 2e-6, l: 10e-6, r: 20e3 },
   process: { ...demoProcess, resistor: { ar: 5e-9 } },
 };
-
-/**
- * Deterministic standard-normal draws for per-sample checks: a seeded 32-bit generator
- * (mulberry32, common practice, no source) through Box-Muller (Box & Muller, Ann. Math.
- * Statist. 29(2), 1958).
- */
-function draws(dim: number, count: number, seed: number): Float64Array[] {
-  let a = seed >>> 0;
-  const uniform = (): number => {
-    a = (a + 0x6d2b79f5) >>> 0;
-    let t = a;
-    t = Math.imul(t ^ (t >>> 15), t | 1);
-    t ^= t + Math.imul(t ^ (t >>> 7), t | 61);
-    return (((t ^ (t >>> 14)) >>> 0) + 0.5) / 4294967296;
-  };
-  const normal = (): number => Math.sqrt(-2 * Math.log(uniform())) * Math.cos(2 * Math.PI * uniform());
-  return Array.from({ length: count }, () => Float64Array.from({ length: dim }, normal));
-}
 
 /** The draws with every V_T variable (or every current-factor variable) set to 0. */
 function only(stage: Stage, u: Float64Array, keep: 'vt' | 'beta'): Float64Array {

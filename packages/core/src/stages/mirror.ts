@@ -243,6 +243,20 @@ function newtonStep(t: MirrorScratch, active: number, tol: number): number {
 }
 
 /**
+ * Newton rounds of the balance, summed over samples, since the last `takeMirrorRounds` (in this
+ * thread). One addition per round of a 1024-sample block, not per sample: it measures the
+ * solve's work, which its cost test holds to about one round per sample.
+ */
+let rounds = 0;
+
+/** The balance's Newton rounds summed over samples since the last call (this thread), and resets the count. */
+export function takeMirrorRounds(): number {
+  const r = rounds;
+  rounds = 0;
+  return r;
+}
+
+/**
  * The balance I1 + I4 = I_B of every sample, in s = sqrt(IC3) = ln(1 + e^{v3/2}) on the closed
  * bracket [0, 1/sqrt(a3)]: h(s) = a3 s^2 + a4 L4^2 - 1 with L4 = ln(1 + e^{v4/2}) =
  * log1p(expm1(s) e^{-d/2}), by guarded Newton rounds from firstGuess. Leaves s in S and L4 in
@@ -251,6 +265,7 @@ function newtonStep(t: MirrorScratch, active: number, tol: number): number {
 function balance(t: MirrorScratch, count: number, tol: number, maxIter: number): void {
   let active = count;
   for (let k = 0; k < maxIter && active > 0; k++) {
+    rounds += active;
     loadRoots(t, active);
     active = newtonStep(t, active, tol);
   }
