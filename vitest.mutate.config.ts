@@ -37,6 +37,7 @@ const CORE = [
   'packages/core/test/selectorEdges.test.ts',
   'packages/core/test/mirrorLoadForms.test.ts',
   'packages/core/test/mirrorWork.test.ts',
+  'packages/core/test/foldedWork.test.ts',
   'packages/core/test/selectorReference.test.ts',
   'packages/core/test/mirrorSolve.test.ts',
 ];

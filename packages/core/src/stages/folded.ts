@@ -14,6 +14,20 @@ export const FOLDED_TOLERANCE = 1e-12;
 export const FOLDED_MAX_ITERATIONS = 200;
 
 /**
+ * Residual evaluations of the common-node solve, summed over samples, since the last
+ * `takeFoldedEvaluations` (in this thread): one addition per sample. It measures the solve's
+ * work, which its cost test holds to a few evaluations per sample.
+ */
+let evaluations = 0;
+
+/** The folded stage's residual evaluations summed over samples since the last call (this thread), and resets the count. */
+export function takeFoldedEvaluations(): number {
+  const e = evaluations;
+  evaluations = 0;
+  return e;
+}
+
+/**
  * Folded-cascode input stage (static, saturation, no channel-length modulation). The pair M1/M2
  * draws I1, I2 (I1 + I2 = I_B) from the folding nodes; the sources M5/M6 share one gate bias, so
  * each carries I_k = I_Sk F(v_F - dV_Tk/(n U_T)), v_F the EKV inverse of the nominal
@@ -82,7 +96,8 @@ function compileFolded(design: Design): StageModel {
     let hi = Math.sqrt(total / a7);
     let q = qStart < hi ? qStart : 0.5 * hi;
     let converged = false;
-    for (let k = 0; k < maxIter; k++) {
+    let k = 0;
+    for (; k < maxIter; k++) {
       let l8: number;
       let dl8: number;
       if (q <= 30) {
@@ -106,6 +121,7 @@ function compileFolded(design: Design): StageModel {
       if (next === q) break; // the bracket cannot narrow further in doubles
       q = next;
     }
+    evaluations += converged ? k + 1 : k;
     if (!converged) return Number.NaN;
     const x1 = s5 - a7 * q * q; // I1 / I_B
     const x2 = 1 - x1;
