@@ -38,6 +38,7 @@ const CORE = [
   'packages/core/test/mirrorLoadForms.test.ts',
   'packages/core/test/mirrorWork.test.ts',
   'packages/core/test/foldedWork.test.ts',
+  'packages/core/test/selectorWork.test.ts',
   'packages/core/test/selectorReference.test.ts',
   'packages/core/test/mirrorSolve.test.ts',
 ];

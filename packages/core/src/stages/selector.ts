@@ -54,6 +54,20 @@ interface NodeRoot {
 }
 
 /**
+ * Residual evaluations of the node solves (each a pass over the cells), summed since the last
+ * `takeSelectorEvaluations` (in this thread): one addition per pass over the cells. It measures
+ * the solves' work, which their cost test holds to a few passes per solve.
+ */
+let evaluations = 0;
+
+/** The selector's residual evaluations summed since the last call (this thread), and resets the count. */
+export function takeSelectorEvaluations(): number {
+  const e = evaluations;
+  evaluations = 0;
+  return e;
+}
+
+/**
  * Solves sum_{j = from}^{n - 1} a_j l_j(y)^2 + extra(y) = 1 for y, with l_j = softplus(y - hd_j)
  * (= sqrt(I_j / I_Sj)) and a_j = I_Sj / I_B. `tie` selects the extra term: -1 none, -2 the
  * largest term (the strongest competitor), k >= 0 term k. Returns false when not converged.
@@ -98,6 +112,7 @@ function solveNode(a: Float64Array, hd: Float64Array, from: number, n: number, t
     }
     const t = s + m;
     const h = t - 1;
+    evaluations++;
     if (Math.abs(h) <= SELECTOR_TOLERANCE) {
       // The last Newton step costs no new evaluation: y and the tying cell's sqrt(IC) move to
       // first order (the neglected term is O(step^2), below 1e-24 from here), so the root is
