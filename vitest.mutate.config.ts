@@ -52,6 +52,7 @@ const STATS = [
   'packages/montecarlo/test/moments.test.ts',
   'packages/montecarlo/test/reportIntervals.test.ts',
   'packages/montecarlo/test/binomialEdges.test.ts',
+  'packages/montecarlo/test/clopperPearsonWork.test.ts',
   'packages/montecarlo/test/statsEdges.test.ts',
   // assembleRunReport in this thread (reportIntervals runs the chunks on workers, which load dist).
   'packages/montecarlo/test/runReportAssembly.test.ts',

@@ -19,6 +19,26 @@ const LOG_2PI = Math.log(2 * Math.PI);
 const TINY = 1e-300;
 const CF_EPS = 1e-15;
 
+/**
+ * The work the bounds take, summed since the last `takeBoundWork` (this thread): tail
+ * evaluations of the bracketed Newton solve, continued-fraction terms (Lentz steps) and summed
+ * binomial terms. None of it changes a bound (each solve stops on its own tolerance); it is what
+ * a bound costs, and a test holds it to a budget (clopperPearsonWork.test.ts), so a spoilt start,
+ * slope or switch point, which the bounds' reference tests cannot see, fails a test.
+ */
+let tailEvaluations = 0;
+let fractionTerms = 0;
+let sumTerms = 0;
+
+/** The bounds' work since the last call, and resets the counts. */
+export function takeBoundWork(): { tails: number; fractionTerms: number; sumTerms: number } {
+  const work = { tails: tailEvaluations, fractionTerms, sumTerms };
+  tailEvaluations = 0;
+  fractionTerms = 0;
+  sumTerms = 0;
+  return work;
+}
+
 /** log(n!) - log(sqrt(2 pi n) (n/e)^n): the Stirling-formula error for integer n >= 1. */
 function stirlingError(n: number): number {
   if (n <= 15) {
@@ -100,7 +120,10 @@ function betaContinuedFraction(x: number, a: number, b: number): number {
     d = 1 / d;
     const del = d * c;
     h *= del;
-    if (Math.abs(del - 1) < CF_EPS) return h;
+    if (Math.abs(del - 1) < CF_EPS) {
+      fractionTerms += m;
+      return h;
+    }
   }
   throw new Error(`betaContinuedFraction: no convergence for x=${x}, a=${a}, b=${b}`);
 }
@@ -123,6 +146,7 @@ function atMostBySum(k: number, n: number, p: number, q: number): number {
   for (let j = k; j > 0; j--) {
     term *= (j * q) / ((n - j + 1) * p);
     sum += term;
+    sumTerms++;
     if (term <= 1e-17 * sum) break;
   }
   return sum;
@@ -211,6 +235,7 @@ function solveTail(
   let p = guess > 0 && guess < 1 ? guess : 0.5;
   for (let iter = 0; iter < 300; iter++) {
     const [value, slope] = tail(p);
+    tailEvaluations++;
     const r = value - target;
     if (r === 0) return p;
     if (r > 0 === increasing) hi = p;
