@@ -13,8 +13,21 @@
  * The budgets are cost budgets (common practice, no source), set about 5% above the counts
  * measured on this fixed grid (the counts are deterministic: same inputs, same integers).
  */
+import { readFileSync } from 'node:fs';
 import { describe, expect, it } from 'vitest';
 import { clopperPearson, oneSidedUpper, takeBoundWork } from '../src/stats/clopperPearson.js';
+
+/** 60-digit bounds by bisection on exact binomial sums: test/fixtures/clopper_pearson_fallback.py. */
+const fallback = JSON.parse(readFileSync(new URL('../../../test/fixtures/clopper-pearson-fallback.json', import.meta.url), 'utf8')) as {
+  failures: number;
+  n: number;
+  confidence: number;
+  lower: string;
+  upper: string;
+  oneSidedUpper: string;
+}[];
+
+const rel = (actual: number, expected: string): number => Math.abs(actual - Number(expected)) / Number(expected);
 
 /** Failure counts from none to all, through the small-count, small-p and near-half regions. */
 function failureCounts(n: number): number[] {
@@ -65,6 +78,9 @@ describe('clopperPearson: work per bound (cost budget)', () => {
     expect(w.tails).toBeLessThanOrEqual(tails);
     expect(w.fractionTerms).toBeLessThanOrEqual(fraction);
     expect(w.sumTerms).toBeLessThanOrEqual(sum);
+    // From n = 1e3 on the grid has upper bounds below p = 0.01, whose lower tails are summed.
+    if (n >= 1000) expect(w.sumTerms).toBeGreaterThan(0);
+    else expect(w.sumTerms).toBe(0);
     expect(w.maxTails).toBeLessThanOrEqual(4);
     // Every call that solves a bound evaluates the tail at least once; the closed forms do not.
     expect(w.tails).toBeGreaterThan(0);
@@ -91,5 +107,40 @@ describe('clopperPearson: work per bound (cost budget)', () => {
     expect(w.tails).toBeGreaterThanOrEqual(1);
     expect(w.fractionTerms + w.sumTerms).toBeGreaterThanOrEqual(w.tails);
     expect(takeBoundWork()).toEqual({ tails: 0, fractionTerms: 0, sumTerms: 0 });
+  });
+});
+
+describe('clopperPearson: where jStat gives no usable start (the solve starts at 1/2 and bisects)', () => {
+  // At confidence 1 - 2^-53 the upper bound's quantile argument 1 - a/2 rounds to 1 (jStat
+  // returns 1); at n = 1e15 and 2^53 - 1 with 10 failures jStat returns NaN, and with 1 or 3
+  // failures a start 14 or 4 times too high. Tolerance 1e-12 relative, as for the 60-digit
+  // table of clopperPearson.test.ts: the tails hold ~1e-13 relative (Loader's saddle point and
+  // the continued fraction), and a bound moves by the tail's relative error divided by
+  // |d ln tail / d ln p|, which is at least 1 at every bound here (measured within 5e-16).
+  it.each(fallback.map((c) => [c.failures, c.n, c.confidence, c] as const))(
+    '%s failures in %s at confidence %s: both bounds and the one-sided bound to 1e-12',
+    (failures, n, confidence, c) => {
+      const [lo, hi] = clopperPearson(failures, n, confidence);
+      expect(rel(lo, c.lower)).toBeLessThan(1e-12);
+      expect(rel(hi, c.upper)).toBeLessThan(1e-12);
+      expect(rel(oneSidedUpper(failures, n, confidence), c.oneSidedUpper)).toBeLessThan(1e-12);
+    },
+  );
+
+  it('the fallback costs tens of tail evaluations, not hundreds (cost budget)', () => {
+    // Measured: 35, 58, 20, 19, 113 and 120 tail evaluations for the six cases above (the two-
+    // sided interval and the one-sided bound), 365 in all; budget 5% above (common practice,
+    // no source). A bisection of [0, 1] to a root near 1e-15 at 1e-15 relative width takes
+    // about 100 halvings per bound, so the Newton steps inside the bracket are doing the work.
+    takeBoundWork();
+    for (const c of fallback) {
+      clopperPearson(c.failures, c.n, c.confidence);
+      oneSidedUpper(c.failures, c.n, c.confidence);
+    }
+    const w = takeBoundWork();
+    expect(w.tails).toBeLessThanOrEqual(383);
+    // More than the two evaluations per bound of a good start (six cases, three bounds each):
+    // the fallback path is the one taken.
+    expect(w.tails).toBeGreaterThan(6 * 3 * 2);
   });
 });
