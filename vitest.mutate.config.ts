@@ -23,6 +23,7 @@ const CORE = [
   // The near-balance EKV difference, the stage figures against the committed fixture, the
   // library edges and the operating conditions also check ekv.ts and the stage modules.
   'packages/core/test/ekvNear.test.ts',
+  'packages/core/test/ekvNearCut.test.ts',
   'packages/core/test/ekvStrongDifference.test.ts',
   'packages/core/test/figureReference.test.ts',
   'packages/core/test/libraryEdge.test.ts',
