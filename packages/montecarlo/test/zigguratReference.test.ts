@@ -65,6 +65,12 @@ describe('ziggurat against the published algorithm (Marsaglia & Tsang 2000), tes
     fillStandardNormals(rng, xs, 1000, ref.n);
     checkStream(xs, rng);
   });
+  it('fillStandardNormals: the same deviates in calls of 1 to 7 draws (odd ends, and the rare path at either draw of a two-draw pass)', () => {
+    const rng = new ChunkRng(ref.state);
+    const xs = new Float64Array(ref.n);
+    for (let i = 0, len = 1; i < ref.n; i += len, len = (len % 7) + 1) fillStandardNormals(rng, xs, i, Math.min(ref.n, i + len));
+    checkStream(xs, rng);
+  });
   it('normalTail: the first 32 tail draws from the same state (1e-12 relative), all beyond the edge r', () => {
     const rng = new ChunkRng(ref.state);
     for (const t of ref.tails) {
