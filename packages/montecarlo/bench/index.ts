@@ -38,11 +38,15 @@ function chunkNs(design: Design): number {
     keepDraws: false,
   };
   // Warm-up long enough for the JIT to settle (5 chunks were not: the first design measured
-  // came out 20-30% slow), then the best of five timed batches (the least disturbed by other load on a shared machine).
+  // came out 20-30% slow), then the best of many short timed batches: on a shared machine other
+  // load comes in bursts of a second or more, and short batches spread over several seconds
+  // find the quiet moments between them (five batches of 30 chunks, within half a second, were
+  // often all inside one burst, and read up to twice the undisturbed time).
   for (let i = 0; i < 30; i++) runChunk({ ...task, chunk: 1000 + i });
-  const reps = quick ? 10 : 30;
+  const reps = 2;
+  const rounds = quick ? 10 : 60;
   let best = Infinity;
-  for (let round = 0; round < 5; round++) {
+  for (let round = 0; round < rounds; round++) {
     const t = performance.now();
     for (let i = 0; i < reps; i++) runChunk({ ...task, chunk: round * reps + i });
     best = Math.min(best, ((performance.now() - t) * 1e6) / (reps * task.count));
@@ -50,20 +54,27 @@ function chunkNs(design: Design): number {
   return best;
 }
 
-/** ns/sample of a whole run on a warm executor (pool start-up is reported separately). */
-async function runNs(design: Design, workers: number, samples: number): Promise<number> {
-  const executor = createExecutor(workers);
+/**
+ * ns/sample of whole runs on warm executors of one worker and of `workers` (pool start-up is
+ * reported separately), the two run in turn (so a burst of other load falls on both alike),
+ * best of `reps` each.
+ */
+async function runNs(design: Design, workers: number, samples: number, reps: number): Promise<{ one: number; all: number }> {
+  const executors = [createExecutor(1), createExecutor(workers)];
   try {
-    await simulate(design, { samples: 2_000_000, executor, keepOffsets: false }); // warm-up: threads and JIT
-    let best = Infinity;
-    for (let rep = 0; rep < 3; rep++) {
-      const t = performance.now();
-      await simulate(design, { samples, executor, keepOffsets: false, seed: `bench-${rep}` });
-      best = Math.min(best, ((performance.now() - t) * 1e6) / samples);
+    const best = [Infinity, Infinity];
+    // Warm-up: threads and JIT.
+    for (const executor of executors) await simulate(design, { samples: 2_000_000, executor, keepOffsets: false });
+    for (let rep = 0; rep < reps; rep++) {
+      for (let k = 0; k < 2; k++) {
+        const t = performance.now();
+        await simulate(design, { samples, executor: executors[k]!, keepOffsets: false, seed: `bench-${rep}` });
+        best[k] = Math.min(best[k]!, ((performance.now() - t) * 1e6) / samples);
+      }
     }
-    return best;
+    return { one: best[0]!, all: best[1]! };
   } finally {
-    await executor.close();
+    for (const executor of executors) await executor.close();
   }
 }
 
@@ -96,12 +107,11 @@ for (const name of examples) {
   // 6e6 samples (92 chunks), the size at which the two-worker speed-up is asked for.
   const runSamples = 6e6 / (quick ? 10 : 1);
   const c = chunkNs(design);
-  const one = await runNs(design, 1, runSamples);
-  const all = await runNs(design, defaultWorkers(), runSamples);
+  const { one, all } = await runNs(design, defaultWorkers(), runSamples, quick ? 2 : 5);
   console.log(line([name, design.topology, c.toFixed(1), one.toFixed(1), all.toFixed(1), `${(one / all).toFixed(2)}x`, (1e9 / all).toExponential(2)]));
 }
 console.log('  chunk ns: one 65536-sample chunk in this thread (draws, exact offsets, statistics).');
-console.log('  run ns: wall time of simulate() per sample (6e6 samples, histogram quantiles; best of 3) on a warm pool.');
+console.log('  run ns: wall time of simulate() per sample (6e6 samples, histogram quantiles) on a warm pool; one worker and all workers in turn, best of 5 each.');
 console.log(`  a fresh pool of ${defaultWorkers()} threads returns its first 65536-sample chunk after ${(await poolStartMs(await loadDesign(`${root}examples/comparator-demo.yaml`))).toFixed(0)} ms (chunks run in this thread meanwhile).`);
 
 // Peak memory of a long run that keeps no samples: it must stay flat in the sample count.
