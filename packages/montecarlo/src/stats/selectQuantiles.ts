@@ -22,8 +22,10 @@ const LAST = BINS - 1;
 
 /** The bin of x for bins of width 1/scale from lo: non-decreasing in x, clamped to [0, LAST]. */
 function binOf(x: number, lo: number, scale: number): number {
-  const b = Math.floor((x - lo) * scale);
-  return b > 0 ? (b < LAST ? b : LAST) : 0;
+  const t = (x - lo) * scale;
+  // floor(t) clamped, written so that the conversion is a plain truncation of 0 < t < LAST
+  // (Math.floor's result needs a check before it can index); a NaN goes to bin 0 as before.
+  return t >= LAST ? LAST : t > 0 ? t | 0 : 0;
 }
 
 /**
