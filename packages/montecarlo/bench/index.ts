@@ -18,6 +18,7 @@ import { runChunk } from '../src/engine/chunk.js';
 import { poolExecutor } from '../dist/engine/pool.js';
 import { loadDesign } from '../../cli/dist/designFile.js';
 import { peerComparison } from './peer.js';
+import { hostFigures } from './host.js';
 import { startupFigures } from './startup.js';
 import { reportBench } from '../../cli/bench/report.js';
 
@@ -91,15 +92,20 @@ async function poolStartMs(design: Design): Promise<number> {
 }
 
 if (process.argv.includes('--peer')) {
+  hostFigures('before');
+  console.log('');
   await peerComparison();
   console.log('');
   startupFigures();
+  console.log('');
+  hostFigures('after');
   process.exit(0);
 }
 
 const line = (cells: (string | number)[]): string => cells.map((c, i) => String(c).padStart(i === 0 ? 20 : 12)).join('');
 
 console.log(`twinfet benchmark  node ${process.version}, ${availableParallelism()} cores, ${defaultWorkers()} workers by default${quick ? ' (quick)' : ''}`);
+hostFigures('before');
 console.log('');
 console.log(line(['design', 'topology', 'chunk ns', 'run 1w ns', 'run all ns', 'speed-up', 'samples/s']));
 for (const name of examples) {
@@ -236,3 +242,5 @@ console.log(`  a fresh pool of ${defaultWorkers()} threads returns its first 655
 console.log('');
 startupFigures();
 reportBench(quick);
+console.log('');
+hostFigures('after');
