@@ -36,6 +36,69 @@ const INV_R = 1 / R;
 // comparisons: |hz| < KN[iz] exactly when -k < hz < k (hz = -2^31 fails both ways).
 const KI = Int32Array.from(KN);
 
+/**
+ * The wedge test of layer i (1..127) is y < e^{-x^2/2} for y = FN[i] + U (FN[i-1] - FN[i]) and
+ * x_{i-1} <= |x| <= x_i (x_0 = 0, FN[0] = 1). It is decided without the exp call where a line
+ * bounds e^{-x^2/2} on the layer: the density is concave below 1 and convex above, so on a
+ * concave layer the chord through the layer's corners is below it and the tangents at the two
+ * corners above it, and the other way round on a convex layer (the layer that holds x = 1 always
+ * takes the exp). The lines are evaluated at max(|x|, x_{i-1}): below x_{i-1} every y of the layer
+ * is accepted anyway, and there the clamped bounds are x_{i-1}'s own value, so the squeeze can
+ * only accept. A margin of 1e-12 of FN[i-1] on either side is hundreds of times the rounding of
+ * the table values, the lines and the exp call, so a squeeze decision is always the one the exp
+ * comparison makes: the same deviates and the same stream (tested point by point against the
+ * exp comparison, and deviate by deviate against the published algorithm).
+ */
+const WA = new Float64Array(128); // x_{i-1}, the layer's inner corner
+const CHORD = new Float64Array(128); // slope of the chord from (x_{i-1}, FN[i-1]) to (x_i, FN[i])
+const SLOPE_A = new Float64Array(128); // e^{-x^2/2}' at x_{i-1}: -x_{i-1} FN[i-1]
+const SLOPE_B = new Float64Array(128); // ... at x_i: -x_i FN[i]
+const CONVEX = new Uint8Array(128);
+const MARGIN = new Float64Array(128);
+for (let i = 1; i < 128; i++) {
+  const a = i === 1 ? 0 : WN[i - 1]! * M1;
+  const b = WN[i]! * M1;
+  WA[i] = a;
+  CHORD[i] = (FN[i]! - FN[i - 1]!) / (b - a);
+  SLOPE_A[i] = -a * FN[i - 1]!;
+  SLOPE_B[i] = -b * FN[i]!;
+  CONVEX[i] = a >= 1 ? 1 : 0;
+  MARGIN[i] = a >= 1 || b <= 1 ? 1e-12 * FN[i - 1]! : Infinity;
+}
+
+/**
+ * The squeeze's verdict on the wedge test of layer iz (1..127) at x, y: 1 accept, -1 reject,
+ * 0 undecided (the exp comparison decides). Exported for its test.
+ */
+export function wedgeSqueeze(iz: number, x: number, y: number): number {
+  const a = WA[iz]!;
+  const ax = Math.abs(x);
+  const xc = ax > a ? ax : a;
+  const fa = FN[iz - 1]!;
+  const chord = fa + CHORD[iz]! * (xc - a);
+  const tangentA = fa + SLOPE_A[iz]! * (xc - a);
+  const tangentB = FN[iz]! + SLOPE_B[iz]! * (xc - WN[iz]! * M1);
+  let lower: number;
+  let upper: number;
+  if (CONVEX[iz] === 1) {
+    lower = tangentA > tangentB ? tangentA : tangentB;
+    upper = chord;
+  } else {
+    lower = chord;
+    upper = tangentA < tangentB ? tangentA : tangentB;
+  }
+  const m = MARGIN[iz]!;
+  if (y <= lower - m) return 1;
+  if (y >= upper + m) return -1;
+  return 0;
+}
+
+/** The wedge test of layer iz at x, y: the squeeze, and the exp comparison where it is undecided. */
+function wedgeAccepts(iz: number, x: number, y: number): boolean {
+  const v = wedgeSqueeze(iz, x, y);
+  return v === 0 ? y < Math.exp(-0.5 * x * x) : v > 0;
+}
+
 /** The right edge r of the base strip: beyond it every deviate comes from {@link normalTail}. */
 export const ZIGGURAT_EDGE = R;
 
@@ -68,7 +131,7 @@ function slow(rng: ChunkRng, first: number, out: Float64Array, at: number): void
       out[at] = hz > 0 ? t : -t;
       return;
     }
-    if (FN[iz]! + rng.double() * (FN[iz - 1]! - FN[iz]!) < Math.exp(-0.5 * x * x)) {
+    if (wedgeAccepts(iz, x, FN[iz]! + rng.double() * (FN[iz - 1]! - FN[iz]!))) {
       out[at] = x;
       return;
     }
