@@ -93,10 +93,26 @@ export function wedgeSqueeze(iz: number, x: number, y: number): number {
   return 0;
 }
 
+/**
+ * Exp calls of the wedge test since the last `takeWedgeExpCalls` (in this thread): one addition
+ * on the rare path's rare branch. It measures the squeeze's work, which its cost test holds to
+ * a budget.
+ */
+let expCalls = 0;
+
+/** The wedge test's exp calls since the last call (this thread), and resets the count. */
+export function takeWedgeExpCalls(): number {
+  const c = expCalls;
+  expCalls = 0;
+  return c;
+}
+
 /** The wedge test of layer iz at x, y: the squeeze, and the exp comparison where it is undecided. */
 function wedgeAccepts(iz: number, x: number, y: number): boolean {
   const v = wedgeSqueeze(iz, x, y);
-  return v === 0 ? y < Math.exp(-0.5 * x * x) : v > 0;
+  if (v !== 0) return v > 0;
+  expCalls++;
+  return y < Math.exp(-0.5 * x * x);
 }
 
 /** The right edge r of the base strip: beyond it every deviate comes from {@link normalTail}. */
